@@ -1,0 +1,55 @@
+// Package wavio reads and writes WAVE audio files as streams of float64
+// samples, and writes output files atomically.
+//
+// # Scope
+//
+// Reader decodes the sample data of a RIFF/WAVE stream block by block
+// through a fixed buffer, so memory use does not grow with the file: integer
+// PCM of 8, 16, 24 and 32 bits, IEEE float of 32 and 64 bits (format tag 3),
+// and WAVE_FORMAT_EXTENSIBLE (tag 0xFFFE) whose sub-format GUID is PCM or
+// IEEE float; 1 to 8 channels; 8 kHz to 384 kHz. Unknown chunks (LIST, fact,
+// JUNK, cue, ...) are skipped wherever they sit, including odd-sized chunks
+// followed by their pad byte. PCM codes are scaled to [-1, 1) by
+// 2^-(bits-1); 8-bit data is unsigned with a 128 offset.
+//
+// Writer encodes interleaved float64 samples as 16, 24 or 32-bit PCM
+// (rounded to nearest, ties away from zero, clamped and counted, no
+// dither) or 32 or 64-bit IEEE float (non-finite values refused). See
+// Writer for the header rules: EXTENSIBLE for more than two channels or PCM
+// deeper than 16 bits, plain tags otherwise.
+//
+// Output and CreateTemp write a file under a hidden temporary name in the
+// target directory and rename it into place on Commit; Abort removes it.
+// SameFile lets a command refuse to write over its own input.
+//
+// Faults in the input are reported as *FormatError (structure and header)
+// or *SampleError (non-finite samples), each wrapping one sentinel such as
+// ErrTruncated or ErrNonFinite for errors.Is, with a one-line message naming
+// the byte offset or frame. Nothing in this package panics on file content.
+//
+// # References
+//
+//   - IBM Corporation and Microsoft Corporation, "Multimedia Programming
+//     Interface and Data Specifications 1.0", August 1991: RIFF chunk
+//     layout and even-length padding, the WAVE form, the "fmt ", "data" and
+//     "fact" chunks, PCM sample layout (8-bit unsigned, wider signed
+//     little-endian).
+//   - Microsoft Corporation, "Multiple Channel Audio Data and WAVE Files"
+//     (WAVEFORMATEXTENSIBLE), 2001, and the KSDATAFORMAT_SUBTYPE_PCM and
+//     KSDATAFORMAT_SUBTYPE_IEEE_FLOAT GUIDs in ksmedia.h: the 40-byte fmt
+//     chunk, valid bits, channel mask, and when the extensible form should
+//     be used.
+//   - IEEE 754-2008, binary32 and binary64 interchange formats, for float
+//     samples.
+//   - P. Kabal, "Audio File Format Specifications: WAVE", McGill University
+//     (from memory): summary of the above, including the fact chunk for
+//     non-PCM data.
+//
+// # Non-goals
+//
+// No compressed or companded encodings (ADPCM, A-law, mu-law, MPEG), no
+// 12-bit or other non-byte-sized PCM, no RIFX (big-endian) or RF64/BW64
+// files over 4 GiB, no metadata preservation (LIST/INFO, bext, cue and other
+// chunks are skipped on reading and not written), no sample-rate
+// conversion, no dither.
+package wavio

@@ -1,0 +1,270 @@
+package wavio
+
+import (
+	"errors"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func dirNames(t *testing.T, dir string) []string {
+	t.Helper()
+	es, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, e := range es {
+		names = append(names, e.Name())
+	}
+	return names
+}
+
+// writeWAV renders a short tone into o through a Writer.
+func writeWAV(t *testing.T, o *Output) {
+	t.Helper()
+	w, err := NewWriter(o, Format{SampleRate: 48000, Channels: 1, BitDepth: 16})
+	if err != nil {
+		t.Fatal(err)
+	}
+	src := make([]float64, 480)
+	for i := range src {
+		src[i] = 0.5 * math.Sin(2*math.Pi*float64(i)/48)
+	}
+	if err := w.Write(src); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func TestOutputCommit(t *testing.T) {
+	dir := t.TempDir()
+	final := filepath.Join(dir, "out.wav")
+	o, err := CreateTemp(final)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer o.Abort()
+	tmp := o.Name()
+	if filepath.Dir(tmp) != dir || !strings.HasPrefix(filepath.Base(tmp), ".out.wav.") || !strings.HasSuffix(tmp, ".tmp") {
+		t.Errorf("temporary name %q: want .out.wav.*.tmp in %s", tmp, dir)
+	}
+	if o.File().Name() != tmp {
+		t.Errorf("File().Name() = %q, want %q", o.File().Name(), tmp)
+	}
+	writeWAV(t, o)
+	if _, err := os.Stat(final); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("final path exists before Commit: %v", err)
+	}
+	if err := o.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	if names := dirNames(t, dir); len(names) != 1 || names[0] != "out.wav" {
+		t.Errorf("directory holds %v, want [out.wav]", names)
+	}
+	st, err := os.Stat(final)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st.Mode().Perm() != 0o644 {
+		t.Errorf("mode %v, want 0644", st.Mode().Perm())
+	}
+	r, err := Open(final)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Frames() != 480 {
+		t.Errorf("committed file has %d frames, want 480", r.Frames())
+	}
+	r.Close()
+	o.Abort() // after Commit: no effect
+	if _, err := os.Stat(final); err != nil {
+		t.Errorf("Abort after Commit removed the file: %v", err)
+	}
+	if err := o.Commit(); !errors.Is(err, ErrClosed) {
+		t.Errorf("second Commit = %v, want ErrClosed", err)
+	}
+}
+
+func TestOutputReplacesExisting(t *testing.T) {
+	dir := t.TempDir()
+	final := filepath.Join(dir, "out.wav")
+	if err := os.WriteFile(final, []byte("old contents"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	o, err := CreateTemp(final)
+	if err != nil {
+		t.Fatal(err)
+	}
+	writeWAV(t, o)
+	if b, _ := os.ReadFile(final); string(b) != "old contents" {
+		t.Error("existing file changed before Commit")
+	}
+	if err := o.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	st, _ := os.Stat(final)
+	if st.Mode().Perm() != 0o600 {
+		t.Errorf("mode %v, want the replaced file's 0600", st.Mode().Perm())
+	}
+	if r, err := Open(final); err != nil {
+		t.Errorf("replaced file unreadable: %v", err)
+	} else {
+		r.Close()
+	}
+}
+
+func TestOutputAbort(t *testing.T) {
+	dir := t.TempDir()
+	o, err := CreateTemp(filepath.Join(dir, "out.wav"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	writeWAV(t, o)
+	o.Abort()
+	o.Abort() // idempotent
+	if names := dirNames(t, dir); len(names) != 0 {
+		t.Errorf("directory holds %v after Abort, want nothing", names)
+	}
+	if err := o.Commit(); !errors.Is(err, ErrClosed) {
+		t.Errorf("Commit after Abort = %v, want ErrClosed", err)
+	}
+}
+
+// render is the pattern a command follows: Abort deferred, Commit only
+// after every write succeeded.
+func render(final string, src []float64) (err error) {
+	o, err := CreateTemp(final)
+	if err != nil {
+		return err
+	}
+	defer o.Abort()
+	w, err := NewWriter(o, Format{SampleRate: 48000, Channels: 1, BitDepth: 32, Float: true})
+	if err != nil {
+		return err
+	}
+	if err := w.Write(src); err != nil {
+		return err
+	}
+	if err := w.Close(); err != nil {
+		return err
+	}
+	return o.Commit()
+}
+
+func TestOutputFailedWriteLeavesNothing(t *testing.T) {
+	dir := t.TempDir()
+	final := filepath.Join(dir, "out.wav")
+	if err := render(final, []float64{0, 0.5, math.NaN()}); !errors.Is(err, ErrNonFinite) {
+		t.Fatalf("render = %v, want ErrNonFinite", err)
+	}
+	if names := dirNames(t, dir); len(names) != 0 {
+		t.Errorf("directory holds %v after a failed render, want nothing", names)
+	}
+
+	// An operating-system write failure: the file is closed under the writer.
+	o, err := CreateTemp(final)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w, err := NewWriter(o, Format{SampleRate: 48000, Channels: 1, BitDepth: 16})
+	if err != nil {
+		t.Fatal(err)
+	}
+	o.File().Close()
+	if err := w.Write([]float64{0.1}); !errors.Is(err, os.ErrClosed) {
+		t.Errorf("Write on closed file = %v, want os.ErrClosed", err)
+	}
+	o.Abort()
+	if names := dirNames(t, dir); len(names) != 0 {
+		t.Errorf("directory holds %v after an I/O failure, want nothing", names)
+	}
+}
+
+func TestOutputCommitFailure(t *testing.T) {
+	dir := t.TempDir()
+	final := filepath.Join(dir, "taken")
+	if err := os.Mkdir(final, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(final, "keep"), []byte("x"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	o, err := CreateTemp(final)
+	if err != nil {
+		t.Fatal(err)
+	}
+	writeWAV(t, o)
+	if err := o.Commit(); err == nil {
+		t.Fatal("Commit over a non-empty directory succeeded")
+	}
+	if names := dirNames(t, dir); len(names) != 1 || names[0] != "taken" {
+		t.Errorf("directory holds %v after failed Commit, want [taken]", names)
+	}
+	if _, err := os.Stat(filepath.Join(final, "keep")); err != nil {
+		t.Errorf("failed Commit disturbed the existing directory: %v", err)
+	}
+	if _, err := CreateTemp(filepath.Join(dir, "missing", "x.wav")); err == nil {
+		t.Error("CreateTemp in a missing directory succeeded")
+	}
+	if _, err := CreateTemp(""); err == nil {
+		t.Error("CreateTemp(\"\") succeeded")
+	}
+}
+
+func TestSameFile(t *testing.T) {
+	dir := t.TempDir()
+	a := filepath.Join(dir, "a.wav")
+	b := filepath.Join(dir, "b.wav")
+	for _, p := range []string{a, b} {
+		if err := os.WriteFile(p, []byte("RIFF"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	sub := filepath.Join(dir, "sub")
+	os.Mkdir(sub, 0o755)
+	if err := os.Symlink(a, filepath.Join(dir, "link.wav")); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Link(a, filepath.Join(dir, "hard.wav")); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Symlink(sub, filepath.Join(dir, "subLink")); err != nil {
+		t.Fatal(err)
+	}
+	wd, _ := os.Getwd()
+	relA, err := filepath.Rel(wd, a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tests := []struct {
+		name string
+		x, y string
+		want bool
+	}{
+		{"identical", a, a, true},
+		{"dot and dot-dot spelling", a, filepath.Join(sub, "..", ".", "a.wav"), true},
+		{"relative and absolute", relA, a, true},
+		{"symbolic link", filepath.Join(dir, "link.wav"), a, true},
+		{"hard link", filepath.Join(dir, "hard.wav"), a, true},
+		{"different files", a, b, false},
+		{"missing, same path spelled twice", filepath.Join(dir, "new.wav"), filepath.Join(sub, "..", "new.wav"), true},
+		{"missing, through a linked directory", filepath.Join(sub, "new.wav"), filepath.Join(dir, "subLink", "new.wav"), true},
+		{"missing, different names", filepath.Join(dir, "new.wav"), filepath.Join(dir, "other.wav"), false},
+		{"one exists, one missing", a, filepath.Join(dir, "new.wav"), false},
+	}
+	for _, tc := range tests {
+		got, err := SameFile(tc.x, tc.y)
+		if err != nil || got != tc.want {
+			t.Errorf("%s: SameFile(%q, %q) = %v, %v; want %v", tc.name, tc.x, tc.y, got, err, tc.want)
+		}
+	}
+	// A path through a regular file is an error, not "missing".
+	if _, err := SameFile(filepath.Join(a, "x.wav"), b); err == nil {
+		t.Error("SameFile through a regular file: want an error")
+	}
+}

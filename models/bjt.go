@@ -1,0 +1,130 @@
+package models
+
+// BJTParams are the parameters of a bipolar transistor in the Ebers–Moll
+// transport model.
+type BJTParams struct {
+	PNP   bool
+	Is    float64 // transport saturation current at the nominal temperature, A
+	BetaF float64 // forward current gain βF (the hFE a tester reads)
+	BetaR float64 // reverse current gain βR
+	// Icbo is the collector–base leakage at the nominal temperature, A. It
+	// matters for germanium; silicon devices leave it 0.
+	Icbo float64
+	// LeakDoubling is the temperature rise, K, over which Icbo doubles
+	// (about 10 K for germanium: common practice).
+	LeakDoubling float64
+	Eg           float64 // band gap for Is(T), eV; 0 keeps Is fixed
+	XTI          float64 // saturation-current temperature exponent
+}
+
+// BJT is a bipolar transistor at a fixed temperature, as a two-port with
+// common emitter: port 0 is base–emitter (current Ib into the base), port 1
+// collector–emitter (current Ic into the collector). The emitter current is
+// −(Ib + Ic).
+//
+// Currents follow the Ebers–Moll transport form (Ebers & Moll, "Large-signal
+// behavior of junction transistors", Proc. IRE 42(12), 1954; transport
+// version as in Getreu, "Modeling the Bipolar Transistor", Tektronix 1976,
+// eqs. 2.10–2.11):
+//
+//	Ic = Is·(exp(Vbe/Vt) − exp(Vbc/Vt)) − (Is/βR)·(exp(Vbc/Vt) − 1)
+//	Ib = (Is/βF)·(exp(Vbe/Vt) − 1) + (Is/βR)·(exp(Vbc/Vt) − 1)
+//
+// A PNP device uses the same equations with every junction voltage and
+// terminal current negated. Germanium leakage adds a collector–base current
+// Il = Icbo(T)·(1 − exp(Vbc/Vt)) (continued linearly, −Icbo·Vbc/Vt, for a
+// forward-biased collector junction), which saturates at Icbo under reverse
+// bias and vanishes at Vbc = 0; it flows into the collector and out of the
+// base, so with the base open it is multiplied by βF + 1, as real leakage is.
+type BJT struct {
+	pnp              bool
+	is, bf, br, vt   float64
+	icbo             float64
+	vcritBE, vcritBC float64
+}
+
+// NewBJT returns the transistor of parameters p at temperature t (kelvin).
+func NewBJT(p BJTParams, t float64) *BJT {
+	vt := ThermalVoltage(t)
+	is := SaturationCurrentAt(p.Is, 1, p.Eg, p.XTI, t, NominalTemperature)
+	b := &BJT{pnp: p.PNP, is: is, bf: p.BetaF, br: p.BetaR, vt: vt,
+		icbo: LeakageAt(p.Icbo, p.LeakDoubling, t, NominalTemperature)}
+	b.vcritBE = criticalVoltage(vt, is/p.BetaF)
+	b.vcritBC = criticalVoltage(vt, is/p.BetaR)
+	return b
+}
+
+// Ports is 2: (base, emitter) and (collector, emitter).
+func (b *BJT) Ports() int { return 2 }
+
+// PNP reports whether the device is a PNP transistor.
+func (b *BJT) PNP() bool { return b.pnp }
+
+// Currents returns Ib and Ic for the given Vbe and Vce (terminal voltages,
+// for either polarity).
+func (b *BJT) Currents(vbe, vce float64) (ib, ic float64) {
+	var v, i [2]float64
+	var j [4]float64
+	v[0], v[1] = vbe, vce
+	b.Eval(v[:], i[:], j[:])
+	return i[0], i[1]
+}
+
+// Eval implements Nonlinear.
+func (b *BJT) Eval(v, i, jac []float64) {
+	vbe, vce := v[0], v[1]
+	if b.pnp {
+		vbe, vce = -vbe, -vce
+	}
+	vbc := vbe - vce
+	ef, def := limexp(vbe / b.vt)
+	er, der := limexp(vbc / b.vt)
+	def /= b.vt
+	der /= b.vt
+	is := b.is
+	ic := is*(ef-er) - is/b.br*(er-1)
+	ib := is/b.bf*(ef-1) + is/b.br*(er-1)
+	// Derivatives with respect to vbe and vbc.
+	dicBE := is * def
+	dicBC := -is*der - is/b.br*der
+	dibBE := is / b.bf * def
+	dibBC := is / b.br * der
+	if b.icbo != 0 {
+		var il, dil float64
+		if vbc <= 0 {
+			il = b.icbo * (1 - er)
+			dil = -b.icbo * der
+		} else {
+			il = -b.icbo * vbc / b.vt
+			dil = -b.icbo / b.vt
+		}
+		ic += il
+		ib -= il
+		dicBC += dil
+		dibBC -= dil
+	}
+	// Chain rule to (vbe, vce): vbc = vbe − vce.
+	jac[0] = dibBE + dibBC // dIb/dVbe
+	jac[1] = -dibBC        // dIb/dVce
+	jac[2] = dicBE + dicBC // dIc/dVbe
+	jac[3] = -dicBC        // dIc/dVce
+	if b.pnp {
+		// i(v) = −f(−v): the Jacobian is f'(−v), unchanged.
+		ib, ic = -ib, -ic
+	}
+	i[0], i[1] = ib, ic
+}
+
+// Limit implements Nonlinear: junction limiting on Vbe and Vbc.
+func (b *BJT) Limit(vnew, vold []float64) {
+	s := 1.0
+	if b.pnp {
+		s = -1
+	}
+	be0, be1 := s*vold[0], s*vnew[0]
+	bc0, bc1 := s*(vold[0]-vold[1]), s*(vnew[0]-vnew[1])
+	be := pnjlim(be1, be0, b.vt, b.vcritBE)
+	bc := pnjlim(bc1, bc0, b.vt, b.vcritBC)
+	vnew[0] = s * be
+	vnew[1] = s * (be - bc)
+}

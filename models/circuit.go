@@ -1,0 +1,244 @@
+package models
+
+import (
+	"fmt"
+	"sort"
+)
+
+// Kind is the kind of a flat-circuit element.
+type Kind int
+
+// Element kinds. Pots and trimmers are flattened to resistors; a diode's
+// series resistance to a resistor and an internal node.
+const (
+	ResistorKind Kind = iota
+	CapacitorKind
+	InductorKind
+	VoltageSourceKind // ideal: Nodes[0] is +, Nodes[1] is −
+	DiodeKind         // Nodes: anode, cathode
+	BJTKind           // Nodes: collector, base, emitter
+	BufferKind        // ideal unity-gain buffer: V(Nodes[0]) = V(Nodes[1]), input draws no current
+)
+
+var kindNames = [...]string{"resistor", "capacitor", "inductor", "voltage source", "diode", "transistor", "buffer"}
+
+func (k Kind) String() string {
+	if int(k) < len(kindNames) {
+		return kindNames[k]
+	}
+	return "element"
+}
+
+// Ground is the index of the reference node "gnd" in every Circuit.
+const Ground = 0
+
+// Element is one part of a flat circuit. Value is in SI units: ohms, farads,
+// henries, or the DC volts of a source.
+type Element struct {
+	Ref   string // the chain's name for it, e.g. "fuzz.R3"
+	Kind  Kind
+	Nodes []int
+	Value float64
+	// Signal marks the voltage source that carries the chain's input: its
+	// voltage is Value plus the signal sample.
+	Signal bool
+	Diode  DiodeParams
+	BJT    BJTParams
+}
+
+// Circuit is a flat circuit: plain data that every analysis reads. Node 0
+// is ground. Temperature is in kelvin.
+type Circuit struct {
+	Name        string
+	Nodes       []string
+	Elements    []Element
+	Temperature float64
+	Output      int // node index of the chain's output
+	Input       int // node index the signal source drives
+}
+
+// NewCircuit returns an empty circuit holding only the ground node.
+func NewCircuit(name string, temperature float64) *Circuit {
+	return &Circuit{Name: name, Nodes: []string{"gnd"}, Temperature: temperature}
+}
+
+// Node returns the index of the named node, adding it if new.
+func (c *Circuit) Node(name string) int {
+	for i, n := range c.Nodes {
+		if n == name {
+			return i
+		}
+	}
+	c.Nodes = append(c.Nodes, name)
+	return len(c.Nodes) - 1
+}
+
+// Lookup returns the index of the named node, or −1.
+func (c *Circuit) Lookup(name string) int {
+	for i, n := range c.Nodes {
+		if n == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// Add appends an element and returns its index.
+func (c *Circuit) Add(e Element) int {
+	c.Elements = append(c.Elements, e)
+	return len(c.Elements) - 1
+}
+
+// Element returns the element of the given ref, or nil.
+func (c *Circuit) Element(ref string) *Element {
+	for i := range c.Elements {
+		if c.Elements[i].Ref == ref {
+			return &c.Elements[i]
+		}
+	}
+	return nil
+}
+
+// Clone returns a deep copy, so a variant can be changed without touching c.
+func (c *Circuit) Clone() *Circuit {
+	d := *c
+	d.Nodes = append([]string(nil), c.Nodes...)
+	d.Elements = make([]Element, len(c.Elements))
+	for i, e := range c.Elements {
+		e.Nodes = append([]int(nil), e.Nodes...)
+		d.Elements[i] = e
+	}
+	return &d
+}
+
+// Port is one port of a nonlinear device: current flows into Plus and out of
+// Minus, the port voltage is V(Plus) − V(Minus).
+type Port struct{ Plus, Minus int }
+
+// DeviceInstance is a nonlinear element of a circuit, evaluated at the
+// circuit's temperature, with its ports located in the node list.
+type DeviceInstance struct {
+	Element int // index into Circuit.Elements
+	Ref     string
+	Model   Nonlinear
+	Ports   []Port
+}
+
+// Devices returns the circuit's nonlinear devices in element order.
+func (c *Circuit) Devices() []DeviceInstance {
+	var out []DeviceInstance
+	for k, e := range c.Elements {
+		switch e.Kind {
+		case DiodeKind:
+			out = append(out, DeviceInstance{Element: k, Ref: e.Ref, Model: NewDiode(e.Diode, c.Temperature),
+				Ports: []Port{{e.Nodes[0], e.Nodes[1]}}})
+		case BJTKind:
+			col, base, em := e.Nodes[0], e.Nodes[1], e.Nodes[2]
+			out = append(out, DeviceInstance{Element: k, Ref: e.Ref, Model: NewBJT(e.BJT, c.Temperature),
+				Ports: []Port{{base, em}, {col, em}}})
+		}
+	}
+	return out
+}
+
+// CircuitError reports a circuit that no analysis can solve, naming the
+// node or part at fault.
+type CircuitError struct {
+	What   string // node or part ref
+	Reason string
+}
+
+func (e *CircuitError) Error() string { return e.What + ": " + e.Reason }
+
+// Check verifies that the circuit is solvable: element values positive and
+// finite, no element with both ends on one node, every node with a DC path
+// to ground (a node reached only through capacitors floats), and no loop of
+// ideal voltage sources and inductors (a short across a source at DC).
+func (c *Circuit) Check() error {
+	n := len(c.Nodes)
+	conduct := newUnion(n) // DC-conducting connectivity
+	vloop := newUnion(n)   // voltage-source/inductor connectivity
+	for _, e := range c.Elements {
+		for _, nd := range e.Nodes {
+			if nd < 0 || nd >= n {
+				return &CircuitError{e.Ref, "pin on an unknown node"}
+			}
+		}
+		switch e.Kind {
+		case ResistorKind, CapacitorKind, InductorKind:
+			if !(e.Value > 0) || e.Value > 1e15 {
+				return &CircuitError{e.Ref, fmt.Sprintf("%s value %g must be positive and finite", e.Kind, e.Value)}
+			}
+			if e.Nodes[0] == e.Nodes[1] {
+				return &CircuitError{e.Ref, "both pins on node " + c.Nodes[e.Nodes[0]]}
+			}
+		case VoltageSourceKind, BufferKind:
+			if e.Nodes[0] == e.Nodes[1] {
+				return &CircuitError{e.Ref, "both terminals on node " + c.Nodes[e.Nodes[0]]}
+			}
+		case DiodeKind:
+			if !(e.Diode.Is > 0) || !(e.Diode.N > 0) {
+				return &CircuitError{e.Ref, "diode needs is > 0 and n > 0"}
+			}
+		case BJTKind:
+			p := e.BJT
+			if !(p.Is > 0) || !(p.BetaF > 0) || !(p.BetaR > 0) || p.Icbo < 0 {
+				return &CircuitError{e.Ref, "transistor needs is, hfe and br > 0 (and icbo ≥ 0)"}
+			}
+		}
+		switch e.Kind {
+		case ResistorKind, InductorKind, VoltageSourceKind, DiodeKind:
+			conduct.join(e.Nodes[0], e.Nodes[1])
+		case BJTKind:
+			conduct.join(e.Nodes[0], e.Nodes[1])
+			conduct.join(e.Nodes[1], e.Nodes[2])
+		case BufferKind:
+			conduct.join(e.Nodes[0], Ground) // the buffer's output is driven from ground
+		}
+		if e.Kind == VoltageSourceKind || e.Kind == InductorKind || e.Kind == BufferKind {
+			a, b := e.Nodes[0], e.Nodes[1]
+			if e.Kind == BufferKind {
+				b = Ground
+			}
+			if vloop.find(a) == vloop.find(b) {
+				what := "short across a source"
+				if e.Kind == InductorKind {
+					what = "inductor closes a loop of sources and inductors (a short at DC)"
+				}
+				return &CircuitError{e.Ref, what + " between " + c.Nodes[a] + " and " + c.Nodes[b]}
+			}
+			vloop.join(a, b)
+		}
+	}
+	var floating []string
+	for i := 1; i < n; i++ {
+		if conduct.find(i) != conduct.find(Ground) {
+			floating = append(floating, c.Nodes[i])
+		}
+	}
+	if len(floating) > 0 {
+		sort.Strings(floating)
+		return &CircuitError{"node " + floating[0], "has no DC path to ground (only capacitors reach it)"}
+	}
+	return nil
+}
+
+type union []int
+
+func newUnion(n int) union {
+	u := make(union, n)
+	for i := range u {
+		u[i] = i
+	}
+	return u
+}
+
+func (u union) find(i int) int {
+	for u[i] != i {
+		u[i] = u[u[i]]
+		i = u[i]
+	}
+	return i
+}
+
+func (u union) join(a, b int) { u[u.find(a)] = u.find(b) }

@@ -1,0 +1,58 @@
+package models
+
+import "math"
+
+// Nonlinear is a nonlinear multi-port device as the solvers see it: P ports,
+// each a pair of terminals with a port voltage and a port current flowing
+// into the port's positive terminal. Eval must be cheap and allocation-free;
+// the solvers call it in their Newton loops.
+type Nonlinear interface {
+	// Ports returns the number of ports P.
+	Ports() int
+	// Eval writes the port currents i (len P) and the Jacobian di/dv
+	// (row-major P×P) for the port voltages v (len P).
+	Eval(v, i, jac []float64)
+	// Limit restrains a Newton step from vold to vnew (both len P) in place,
+	// so that exponentials are not overshot.
+	Limit(vnew, vold []float64)
+}
+
+// expLimit is the point past which exponentials are continued linearly.
+// exp(80) ≈ 5.5e34: no junction in a working circuit gets near (80·Vt ≈ 2 V
+// across an ideal junction), and the linear continuation keeps Newton's
+// intermediate iterates finite (the "limexp" device of circuit simulators).
+const expLimit = 80.0
+
+// limexp returns exp(x) and its derivative, continued linearly past expLimit.
+func limexp(x float64) (e, de float64) {
+	if x > expLimit {
+		e0 := math.Exp(expLimit)
+		return e0 * (1 + x - expLimit), e0
+	}
+	e = math.Exp(x)
+	return e, e
+}
+
+// pnjlim limits the change of a junction voltage between Newton iterates, as
+// in SPICE's junction limiting (Nagel, "SPICE2", UCB ERL-M520, 1975, sec. 4.3;
+// the same rule is in SPICE3's DEVpnjlim): above the critical voltage
+// vcrit = nVt·ln(nVt/(√2·Is)) a step larger than 2·nVt is replaced by the
+// logarithm of the step, so the diode current rather than the voltage moves
+// by the linearised amount.
+func pnjlim(vnew, vold, nvt, vcrit float64) float64 {
+	if vnew > vcrit && math.Abs(vnew-vold) > 2*nvt {
+		if vold > 0 {
+			arg := 1 + (vnew-vold)/nvt
+			if arg > 0 {
+				return vold + nvt*math.Log(arg)
+			}
+			return vcrit
+		}
+		return nvt * math.Log(vnew/nvt)
+	}
+	return vnew
+}
+
+func criticalVoltage(nvt, is float64) float64 {
+	return nvt * math.Log(nvt/(math.Sqrt2*is))
+}

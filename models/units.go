@@ -1,0 +1,228 @@
+package models
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+	"unicode"
+	"unicode/utf8"
+)
+
+// Quantity names the physical quantity a value string must denote. It picks
+// the unit symbols that are accepted and the wording of errors.
+type Quantity int
+
+// The quantities a chain file can hold.
+const (
+	Dimensionless Quantity = iota
+	Resistance
+	Capacitance
+	Inductance
+	Voltage
+	Current
+	Temperature // parsed to kelvin; "25C", "25°C", "298.15K"
+	Frequency
+	Length
+)
+
+var quantityNames = [...]string{
+	Dimensionless: "number",
+	Resistance:    "resistance",
+	Capacitance:   "capacitance",
+	Inductance:    "inductance",
+	Voltage:       "voltage",
+	Current:       "current",
+	Temperature:   "temperature",
+	Frequency:     "frequency",
+	Length:        "length",
+}
+
+func (q Quantity) String() string {
+	if int(q) < len(quantityNames) {
+		return quantityNames[q]
+	}
+	return "quantity"
+}
+
+// article returns "a" or "an" for the quantity's name.
+func (q Quantity) article() string {
+	if strings.ContainsRune("aeiou", rune(q.String()[0])) {
+		return "an"
+	}
+	return "a"
+}
+
+// units lists, per quantity, the unit spellings accepted after the number
+// and prefix. Matching is exact (case matters: "F" farad, "f" femto).
+var units = map[Quantity][]string{
+	Resistance:  {"Ω", "ohm", "ohms", "Ohm", "R"},
+	Capacitance: {"F"},
+	Inductance:  {"H"},
+	Voltage:     {"V"},
+	Current:     {"A"},
+	Temperature: {"°C", "C", "K"},
+	Frequency:   {"Hz"},
+	Length:      {"m"},
+}
+
+// prefixes are the SI prefixes (BIPM SI Brochure, 9th ed., table 7) that a
+// value may carry. "M" is mega and "m" is milli; "u" stands for micro.
+var prefixes = map[rune]float64{
+	'f': 1e-15, 'p': 1e-12, 'n': 1e-9, 'u': 1e-6, 'µ': 1e-6, 'μ': 1e-6,
+	'm': 1e-3, 'k': 1e3, 'K': 1e3, 'M': 1e6, 'G': 1e9,
+}
+
+// ValueError reports a value string that does not denote the wanted quantity.
+type ValueError struct {
+	Text     string
+	Quantity Quantity
+	Reason   string
+}
+
+func (e *ValueError) Error() string {
+	msg := fmt.Sprintf("value %q is not %s %s", e.Text, e.Quantity.article(), e.Quantity)
+	if e.Reason != "" {
+		msg += " (" + e.Reason + ")"
+	}
+	return msg
+}
+
+// ParseValue reads a value written in engineering notation and returns it in
+// SI units (temperatures in kelvin). Accepted forms:
+//
+//	22000  22e3  22k  22kΩ  22 kohm   SI prefix, optional unit
+//	4k7  2n2  2M2  4R7  100R          IEC 60062 letter-as-decimal-point codes
+//	-9V  300mV  25C  25°C  298.15K    signed values and units
+//
+// Plain numbers are SI units. A unit that belongs to another quantity, a
+// doubled prefix ("22kk") or trailing text is an error.
+func ParseValue(text string, q Quantity) (float64, error) {
+	s := strings.TrimSpace(text)
+	bad := func(reason string) (float64, error) {
+		return 0, &ValueError{Text: text, Quantity: q, Reason: reason}
+	}
+	if s == "" {
+		return bad("empty")
+	}
+	// Leading number: sign, digits, optional fraction and exponent.
+	i := 0
+	if s[0] == '+' || s[0] == '-' {
+		i++
+	}
+	digitsStart := i
+	for i < len(s) && (s[i] >= '0' && s[i] <= '9' || s[i] == '.') {
+		i++
+	}
+	if i == digitsStart {
+		return bad("no number")
+	}
+	// Exponent only when followed by a digit or sign+digit, so "2e" is not eaten.
+	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
+		j := i + 1
+		if j < len(s) && (s[j] == '+' || s[j] == '-') {
+			j++
+		}
+		if j < len(s) && s[j] >= '0' && s[j] <= '9' {
+			for j < len(s) && s[j] >= '0' && s[j] <= '9' {
+				j++
+			}
+			i = j
+		}
+	}
+	num := s[:i]
+	rest := strings.TrimLeftFunc(s[i:], unicode.IsSpace)
+	scale := 1.0
+	// Prefix, possibly used as the decimal point (IEC 60062): 4k7, 2n2, 4R7.
+	if rest != "" {
+		r, size := utf8.DecodeRuneInString(rest)
+		p, isPrefix := prefixes[r]
+		if q == Temperature && (r == 'K' || r == 'C') {
+			isPrefix = false // "K" is kelvin and "C" is celsius here
+		}
+		if r == 'R' && q == Resistance {
+			p, isPrefix = 1, true
+		}
+		// "m" alone after a length is the metre, not milli.
+		if q == Length && r == 'm' && len(rest) == 1 {
+			isPrefix = false
+		}
+		if isPrefix {
+			after := rest[size:]
+			k := 0
+			for k < len(after) && after[k] >= '0' && after[k] <= '9' {
+				k++
+			}
+			if k > 0 {
+				if strings.Contains(num, ".") || strings.ContainsAny(num, "eE") {
+					return bad("letter-as-decimal code after a decimal point")
+				}
+				num += "." + after[:k]
+			}
+			if r == 'R' && k == 0 && after != "" {
+				return bad("unexpected text after R")
+			}
+			scale = p
+			rest = strings.TrimLeftFunc(after[k:], unicode.IsSpace)
+			if r == 'R' {
+				rest = "" // R is both the decimal mark and the unit
+				if after[k:] != "" {
+					return bad("unexpected text after R")
+				}
+			}
+		}
+	}
+	v, err := strconv.ParseFloat(num, 64)
+	if err != nil {
+		return bad("malformed number")
+	}
+	if rest != "" && !matchUnit(rest, q) {
+		if _, isPrefix := prefixes[[]rune(rest)[0]]; isPrefix {
+			return bad("more than one prefix or an unknown unit")
+		}
+		return bad(fmt.Sprintf("unit %q", rest))
+	}
+	v *= scale
+	if q == Temperature && !strings.HasSuffix(rest, "K") {
+		v += 273.15 // celsius (default for a bare number, as written in a chain file)
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return bad("not finite")
+	}
+	return v, nil
+}
+
+func matchUnit(u string, q Quantity) bool {
+	for _, s := range units[q] {
+		if u == s {
+			return true
+		}
+	}
+	return false
+}
+
+// FormatValue writes v in engineering notation with up to four significant
+// digits and the unit symbol, e.g. FormatValue(4700, "Ω") = "4.7 kΩ".
+func FormatValue(v float64, unit string) string {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return strings.TrimSpace(strconv.FormatFloat(v, 'g', 4, 64) + " " + unit)
+	}
+	type pf struct {
+		p string
+		s float64
+	}
+	table := []pf{{"G", 1e9}, {"M", 1e6}, {"k", 1e3}, {"", 1}, {"m", 1e-3}, {"µ", 1e-6}, {"n", 1e-9}, {"p", 1e-12}, {"f", 1e-15}}
+	a := math.Abs(v)
+	chosen := table[len(table)-1]
+	for _, t := range table {
+		if a >= t.s*0.99995 {
+			chosen = t
+			break
+		}
+	}
+	num := strconv.FormatFloat(v/chosen.s, 'g', 4, 64)
+	if strings.ContainsAny(num, "e") {
+		num = strconv.FormatFloat(v/chosen.s, 'f', 1, 64)
+	}
+	return num + " " + chosen.p + unit
+}
