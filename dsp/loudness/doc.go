@@ -79,13 +79,12 @@
 //
 //   - ITU-R Recommendation BS.1770-4 (10/2015), Algorithms to measure audio
 //     programme loudness and true-peak audio level.
-//   - EBU Tech 3341 (v3, 2016), Loudness metering: "EBU Mode" metering to
+//   - EBU Tech 3341 (2016), Loudness metering: "EBU Mode" metering to
 //     supplement EBU R 128 loudness normalization.
-//   - EBU Tech 3342 (v3, 2016), Loudness range: a measure to supplement
+//   - EBU Tech 3342 (2016), Loudness range: a measure to supplement
 //     EBU R 128 loudness normalization.
 //   - A. V. Oppenheim, R. W. Schafer, Discrete-Time Signal Processing, 3rd
-//     ed., Pearson, 2010: §7.1 (bilinear transformation), §7.5 (Kaiser
-//     window).
+//     ed., Pearson, 2010, ch. 7 (bilinear transformation, Kaiser window).
 //   - J. F. Kaiser, "Nonrecursive digital filter design using the I0-sinh
 //     window function," Proc. IEEE ISCAS, 1974.
 //

@@ -78,8 +78,8 @@ func TestKWeightingPrototypeParameters(t *testing.T) {
 	}
 }
 
-// BS.1770-4 §2.1 (from memory): the −0.691 dB constant of eq. (2) cancels
-// the K-weighting gain at 997 Hz. Tolerance 0.0005 dB: the constant is
+// BS.1770-4 Annex 1 (from memory): the −0.691 dB constant of the loudness
+// formula cancels the K-weighting gain at 997 Hz. Tolerance 0.0005 dB: the constant is
 // given to three decimals.
 func TestKWeightingGainAt997Hz(t *testing.T) {
 	g := kResponse(48000, 997)

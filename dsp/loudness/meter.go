@@ -19,8 +19,8 @@ const (
 const MaxChannels = 32
 
 const (
-	offsetLU       = -0.691 // BS.1770-4 eq. (2): cancels the K-weighting gain at 997 Hz
-	absoluteGate   = -70.0  // LUFS, BS.1770-4 §2.8 and EBU Tech 3342
+	offsetLU       = -0.691 // BS.1770-4 Annex 1: cancels the K-weighting gain at 997 Hz
+	absoluteGate   = -70.0  // LUFS, BS.1770-4 Annex 1 and EBU Tech 3342
 	relativeGateI  = -10.0  // LU below the absolute-gated level, integrated loudness
 	relativeGateLR = -20.0  // LU below the absolute-gated level, loudness range
 	lraLow, lraHi  = 0.10, 0.95
@@ -239,7 +239,7 @@ func (m *Meter) power(i, j int) float64 {
 	return s / float64(m.edge(int64(j))-m.edge(int64(i)))
 }
 
-// lufs converts a weighted mean-square power to loudness, BS.1770-4 eq. (2).
+// lufs converts a weighted mean-square power to loudness, BS.1770-4 Annex 1.
 // It returns -Inf for z = 0.
 func lufs(z float64) float64 {
 	if z <= 0 {
@@ -258,7 +258,7 @@ func (m *Meter) Err() error {
 }
 
 // Integrated returns the gated loudness of everything written so far, in
-// LUFS (BS.1770-4 §2.8): 400 ms blocks with 75 % overlap, an absolute gate
+// LUFS (BS.1770-4 Annex 1): 400 ms blocks with 75 % overlap, an absolute gate
 // at −70 LUFS, then a relative gate 10 LU below the loudness of the blocks
 // that passed the first. It returns -Inf when no block passes (silence, or
 // less than 400 ms written). Only complete 100 ms sub-blocks count.

@@ -207,12 +207,13 @@ func (l *LTAS) Bands() []Band {
 }
 
 // Centroid returns the spectral centroid Σ f_k·P_k / Σ P_k in Hz over
-// bins 1..N/2 (DC excluded, so an offset does not pull it down). It is
-// NaN before the first frame or for silence.
+// bins 2..N/2. Bins 0 and 1 are left out: the periodic Hann window puts a
+// DC offset exactly there, so an offset does not pull the centroid down.
+// It is NaN before the first frame or for silence.
 func (l *LTAS) Centroid() float64 {
 	df := l.BinWidth()
 	var num, den float64
-	for k := 1; k < len(l.acc); k++ {
+	for k := 2; k < len(l.acc); k++ {
 		p := oneSidedWeight(k, l.n) * l.acc[k]
 		num += float64(k) * df * p
 		den += p

@@ -35,10 +35,10 @@
 //     "fact" chunks, PCM sample layout (8-bit unsigned, wider signed
 //     little-endian).
 //   - Microsoft Corporation, "Multiple Channel Audio Data and WAVE Files"
-//     (WAVEFORMATEXTENSIBLE), 2001, and the KSDATAFORMAT_SUBTYPE_PCM and
-//     KSDATAFORMAT_SUBTYPE_IEEE_FLOAT GUIDs in ksmedia.h: the 40-byte fmt
-//     chunk, valid bits, channel mask, and when the extensible form should
-//     be used.
+//     (WAVEFORMATEXTENSIBLE), 2001: the 40-byte fmt chunk, valid bits,
+//     channel mask, the KSDATAFORMAT_SUBTYPE_PCM and
+//     KSDATAFORMAT_SUBTYPE_IEEE_FLOAT sub-format GUIDs, and when the
+//     extensible form should be used.
 //   - IEEE 754-2008, binary32 and binary64 interchange formats, for float
 //     samples.
 //   - P. Kabal, "Audio File Format Specifications: WAVE", McGill University

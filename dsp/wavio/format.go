@@ -19,8 +19,8 @@ const (
 	MaxChannels   = 8
 )
 
-// Format tags (wFormatTag) from the Microsoft RIFF/WAVE specification and
-// mmreg.h. Only PCM, IEEE float and EXTENSIBLE are decoded; the others are
+// Format tags (wFormatTag) as registered for RIFF/WAVE (values from
+// memory for the ones only named in errors). Only PCM, IEEE float and EXTENSIBLE are decoded; the others are
 // named only so that errors can say what was found.
 const (
 	tagPCM        = 0x0001

@@ -301,7 +301,7 @@ func (d *Reader) Read(dst []float64) (int, error) {
 		k, bad, badVal := d.decode(dst[n*ch:(n+got)*ch], b[:got*d.bpf])
 		if k < got {
 			d.err = &SampleError{Frame: d.frame + int64(k), Channel: bad, Value: badVal,
-				Reason: fmt.Sprintf("%d-bit float data", d.f.BitDepth)}
+				Reason: fmt.Sprintf("in %d-bit float data", d.f.BitDepth)}
 			d.frame += int64(k)
 			return (n + k) * ch, d.err
 		}

@@ -1,0 +1,156 @@
+package chains
+
+import (
+	"fmt"
+
+	"renderchain/models"
+)
+
+// Build flattens the chain into one circuit: stage k's out is stage k+1's
+// in (one node, so every stage loads the one before it), the signal source
+// drives "in", the supply is an ideal source on "v+", and the output load
+// hangs on "out". A stage with buffer = true is fed through an ideal
+// unity-gain buffer instead. A stage whose parts never use "out" is a shunt
+// stage: its out is its in.
+func (ch *Chain) Build() (*models.Circuit, error) {
+	c := models.NewCircuit(ch.Name, ch.Temperature)
+	in := c.Node("in")
+	vplus := c.Node("v+")
+	c.Input = in
+	c.Add(models.Element{Ref: "input.source", Kind: models.VoltageSourceKind, Nodes: []int{in, models.Ground}, Signal: true})
+	c.Add(models.Element{Ref: "supply", Kind: models.VoltageSourceKind, Nodes: []int{vplus, models.Ground}, Value: ch.Supply})
+	prev := "in"
+	for k, st := range ch.Stages {
+		last := k == len(ch.Stages)-1
+		stageIn := prev
+		if st.Buffer {
+			stageIn = st.ID + ".in"
+			c.Add(models.Element{Ref: st.ID + ".buffer", Kind: models.BufferKind, Nodes: []int{c.Node(stageIn), c.Node(prev)}})
+		}
+		stageOut := st.ID + ".out"
+		if last {
+			stageOut = "out"
+		}
+		if !st.usesPin("out") {
+			stageOut = stageIn
+		}
+		node := func(name string) int {
+			switch name {
+			case "gnd":
+				return models.Ground
+			case "v+":
+				return vplus
+			case "in":
+				return c.Node(stageIn)
+			case "out":
+				return c.Node(stageOut)
+			}
+			return c.Node(st.ID + "." + name)
+		}
+		for _, p := range st.Parts {
+			if err := ch.addPart(c, st, p, node); err != nil {
+				return nil, err
+			}
+		}
+		prev = stageOut
+	}
+	out := c.Lookup("out")
+	if out < 0 {
+		// The last stage is a shunt stage: its in is the chain's output.
+		out = c.Node(prev)
+	}
+	c.Output = out
+	if ch.Load > 0 {
+		c.Add(models.Element{Ref: "output.load", Kind: models.ResistorKind, Nodes: []int{out, models.Ground}, Value: ch.Load})
+	}
+	if err := c.Check(); err != nil {
+		return nil, &Error{File: ch.File, Msg: err.Error()}
+	}
+	return c, nil
+}
+
+func (st *Stage) usesPin(name string) bool {
+	for _, p := range st.Parts {
+		for _, n := range p.Pins {
+			if n == name {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+func (ch *Chain) addPart(c *models.Circuit, st *Stage, p *Part, node func(string) int) error {
+	ref := st.ID + "." + p.Ref
+	two := func(kind models.Kind, v float64) {
+		c.Add(models.Element{Ref: ref, Kind: kind, Nodes: []int{node(p.Pins["1"]), node(p.Pins["2"])}, Value: v})
+	}
+	switch p.Kind {
+	case "resistor":
+		two(models.ResistorKind, p.Value)
+	case "capacitor":
+		two(models.CapacitorKind, p.Value)
+	case "cable":
+		two(models.CapacitorKind, p.Value*p.PerMetre)
+	case "inductor":
+		two(models.InductorKind, p.Value)
+	case "pot":
+		x := st.Knobs[p.Knob]
+		lower, upper := models.PotSections(p.Value, p.Taper, x)
+		ccw, wiper := node(p.Pins["ccw"]), node(p.Pins["wiper"])
+		// A section whose ends are wired together (a wiper tied to an end,
+		// common practice for a rheostat) carries no current: leave it out.
+		if ccw != wiper {
+			c.Add(models.Element{Ref: ref + ".ccw", Kind: models.ResistorKind, Nodes: []int{ccw, wiper}, Value: lower})
+		}
+		if cwName, ok := p.Pins["cw"]; ok {
+			if cw := node(cwName); cw != wiper {
+				c.Add(models.Element{Ref: ref + ".cw", Kind: models.ResistorKind, Nodes: []int{wiper, cw}, Value: upper})
+			}
+		}
+	case "diode":
+		dp := p.DiodeParams()
+		a, k := node(p.Pins["anode"]), node(p.Pins["cathode"])
+		if dp.Rs > 0 {
+			j := c.Node(ref + ".junction")
+			c.Add(models.Element{Ref: ref + ".rs", Kind: models.ResistorKind, Nodes: []int{a, j}, Value: dp.Rs})
+			a = j
+		}
+		c.Add(models.Element{Ref: ref, Kind: models.DiodeKind, Nodes: []int{a, k}, Diode: dp})
+	case "npn", "pnp":
+		c.Add(models.Element{Ref: ref, Kind: models.BJTKind,
+			Nodes: []int{node(p.Pins["c"]), node(p.Pins["b"]), node(p.Pins["e"])}, BJT: p.BJTParams()})
+	default:
+		return &Error{File: ch.File, Where: "part " + ref, Msg: fmt.Sprintf("kind %q cannot be built", p.Kind)}
+	}
+	return nil
+}
+
+// Stage returns the stage of the given id, or nil.
+func (ch *Chain) Stage(id string) *Stage {
+	for _, st := range ch.Stages {
+		if st.ID == id {
+			return st
+		}
+	}
+	return nil
+}
+
+// Clone returns a deep copy of the chain, for variants.
+func (ch *Chain) Clone() *Chain {
+	d := *ch
+	d.Stages = nil
+	for _, st := range ch.Stages {
+		s := *st
+		s.Knobs = map[string]float64{}
+		for k, v := range st.Knobs {
+			s.Knobs[k] = v
+		}
+		s.Parts = nil
+		for _, p := range st.Parts {
+			s.Parts = append(s.Parts, clonePart(p))
+		}
+		d.Stages = append(d.Stages, &s)
+	}
+	return &d
+}

@@ -1,0 +1,692 @@
+package chains
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+
+	"renderchain/models"
+)
+
+// Chain is a parsed, checked chain file: what drives the chain, the stages
+// in order and what loads the output. Values are in SI units.
+type Chain struct {
+	Name        string
+	File        string  // the file name used in messages
+	Supply      float64 // volts on v+ relative to gnd (negative: positive ground)
+	Temperature float64 // kelvin
+	Oversample  int     // 0: the caller's default
+	InputPeak   float64 // source volts at digital full scale
+	Source      string  // "ideal" or "pickup"
+	Load        float64 // Ω from out to gnd; 0 for none
+	FullScale   float64 // output volts written as 0 dBFS
+	Stages      []*Stage
+	loc         *locator
+}
+
+// Stage is one stage of a chain, its parts resolved (template expanded and
+// overrides applied).
+type Stage struct {
+	ID, Template, About string
+	Buffer              bool
+	Knobs               map[string]float64 // rotation 0..1
+	KnobAbout           map[string]string
+	Parts               []*Part
+	index               int // position among [[stage]] tables, −1 if implicit
+}
+
+// Part is one component of a stage.
+type Part struct {
+	Ref, Kind string
+	Value     float64 // Ω, F, H; a cable's length in metres
+	Text      string  // the value as written
+	Taper     models.Taper
+	Knob      string
+	Pins      map[string]string // pin role → node name ("1", "2" for two-terminal parts)
+	Model     string
+	Params    map[string]float64
+	PerMetre  float64 // cable capacitance per metre
+	Tolerance float64 // fraction; 0 = unspecified
+	Adjusts   string  // a trimmer's transistor, for bias targets
+	About     string
+}
+
+// Part kinds and their pins.
+var kindPins = map[string][]string{
+	"resistor":  nil,
+	"capacitor": nil,
+	"inductor":  nil,
+	"cable":     nil,
+	"pot":       {"ccw", "wiper", "cw"},
+	"diode":     {"anode", "cathode"},
+	"npn":       {"c", "b", "e"},
+	"pnp":       {"c", "b", "e"},
+}
+
+var kindQuantity = map[string]models.Quantity{
+	"resistor": models.Resistance, "pot": models.Resistance,
+	"capacitor": models.Capacitance, "inductor": models.Inductance, "cable": models.Length,
+}
+
+// Device parameters a part may carry, with their quantities.
+var deviceParams = map[string]map[string]models.Quantity{
+	"diode": {"is": models.Current, "n": models.Dimensionless, "rs": models.Resistance, "eg": models.Dimensionless, "xti": models.Dimensionless},
+	"npn": {"is": models.Current, "hfe": models.Dimensionless, "br": models.Dimensionless, "icbo": models.Current,
+		"leak_doubling": models.Dimensionless, "eg": models.Dimensionless, "xti": models.Dimensionless},
+}
+
+func init() { deviceParams["pnp"] = deviceParams["npn"] }
+
+var commonKeys = map[string]bool{"ref": true, "kind": true, "value": true, "pins": true, "tolerance": true,
+	"taper": true, "knob": true, "per_metre": true, "model": true, "adjusts": true, "about": true}
+
+type rawChain struct {
+	Name        string     `toml:"name"`
+	Supply      any        `toml:"supply"`
+	Temperature any        `toml:"temperature"`
+	Oversample  int        `toml:"oversample"`
+	Input       rawInput   `toml:"input"`
+	Output      rawOutput  `toml:"output"`
+	Stages      []rawStage `toml:"stage"`
+}
+
+type rawInput struct {
+	Peak   any    `toml:"peak"`
+	Source string `toml:"source"`
+}
+
+type rawOutput struct {
+	Load      any `toml:"load"`
+	FullScale any `toml:"full_scale"`
+}
+
+type rawStage struct {
+	ID       string           `toml:"id"`
+	Template string           `toml:"template"`
+	About    string           `toml:"about"`
+	Buffer   bool             `toml:"buffer"`
+	Knobs    map[string]any   `toml:"knobs"`
+	Values   map[string]any   `toml:"values"`
+	Parts    []map[string]any `toml:"parts"`
+}
+
+// Load reads and checks a chain file.
+func Load(path string) (*Chain, error) {
+	src, err := os.ReadFile(path)
+	if err != nil {
+		return nil, &Error{File: path, Msg: "cannot read chain file: " + errText(err)}
+	}
+	return Parse(filepath.Base(path), string(src))
+}
+
+func errText(err error) string {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err.Error()
+	}
+	return err.Error()
+}
+
+// Parse reads a chain from TOML text; name is used in messages.
+func Parse(name, src string) (*Chain, error) {
+	var raw rawChain
+	md, err := toml.Decode(src, &raw)
+	if err != nil {
+		var pe toml.ParseError
+		if errors.As(err, &pe) {
+			return nil, &Error{File: name, Line: pe.Position.Line, Msg: "TOML syntax: " + firstLine(pe.Message)}
+		}
+		return nil, &Error{File: name, Msg: "TOML: " + firstLine(err.Error())}
+	}
+	loc := newLocator(src)
+	if und := undecoded(md); len(und) > 0 {
+		k := und[0]
+		line := loc.findKey(strings.Join(k[:len(k)-1], "."), k[len(k)-1])
+		if k[0] == "stage" {
+			line = 0
+		}
+		return nil, &Error{File: name, Line: line, Msg: fmt.Sprintf("unknown key %q", k.String())}
+	}
+	ch := &Chain{Name: raw.Name, File: name, Oversample: raw.Oversample, loc: loc, Source: raw.Input.Source}
+	top := func(table, key string, v any, q models.Quantity, def string) (float64, error) {
+		if v == nil {
+			v = def
+		}
+		x, err := valueOf(v, q)
+		if err != nil {
+			where := key
+			if table != "" {
+				where = table + "." + key
+			}
+			return 0, &Error{File: name, Line: loc.findKey(table, key), Where: where, Msg: err.Error()}
+		}
+		return x, nil
+	}
+	if ch.Supply, err = top("", "supply", raw.Supply, models.Voltage, "9V"); err != nil {
+		return nil, err
+	}
+	if ch.Temperature, err = top("", "temperature", raw.Temperature, models.Temperature, "25C"); err != nil {
+		return nil, err
+	}
+	if ch.InputPeak, err = top("input", "peak", raw.Input.Peak, models.Voltage, "300mV"); err != nil {
+		return nil, err
+	}
+	if s, ok := raw.Output.Load.(string); ok && (s == "none" || s == "open") {
+		ch.Load = 0
+	} else if ch.Load, err = top("output", "load", raw.Output.Load, models.Resistance, "1M"); err != nil {
+		return nil, err
+	}
+	if ch.FullScale, err = top("output", "full_scale", raw.Output.FullScale, models.Voltage, "1V"); err != nil {
+		return nil, err
+	}
+	if err := ch.checkScalars(); err != nil {
+		return nil, err
+	}
+	switch ch.Source {
+	case "":
+		ch.Source = "ideal"
+	case "ideal":
+	case "pickup":
+		st, err := expandTemplate("pickup", "pickup", nil, nil, nil)
+		if err != nil {
+			return nil, err
+		}
+		ch.Stages = append(ch.Stages, st)
+	default:
+		return nil, &Error{File: name, Line: loc.findKey("input", "source"), Where: "input.source",
+			Msg: fmt.Sprintf("%q is not a source (ideal, pickup)", ch.Source)}
+	}
+	if len(raw.Stages) == 0 {
+		return nil, &Error{File: name, Msg: "no [[stage]] tables: a chain needs at least one stage"}
+	}
+	seen := map[string]bool{}
+	for k, rs := range raw.Stages {
+		st, err := ch.parseStage(k, rs)
+		if err != nil {
+			return nil, err
+		}
+		if seen[st.ID] {
+			return nil, &Error{File: name, Line: loc.find(k), Where: "stage " + st.ID, Msg: "duplicate stage id"}
+		}
+		seen[st.ID] = true
+		ch.Stages = append(ch.Stages, st)
+	}
+	return ch, nil
+}
+
+// undecoded returns the keys the decoder did not place, less those inside
+// free-form tables (parts, values, knobs) that are checked by hand.
+func undecoded(md toml.MetaData) []toml.Key {
+	var out []toml.Key
+	for _, k := range md.Undecoded() {
+		free := false
+		for _, part := range k {
+			free = free || part == "parts" || part == "values" || part == "knobs"
+		}
+		if !free {
+			out = append(out, k)
+		}
+	}
+	return out
+}
+
+func (ch *Chain) checkScalars() error {
+	bad := func(key, table, msg string) error {
+		return &Error{File: ch.File, Line: ch.loc.findKey(table, key), Where: strings.TrimPrefix(table+"."+key, "."), Msg: msg}
+	}
+	switch {
+	case ch.Supply == 0 || math.Abs(ch.Supply) > 60:
+		return bad("supply", "", fmt.Sprintf("%s is outside ±60 V and not 0", models.FormatValue(ch.Supply, "V")))
+	case ch.Temperature < models.ZeroCelsius-60 || ch.Temperature > models.ZeroCelsius+150:
+		return bad("temperature", "", fmt.Sprintf("%.1f °C is outside −60…150 °C", ch.Temperature-models.ZeroCelsius))
+	case !(ch.InputPeak > 0) || ch.InputPeak > 100:
+		return bad("peak", "input", "input peak must be above 0 V and at most 100 V")
+	case !(ch.FullScale > 0):
+		return bad("full_scale", "output", "full scale must be above 0 V")
+	case ch.Load < 0:
+		return bad("load", "output", "load must be positive (or \"none\")")
+	case ch.Oversample < 0 || ch.Oversample > 16:
+		return bad("oversample", "", "oversample must be 1 to 16")
+	}
+	return nil
+}
+
+func firstLine(s string) string {
+	s = strings.TrimSpace(s)
+	if i := strings.IndexByte(s, '\n'); i >= 0 {
+		s = s[:i]
+	}
+	return s
+}
+
+// valueOf turns a TOML value (string or number) into SI units.
+func valueOf(v any, q models.Quantity) (float64, error) {
+	switch x := v.(type) {
+	case string:
+		return models.ParseValue(x, q)
+	case int64:
+		if q == models.Temperature {
+			return float64(x) + models.ZeroCelsius, nil
+		}
+		return float64(x), nil
+	case float64:
+		if q == models.Temperature {
+			return x + models.ZeroCelsius, nil
+		}
+		return x, nil
+	}
+	return 0, fmt.Errorf("value %v is not %s", v, q)
+}
+
+func number(v any) (float64, bool) {
+	switch x := v.(type) {
+	case int64:
+		return float64(x), true
+	case float64:
+		return x, true
+	}
+	return 0, false
+}
+
+func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
+	where := fmt.Sprintf("stage %d", k+1)
+	if rs.ID != "" {
+		where = "stage " + rs.ID
+	}
+	fail := func(line int, msg string) error {
+		if line == 0 {
+			line = ch.loc.find(k)
+		}
+		return &Error{File: ch.File, Line: line, Where: where, Msg: msg}
+	}
+	if rs.ID == "" {
+		return nil, fail(0, "missing id")
+	}
+	if !validID(rs.ID) {
+		return nil, fail(ch.loc.find(k, "id"), fmt.Sprintf("id %q: use letters, digits, '-' and '_'", rs.ID))
+	}
+	if rs.ID == "input" || rs.ID == "output" || rs.ID == "supply" || rs.ID == "temperature" {
+		return nil, fail(ch.loc.find(k, "id"), fmt.Sprintf("id %q is reserved", rs.ID))
+	}
+	knobs := map[string]float64{}
+	for name, v := range rs.Knobs {
+		x, ok := number(v)
+		if !ok {
+			return nil, fail(ch.loc.find(k, name), fmt.Sprintf("knob %s = %v is not a number", name, v))
+		}
+		if x < 0 || x > 1 {
+			return nil, fail(ch.loc.find(k, name), fmt.Sprintf("knob %s = %g is outside 0…1 (0 fully counter-clockwise, 1 fully clockwise)", name, x))
+		}
+		knobs[name] = x
+	}
+	if rs.Template != "" {
+		if len(rs.Parts) > 0 {
+			return nil, fail(ch.loc.find(k, "parts"), "a stage takes either template or parts, not both")
+		}
+		st, err := expandTemplate(rs.Template, rs.ID, knobs, rs.Values, func(needles ...string) int { return ch.loc.find(k, needles...) })
+		if err != nil {
+			var ce *Error
+			if errors.As(err, &ce) && ce.File == "" {
+				ce.File = ch.File
+				if ce.Line == 0 {
+					ce.Line = ch.loc.find(k, "template")
+				}
+				ce.Where = strings.TrimPrefix(where+": "+ce.Where, ": ")
+			}
+			return nil, err
+		}
+		st.Buffer = rs.Buffer
+		st.index = k
+		if rs.About != "" {
+			st.About = rs.About
+		}
+		return st, nil
+	}
+	if len(rs.Values) > 0 {
+		return nil, fail(ch.loc.find(k, "values"), "values overrides a template's parts; write the value on the part instead")
+	}
+	if len(rs.Parts) == 0 {
+		return nil, fail(0, "needs a template or a parts list")
+	}
+	st := &Stage{ID: rs.ID, About: rs.About, Buffer: rs.Buffer, Knobs: knobs, KnobAbout: map[string]string{}, index: k}
+	for _, rp := range rs.Parts {
+		ref, _ := rp["ref"].(string)
+		p, err := parsePart(rp)
+		if err != nil {
+			line := ch.loc.find(k, `"`+ref+`"`)
+			return nil, fail(line, err.Error())
+		}
+		if err := st.addPart(p); err != nil {
+			return nil, fail(ch.loc.find(k, `"`+ref+`"`), err.Error())
+		}
+	}
+	if err := st.checkKnobs(); err != nil {
+		return nil, fail(ch.loc.find(k, "knobs"), err.Error())
+	}
+	return st, nil
+}
+
+func validID(s string) bool {
+	for _, r := range s {
+		if !(r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= '0' && r <= '9' || r == '-' || r == '_') {
+			return false
+		}
+	}
+	return s != ""
+}
+
+func (st *Stage) addPart(p *Part) error {
+	for _, q := range st.Parts {
+		if q.Ref == p.Ref {
+			return fmt.Errorf("part %s: duplicate ref", p.Ref)
+		}
+	}
+	st.Parts = append(st.Parts, p)
+	return nil
+}
+
+// checkKnobs verifies that every pot's knob has a setting and that every
+// knob set drives some pot.
+func (st *Stage) checkKnobs() error {
+	used := map[string]bool{}
+	for _, p := range st.Parts {
+		if p.Kind == "pot" {
+			used[p.Knob] = true
+			if _, ok := st.Knobs[p.Knob]; !ok {
+				return fmt.Errorf("part %s: knob %q has no setting (add it to knobs)", p.Ref, p.Knob)
+			}
+		}
+	}
+	for name := range st.Knobs {
+		if !used[name] {
+			return fmt.Errorf("knob %q turns no pot (known knobs: %s)", name, listOr(keys(used)))
+		}
+	}
+	return nil
+}
+
+func keys[T any](m map[string]T) []string {
+	s := make([]string, 0, len(m))
+	for k := range m {
+		s = append(s, k)
+	}
+	sort.Strings(s)
+	return s
+}
+
+func listOr(s []string) string {
+	if len(s) == 0 {
+		return "none"
+	}
+	return strings.Join(s, ", ")
+}
+
+// parsePart reads one part table.
+func parsePart(rp map[string]any) (*Part, error) {
+	ref, _ := rp["ref"].(string)
+	kind, _ := rp["kind"].(string)
+	if ref == "" {
+		return nil, errors.New("part without ref")
+	}
+	if !validID(ref) {
+		return nil, fmt.Errorf("part %q: ref must be letters, digits, '-' and '_'", ref)
+	}
+	fail := func(format string, a ...any) (*Part, error) {
+		return nil, fmt.Errorf("part %s: %s", ref, fmt.Sprintf(format, a...))
+	}
+	pinRoles, known := kindPins[kind]
+	if !known {
+		return fail("kind %q is not one of %s", kind, strings.Join(keys(kindPins), ", "))
+	}
+	p := &Part{Ref: ref, Kind: kind, Params: map[string]float64{}, Pins: map[string]string{}}
+	for key := range rp {
+		if commonKeys[key] {
+			continue
+		}
+		if _, ok := deviceParams[kind][key]; ok {
+			continue
+		}
+		return fail("unknown key %q for a %s", key, kind)
+	}
+	// Pins.
+	switch pins := rp["pins"].(type) {
+	case []any:
+		if pinRoles != nil {
+			return fail("pins of a %s are named: %s", kind, strings.Join(pinRoles, ", "))
+		}
+		if len(pins) != 2 {
+			return fail("a %s has two pins, got %d", kind, len(pins))
+		}
+		for i, v := range pins {
+			s, ok := v.(string)
+			if !ok || s == "" {
+				return fail("pin %d is not a node name", i+1)
+			}
+			p.Pins[fmt.Sprint(i+1)] = s
+		}
+	case map[string]any:
+		if pinRoles == nil {
+			return fail("pins of a %s are a two-name list, e.g. pins = [\"a\", \"b\"]", kind)
+		}
+		for role, v := range pins {
+			ok := false
+			for _, r := range pinRoles {
+				ok = ok || r == role
+			}
+			if !ok {
+				return fail("unknown pin %q (a %s has %s)", role, kind, strings.Join(pinRoles, ", "))
+			}
+			s, isStr := v.(string)
+			if !isStr || s == "" {
+				return fail("pin %s is not a node name", role)
+			}
+			p.Pins[role] = s
+		}
+		for _, r := range pinRoles {
+			if _, ok := p.Pins[r]; !ok && !(kind == "pot" && r == "cw") {
+				return fail("pin %s is not connected", r)
+			}
+		}
+	case nil:
+		return fail("no pins")
+	default:
+		return fail("pins must be a list or a table")
+	}
+	if err := p.apply(rp, true); err != nil {
+		return nil, err
+	}
+	if err := p.complete(); err != nil {
+		return nil, err
+	}
+	return p, nil
+}
+
+// apply sets values and parameters from a part table or a values override.
+func (p *Part) apply(t map[string]any, full bool) error {
+	fail := func(format string, a ...any) error {
+		return fmt.Errorf("part %s: %s", p.Ref, fmt.Sprintf(format, a...))
+	}
+	for key, v := range t {
+		switch key {
+		case "ref", "kind", "pins":
+			if !full {
+				return fail("%s cannot be overridden", key)
+			}
+		case "value":
+			q, ok := kindQuantity[p.Kind]
+			if !ok {
+				if s, isStr := v.(string); isStr && (p.Kind == "diode" || p.Kind == "npn" || p.Kind == "pnp") {
+					p.Model = s // a device's "value" names its model
+					continue
+				}
+				return fail("a %s has no value; set its parameters", p.Kind)
+			}
+			x, err := valueOf(v, q)
+			if err != nil {
+				return fail("%v", err)
+			}
+			p.Value = x
+			p.Text = fmt.Sprint(v)
+		case "model":
+			s, ok := v.(string)
+			if !ok {
+				return fail("model must be a name")
+			}
+			p.Model = s
+		case "taper":
+			s, _ := v.(string)
+			tp, err := models.ParseTaper(s)
+			if err != nil {
+				return fail("%v", err)
+			}
+			p.Taper = tp
+		case "knob":
+			s, ok := v.(string)
+			if !ok || s == "" {
+				return fail("knob must be a name")
+			}
+			p.Knob = s
+		case "per_metre":
+			x, err := valueOf(v, models.Capacitance)
+			if err != nil {
+				return fail("per_metre: %v", err)
+			}
+			p.PerMetre = x
+		case "tolerance":
+			x, ok := number(v)
+			if s, isStr := v.(string); isStr {
+				var err error
+				x, err = parsePercent(s)
+				ok = err == nil
+			}
+			if !ok || x < 0 || x >= 1 {
+				return fail("tolerance %v must be a fraction or percentage below 100 %%", v)
+			}
+			p.Tolerance = x
+		case "adjusts":
+			s, _ := v.(string)
+			p.Adjusts = s
+		case "about":
+			s, _ := v.(string)
+			p.About = s
+		default:
+			q, ok := deviceParams[p.Kind][key]
+			if !ok {
+				return fail("unknown key %q for a %s", key, p.Kind)
+			}
+			x, err := valueOf(v, q)
+			if err != nil {
+				return fail("%s: %v", key, err)
+			}
+			p.Params[key] = x
+		}
+	}
+	return nil
+}
+
+func parsePercent(s string) (float64, error) {
+	s = strings.TrimSpace(s)
+	if strings.HasSuffix(s, "%") {
+		x, err := models.ParseValue(strings.TrimSuffix(s, "%"), models.Dimensionless)
+		return x / 100, err
+	}
+	return models.ParseValue(s, models.Dimensionless)
+}
+
+// complete checks a part's values after parsing or overriding.
+func (p *Part) complete() error {
+	fail := func(format string, a ...any) error {
+		return fmt.Errorf("part %s: %s", p.Ref, fmt.Sprintf(format, a...))
+	}
+	switch p.Kind {
+	case "resistor", "capacitor", "inductor", "pot", "cable":
+		if !(p.Value > 0) {
+			if p.Text == "" {
+				return fail("no value")
+			}
+			return fail("value %s must be positive", p.Text)
+		}
+		if p.Kind == "resistor" && p.Value > 1e12 || p.Kind == "capacitor" && p.Value > 10 || p.Kind == "inductor" && p.Value > 1e4 || p.Kind == "cable" && p.Value > 1e3 {
+			return fail("value %s is implausibly large for a %s", p.Text, p.Kind)
+		}
+		if p.Kind == "pot" && p.Knob == "" {
+			return fail("a pot needs knob = \"name\"")
+		}
+		if p.Kind == "cable" && p.PerMetre == 0 {
+			p.PerMetre = 100e-12 // about 100 pF/m for instrument cable (common practice)
+		}
+	case "diode", "npn", "pnp":
+		if p.Model != "" {
+			pr, ok := models.Presets[p.Model]
+			if !ok {
+				return fail("model %q is not one of %s", p.Model, strings.Join(models.PresetNames(), ", "))
+			}
+			if (p.Kind == "diode") != (pr.Diode != nil) || pr.BJT != nil && pr.BJT.PNP != (p.Kind == "pnp") {
+				return fail("model %q is not a %s", p.Model, p.Kind)
+			}
+		}
+		for k, v := range p.Params {
+			if !(v > 0) && k != "icbo" || v < 0 {
+				return fail("%s = %g must be positive", k, v)
+			}
+		}
+	}
+	return nil
+}
+
+// DiodeParams resolves a diode part's parameters: the named model (or the
+// silicon signal diode), then written parameters. Without a named model
+// and without eg the saturation current does not scale with temperature.
+func (p *Part) DiodeParams() models.DiodeParams {
+	name := p.Model
+	if name == "" {
+		name = "si-signal"
+	}
+	d := *models.Presets[name].Diode
+	if p.Model == "" {
+		d.Eg = 0
+	}
+	set := func(key string, dst *float64) {
+		if v, ok := p.Params[key]; ok {
+			*dst = v
+		}
+	}
+	set("is", &d.Is)
+	set("n", &d.N)
+	set("rs", &d.Rs)
+	set("eg", &d.Eg)
+	set("xti", &d.XTI)
+	return d
+}
+
+// BJTParams resolves a transistor part's parameters like DiodeParams.
+func (p *Part) BJTParams() models.BJTParams {
+	name := p.Model
+	if name == "" {
+		name = "si-" + p.Kind
+	}
+	b := *models.Presets[name].BJT
+	if p.Model == "" {
+		b.Eg = 0
+	}
+	set := func(key string, dst *float64) {
+		if v, ok := p.Params[key]; ok {
+			*dst = v
+		}
+	}
+	set("is", &b.Is)
+	set("hfe", &b.BetaF)
+	set("br", &b.BetaR)
+	set("icbo", &b.Icbo)
+	set("leak_doubling", &b.LeakDoubling)
+	set("eg", &b.Eg)
+	set("xti", &b.XTI)
+	b.PNP = p.Kind == "pnp"
+	return b
+}

@@ -1,0 +1,118 @@
+package chains
+
+import (
+	"fmt"
+	"strings"
+)
+
+// Error is a fault in a chain file or template: the file, the line where
+// there is one, what it concerns (a key, a stage, a part) and why.
+type Error struct {
+	File  string
+	Line  int
+	Where string
+	Msg   string
+}
+
+func (e *Error) Error() string {
+	var b strings.Builder
+	b.WriteString(e.File)
+	if e.Line > 0 {
+		fmt.Fprintf(&b, ":%d", e.Line)
+	}
+	b.WriteString(": ")
+	if e.Where != "" {
+		b.WriteString(e.Where)
+		b.WriteString(": ")
+	}
+	b.WriteString(e.Msg)
+	return b.String()
+}
+
+// locator finds the line a key or part sits on in the source text, for
+// error messages. TOML decoding keeps no positions for semantic errors, so
+// it searches the text: stage k's block runs from its k-th [[stage]]
+// header to the next table header.
+type locator struct {
+	lines  []string
+	stages []int // 0-based line index of each [[stage]] header
+}
+
+func newLocator(src string) *locator {
+	l := &locator{lines: strings.Split(src, "\n")}
+	for i, ln := range l.lines {
+		if strings.HasPrefix(strings.TrimSpace(ln), "[[stage]]") {
+			l.stages = append(l.stages, i)
+		}
+	}
+	return l
+}
+
+// block returns the line range [from, to) of stage k, or of the top level
+// (before the first table header) for k < 0.
+func (l *locator) block(k int) (int, int) {
+	if l == nil {
+		return 0, 0
+	}
+	if k < 0 || k >= len(l.stages) {
+		return 0, len(l.lines)
+	}
+	from := l.stages[k]
+	to := len(l.lines)
+	for i := from + 1; i < len(l.lines); i++ {
+		t := strings.TrimSpace(l.lines[i])
+		if strings.HasPrefix(t, "[") && !strings.HasPrefix(t, "[ ") && strings.HasSuffix(t, "]") && !strings.Contains(t, "=") {
+			to = i
+			break
+		}
+	}
+	return from, to
+}
+
+// find returns the 1-based line in stage k's block (k < 0: anywhere) that
+// contains every needle, or the block's first line, or 0.
+func (l *locator) find(k int, needles ...string) int {
+	if l == nil {
+		return 0
+	}
+	from, to := l.block(k)
+	for i := from; i < to; i++ {
+		ln := l.lines[i]
+		if c := strings.Index(ln, "#"); c >= 0 && !strings.Contains(ln[:c], "\"") {
+			ln = ln[:c]
+		}
+		all := true
+		for _, n := range needles {
+			if !strings.Contains(ln, n) {
+				all = false
+				break
+			}
+		}
+		if all {
+			return i + 1
+		}
+	}
+	if k >= 0 && k < len(l.stages) {
+		return l.stages[k] + 1
+	}
+	return 0
+}
+
+// findKey returns the line on which a top-level or table key is assigned.
+func (l *locator) findKey(table, key string) int {
+	if l == nil {
+		return 0
+	}
+	in := table == ""
+	for i, ln := range l.lines {
+		t := strings.TrimSpace(ln)
+		if strings.HasPrefix(t, "[") && strings.HasSuffix(t, "]") && !strings.Contains(t, "=") {
+			in = t == "["+table+"]"
+			continue
+		}
+		if in && (strings.HasPrefix(t, key+" ") || strings.HasPrefix(t, key+"=")) {
+			return i + 1
+		}
+	}
+	return 0
+}

@@ -1,0 +1,211 @@
+package render
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"time"
+
+	"renderchain/dsp/wavio"
+	"renderchain/dsp/wdf"
+)
+
+// Output sample formats.
+const (
+	FormatPCM16   = "pcm16"
+	FormatPCM24   = "pcm24"
+	FormatFloat32 = "float32"
+)
+
+// FileOptions tune RenderFile.
+type FileOptions struct {
+	Format string // pcm24 (default), pcm16, float32
+	// Progress, if set, is called now and then with frames done and total.
+	Progress func(done, total int64)
+}
+
+// Input limits of a render (the stated range).
+const (
+	MinRate     = 44100
+	MaxRate     = 192000
+	MaxChannels = 2
+)
+
+// RenderFile renders the WAV file in through the engine's circuit into the
+// WAV file out (written under a temporary name and renamed on success; on
+// any error or cancellation nothing is left at out). Memory stays constant
+// whatever the file's length.
+func RenderFile(ctx context.Context, e *Engine, in, out string, opt FileOptions) (*Report, error) {
+	if same, err := wavio.SameFile(in, out); err == nil && same {
+		return nil, fmt.Errorf("--out %s is the input file: refusing to write over it", out)
+	}
+	r, err := wavio.Open(in)
+	if err != nil {
+		return nil, err
+	}
+	defer r.Close()
+	f := r.Format()
+	if f.SampleRate < MinRate || f.SampleRate > MaxRate {
+		return nil, fmt.Errorf("%s: sample rate %d Hz is outside %d–%d Hz", in, f.SampleRate, MinRate, MaxRate)
+	}
+	if f.Channels < 1 || f.Channels > MaxChannels {
+		return nil, fmt.Errorf("%s: %d channels; renders take mono or stereo", in, f.Channels)
+	}
+	if r.Frames() == 0 {
+		return nil, fmt.Errorf("%s: no audio frames", in)
+	}
+	of := wavio.Format{SampleRate: f.SampleRate, Channels: f.Channels, BitDepth: 24}
+	switch opt.Format {
+	case "", FormatPCM24:
+	case FormatPCM16:
+		of.BitDepth = 16
+	case FormatFloat32:
+		of.BitDepth, of.Float = 32, true
+	default:
+		return nil, fmt.Errorf("--format %q is not one of pcm16, pcm24, float32", opt.Format)
+	}
+	fs := float64(f.SampleRate)
+	chans := make([]*Channel, f.Channels)
+	for c := range chans {
+		if chans[c], err = e.NewChannel(fs); err != nil {
+			return nil, err
+		}
+	}
+	o, err := wavio.CreateTemp(out)
+	if err != nil {
+		return nil, err
+	}
+	committed := false
+	defer func() {
+		if !committed {
+			o.Abort()
+		}
+	}()
+	w, err := wavio.NewWriter(o, of)
+	if err != nil {
+		return nil, err
+	}
+	rep := newReport(e, in, out, f, of, r.Frames())
+	start := time.Now()
+	nc := f.Channels
+	inter := make([]float64, MaxBlock*nc)
+	outInter := make([]float64, MaxBlock*nc)
+	src := make([][]float64, nc)
+	dst := make([][]float64, nc)
+	for c := range src {
+		src[c] = make([]float64, MaxBlock)
+		dst[c] = make([]float64, MaxBlock)
+	}
+	emit := func(n int) error {
+		for c := 0; c < nc; c++ {
+			for i := 0; i < n; i++ {
+				outInter[i*nc+c] = dst[c][i]
+			}
+		}
+		rep.wet.add(outInter[:n*nc])
+		return w.Write(outInter[:n*nc])
+	}
+	var done int64
+	lastProgress := time.Now()
+	for {
+		if err := ctx.Err(); err != nil {
+			return nil, errors.New("render interrupted: no output written")
+		}
+		n, rerr := r.Read(inter)
+		if n > 0 {
+			frames := n / nc
+			rep.dry.add(inter[:n])
+			for c := 0; c < nc; c++ {
+				for i := 0; i < frames; i++ {
+					src[c][i] = inter[i*nc+c]
+				}
+			}
+			got := 0
+			for c := 0; c < nc; c++ {
+				got = chans[c].Process(dst[c], src[c][:frames])
+			}
+			if err := emit(got); err != nil {
+				return nil, err
+			}
+			done += int64(frames)
+			if opt.Progress != nil && time.Since(lastProgress) > 100*time.Millisecond {
+				opt.Progress(done, r.Frames())
+				lastProgress = time.Now()
+			}
+		}
+		if rerr == io.EOF {
+			break
+		}
+		if rerr != nil {
+			return nil, rerr
+		}
+	}
+	for {
+		got := 0
+		for c := 0; c < nc; c++ {
+			got = chans[c].Flush(dst[c])
+		}
+		if got == 0 {
+			break
+		}
+		if err := emit(got); err != nil {
+			return nil, err
+		}
+	}
+	if opt.Progress != nil {
+		opt.Progress(done, r.Frames())
+	}
+	elapsed := time.Since(start)
+	if err := w.Close(); err != nil {
+		return nil, err
+	}
+	var st wdf.Stats
+	for _, c := range chans {
+		st.Add(c.Stats())
+	}
+	rep.finish(st, w.Clipped(), elapsed)
+	if err := o.Commit(); err != nil {
+		return nil, err
+	}
+	committed = true
+	return rep, nil
+}
+
+// levels accumulates peak and RMS of an interleaved stream.
+type levels struct {
+	peak   float64
+	sumSq  float64
+	n      int64
+	over   int64 // samples beyond full scale
+	finite bool
+}
+
+func (l *levels) add(x []float64) {
+	for _, v := range x {
+		a := math.Abs(v)
+		if a > l.peak {
+			l.peak = a
+		}
+		if a >= 1 {
+			l.over++
+		}
+		l.sumSq += v * v
+	}
+	l.n += int64(len(x))
+}
+
+func dbfs(x float64) float64 {
+	if x <= 0 {
+		return math.Inf(-1)
+	}
+	return 20 * math.Log10(x)
+}
+
+func (l *levels) rms() float64 {
+	if l.n == 0 {
+		return 0
+	}
+	return math.Sqrt(l.sumSq / float64(l.n))
+}
