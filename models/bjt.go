@@ -72,31 +72,41 @@ func (b *BJT) Currents(vbe, vce float64) (ib, ic float64) {
 
 // Eval implements Nonlinear.
 func (b *BJT) Eval(v, i, jac []float64) {
-	vbe, vce := v[0], v[1]
+	var j [4]float64
+	i[0], i[1], j = b.Eval2(v[0], v[1])
+	copy(jac[:4], j[:])
+}
+
+// Eval2 is Eval without slices: it returns Ib, Ic and the Jacobian
+// [dIb/dVbe, dIb/dVce, dIc/dVbe, dIc/dVce] for port voltages Vbe, Vce.
+func (b *BJT) Eval2(vbe, vce float64) (ib, ic float64, jac [4]float64) {
 	if b.pnp {
 		vbe, vce = -vbe, -vce
 	}
 	vbc := vbe - vce
-	ef, def := limexp(vbe / b.vt)
-	er, der := limexp(vbc / b.vt)
-	def /= b.vt
-	der /= b.vt
+	ivt := 1 / b.vt
+	ef, def := limexp(vbe * ivt)
+	er, der := limexp(vbc * ivt)
+	def *= ivt
+	der *= ivt
 	is := b.is
-	ic := is*(ef-er) - is/b.br*(er-1)
-	ib := is/b.bf*(ef-1) + is/b.br*(er-1)
+	isr := is / b.br
+	isf := is / b.bf
+	ic = is*(ef-er) - isr*(er-1)
+	ib = isf*(ef-1) + isr*(er-1)
 	// Derivatives with respect to vbe and vbc.
 	dicBE := is * def
-	dicBC := -is*der - is/b.br*der
-	dibBE := is / b.bf * def
-	dibBC := is / b.br * der
+	dicBC := -(is + isr) * der
+	dibBE := isf * def
+	dibBC := isr * der
 	if b.icbo != 0 {
 		var il, dil float64
 		if vbc <= 0 {
 			il = b.icbo * (1 - er)
 			dil = -b.icbo * der
 		} else {
-			il = -b.icbo * vbc / b.vt
-			dil = -b.icbo / b.vt
+			il = -b.icbo * vbc * ivt
+			dil = -b.icbo * ivt
 		}
 		ic += il
 		ib -= il
@@ -112,7 +122,7 @@ func (b *BJT) Eval(v, i, jac []float64) {
 		// i(v) = −f(−v): the Jacobian is f'(−v), unchanged.
 		ib, ic = -ib, -ic
 	}
-	i[0], i[1] = ib, ic
+	return ib, ic, jac
 }
 
 // Limit implements Nonlinear: junction limiting on Vbe and Vbc.
@@ -128,3 +138,6 @@ func (b *BJT) Limit(vnew, vold []float64) {
 	vnew[0] = s * be
 	vnew[1] = s * (be - bc)
 }
+
+// EmissionVoltage returns Vt, the voltage scale of the exponentials.
+func (b *BJT) EmissionVoltage() float64 { return b.vt }

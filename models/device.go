@@ -24,13 +24,27 @@ type Nonlinear interface {
 const expLimit = 80.0
 
 // limexp returns exp(x) and its derivative, continued linearly past expLimit.
+//
+// Below −expFloor the exponential is taken as 0: e^−50 ≈ 2e-22 is lost
+// against the 1 it is always compared with (Is·(e^x − 1)), and a reverse-
+// biased junction then costs no exponential at all.
 func limexp(x float64) (e, de float64) {
 	if x > expLimit {
-		e0 := math.Exp(expLimit)
-		return e0 * (1 + x - expLimit), e0
+		return limexpTail(x)
+	}
+	if x < -expFloor {
+		return 0, 0
 	}
 	e = math.Exp(x)
 	return e, e
+}
+
+const expFloor = 50.0
+
+var expAtLimit = math.Exp(expLimit)
+
+func limexpTail(x float64) (e, de float64) {
+	return expAtLimit * (1 + x - expLimit), expAtLimit
 }
 
 // pnjlim limits the change of a junction voltage between Newton iterates, as

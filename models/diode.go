@@ -47,3 +47,6 @@ func (d *Diode) Eval(v, i, jac []float64) {
 func (d *Diode) Limit(vnew, vold []float64) {
 	vnew[0] = pnjlim(vnew[0], vold[0], d.NVt, d.vcrit)
 }
+
+// EmissionVoltage returns n·Vt, the voltage scale of the exponential.
+func (d *Diode) EmissionVoltage() float64 { return d.NVt }

@@ -165,6 +165,7 @@ func RenderFile(ctx context.Context, e *Engine, in, out string, opt FileOptions)
 	for _, c := range chans {
 		st.Add(c.Stats())
 	}
+	rep.Solver.States, rep.Solver.NonlinearPorts = chans[0].Solver.States()
 	rep.finish(st, w.Clipped(), elapsed)
 	if err := o.Commit(); err != nil {
 		return nil, err

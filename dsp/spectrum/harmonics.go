@@ -44,8 +44,9 @@ const (
 	DefaultMaxOrder = 10
 	DefaultBandLow  = 20.0    // Hz
 	DefaultBandHigh = 20000.0 // Hz
-	// MaxFitOrder bounds Options.MaxOrder for MethodFit, whose cost
-	// grows with the square of the number of fitted terms.
+	// MaxFitOrder bounds Options.MaxOrder for MethodFit, whose normal
+	// equations grow with the square, and their solution with the
+	// cube, of the number of fitted terms.
 	MaxFitOrder = 200
 	// CoherenceTolerance is how far, in cycles, the record's cycle
 	// count f0·N/fs may lie from a whole number and still count as
@@ -100,7 +101,7 @@ type Analysis struct {
 	// the Nyquist frequency (see Analyze).
 	Harmonics []Harmonic
 	// THDF is √(Σ A_h²)/A_1 over Harmonics: the distortion factor
-	// relative to the fundamental (IEC 60050-551-20-13, IEC 61000-2-2).
+	// relative to the fundamental (the IEC 61000-2-2 form).
 	THDF float64
 	// THDR is √(Σ A_h²)/√(A_1² + Σ A_h²): relative to the RMS of the
 	// fundamental and counted harmonics, THDF/√(1+THDF²).

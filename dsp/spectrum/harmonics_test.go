@@ -306,9 +306,10 @@ func TestAnalyzeNyquistLimit(t *testing.T) {
 // Half-wave asymmetric gain: x = sin θ for the negative half, 0.5·sin θ
 // for the positive half, i.e. x = 0.75·sin θ − 0.25·|sin θ|. The Fourier
 // series of a full-wave rectified sine, |sin θ| = 2/π − (4/π)·Σ_k
-// cos(2kθ)/(4k²−1) (handbook series, e.g. Abramowitz & Stegun style
-// tables; common practice), gives DC = −1/(2π), fundamental 0.75, even
-// harmonics 2k of amplitude 1/(π(4k²−1)) at phase +π/2 and no odd ones.
+// cos(2kθ)/(4k²−1) (handbook series, from memory; it follows from
+// integrating |sin θ|·cos 2kθ over a period), gives DC = −1/(2π),
+// fundamental 0.75, even harmonics 2k of amplitude 1/(π(4k²−1)) at
+// phase +π/2, and no odd ones.
 func TestAnalyzeAsymmetricHalfWave(t *testing.T) {
 	const (
 		fs = 48000.0

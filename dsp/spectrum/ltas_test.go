@@ -27,7 +27,7 @@ func writeChunked(t *testing.T, l *LTAS, x []float64, rng *rand.Rand, maxChunk i
 
 // The accumulated bins equal Welch's estimate computed independently:
 // frames at hops of N/2, periodic Hann w_i = ½(1 − cos(2πi/N)) from its
-// formula (Harris 1978, eq. 27a in DFT-even form), and the DFT taken both
+// formula (Harris 1978, DFT-even form), and the DFT taken both
 // from its definition and from gonum's dsp/fourier on the same frames.
 func TestLTASBinsMatchReference(t *testing.T) {
 	const (

@@ -37,7 +37,9 @@ func (s *Stats) Add(o Stats) {
 
 type devSlot struct {
 	model models.Nonlinear
-	off   int // first port in the root's nonlinear port vector
+	bjt   *models.BJT   // set for a transistor: called directly in the hot loop
+	dio   *models.Diode // set for a diode
+	off   int           // first port in the root's nonlinear port vector
 	n     int
 }
 
@@ -54,9 +56,13 @@ type shared struct {
 	// out = ox·x + ob·bI + oc + oin·vin
 	ox, ob  []float64
 	oc, oin float64
+	// Packed forms for the hot loop, over z = [x…, 1, vin, bI…]:
+	// p = pz·z[:ns+2] (k rows) and [x_next; out] = nz·z (ns+1 rows).
+	pz, nz  []float64
 	devs    []devSlot
 	x0, v0  []float64 // states and device voltages at the operating point
 	maxIter int
+	curv    float64 // 1/(2·nVt) of the stiffest junction, for the error estimate
 	tol     float64
 	adaptor *Adaptor
 	probe   int
@@ -72,17 +78,18 @@ type Solver struct {
 	// probe voltage to dst samples. Both default to 1.
 	InputGain, OutputGain float64
 
-	x, xn     []float64 // states
-	v, i      []float64 // device port voltages and currents
-	p, pPrev  []float64
-	vPrev     []float64
-	vBest     []float64
-	f, dv, bI []float64
-	jd        []float64 // per-device Jacobian blocks, packed
-	jac       []float64 // k×k Newton matrix
-	lu        *mna.LU
-	lastOut   float64
-	stats     Stats
+	z           []float64 // [x…, 1, vin, bI…]: states, constant, input, root waves
+	xn          []float64 // next states
+	v, i        []float64 // device port voltages and currents
+	p, pPrev    []float64
+	vPrev, vOld []float64 // the last two solutions
+	vOld2       []float64 // and the one before
+	vBest       []float64
+	f, dv       []float64
+	jd          []float64 // per-device Jacobian blocks, packed
+	jac         []float64 // k×k Newton matrix
+	lastOut     float64
+	stats       Stats
 }
 
 func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, opt Options) (*Solver, error) {
@@ -223,8 +230,14 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 	off := 0
 	sh.v0 = make([]float64, k)
 	for _, d := range op.Devices {
+		if e, ok := d.Model.(interface{ EmissionVoltage() float64 }); ok {
+			sh.curv = math.Max(sh.curv, 1/(2*e.EmissionVoltage()))
+		}
 		n := len(d.Ports)
-		sh.devs = append(sh.devs, devSlot{model: d.Model, off: off, n: n})
+		slot := devSlot{model: d.Model, off: off, n: n}
+		slot.bjt, _ = d.Model.(*models.BJT)
+		slot.dio, _ = d.Model.(*models.Diode)
+		sh.devs = append(sh.devs, slot)
 		copy(sh.v0[off:], d.V)
 		off += n
 	}
@@ -238,7 +251,51 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 			sh.x0[a] = pt.r * op.Branch[pt.elem] // a = v + R·i with v = 0
 		}
 	}
+	sh.pack()
 	return sh.newChannel(), nil
+}
+
+// pack lays the matrices out row by row over z = [x…, 1, vin, bI…] so the
+// per-sample work is a handful of contiguous dot products.
+func (sh *shared) pack() {
+	ns, k := sh.ns, sh.k
+	w := ns + 2 + k
+	sh.pz = make([]float64, k*(ns+2))
+	for r := 0; r < k; r++ {
+		row := sh.pz[r*(ns+2) : (r+1)*(ns+2)]
+		copy(row, sh.pp[r*ns:r*ns+ns])
+		row[ns], row[ns+1] = sh.pc[r], sh.pin[r]
+	}
+	sh.nz = make([]float64, (ns+1)*w)
+	for r := 0; r <= ns; r++ {
+		row := sh.nz[r*w : (r+1)*w]
+		if r < ns {
+			copy(row, sh.ax[r*ns:r*ns+ns])
+			row[ns], row[ns+1] = sh.ac[r], sh.ain[r]
+			copy(row[ns+2:], sh.ab[r*k:r*k+k])
+		} else {
+			copy(row, sh.ox)
+			row[ns], row[ns+1] = sh.oc, sh.oin
+			copy(row[ns+2:], sh.ob)
+		}
+	}
+}
+
+// dot returns Σ a[i]·b[i] over len(a), four lanes at a time.
+func dot(a, b []float64) float64 {
+	b = b[:len(a)]
+	var s0, s1, s2, s3 float64
+	i := 0
+	for ; i+4 <= len(a); i += 4 {
+		s0 += a[i] * b[i]
+		s1 += a[i+1] * b[i+1]
+		s2 += a[i+2] * b[i+2]
+		s3 += a[i+3] * b[i+3]
+	}
+	for ; i < len(a); i++ {
+		s0 += a[i] * b[i]
+	}
+	return (s0 + s1) + (s2 + s3)
 }
 
 func (sh *shared) newChannel() *Solver {
@@ -248,10 +305,10 @@ func (sh *shared) newChannel() *Solver {
 		jdLen += d.n * d.n
 	}
 	s := &Solver{shared: sh, InputGain: 1, OutputGain: 1,
-		x: make([]float64, ns), xn: make([]float64, ns),
+		z: make([]float64, ns+2+k), xn: make([]float64, ns),
 		v: make([]float64, k), i: make([]float64, k), p: make([]float64, k), pPrev: make([]float64, k),
-		vPrev: make([]float64, k), vBest: make([]float64, k), f: make([]float64, k), dv: make([]float64, k),
-		bI: make([]float64, k), jd: make([]float64, jdLen), jac: make([]float64, k*k), lu: mna.NewLU(k)}
+		vPrev: make([]float64, k), vOld: make([]float64, k), vOld2: make([]float64, k), vBest: make([]float64, k), f: make([]float64, k), dv: make([]float64, k),
+		jd: make([]float64, jdLen), jac: make([]float64, k*k)}
 	s.Reset()
 	return s
 }
@@ -267,8 +324,12 @@ func (s *Solver) Clone() *Solver {
 // Reset returns the solver to the DC operating point and clears its
 // statistics.
 func (s *Solver) Reset() {
-	copy(s.x, s.x0)
+	copy(s.z, s.x0)
+	s.z[s.ns] = 1
 	copy(s.v, s.v0)
+	copy(s.vPrev, s.v0)
+	copy(s.vOld, s.v0)
+	copy(s.vOld2, s.v0)
 	s.evalDevices()
 	s.computeP(0)
 	copy(s.pPrev, s.p)
@@ -290,21 +351,27 @@ func (s *Solver) SampleRate() float64 { return s.rate }
 
 func (s *Solver) computeP(vin float64) {
 	ns := s.ns
+	s.z[ns+1] = vin
 	for r := range s.p {
-		acc := s.pc[r] + s.pin[r]*vin
-		row := s.pp[r*ns : r*ns+ns]
-		for a, x := range s.x {
-			acc += row[a] * x
-		}
-		s.p[r] = acc
+		s.p[r] = dot(s.pz[r*(ns+2):(r+1)*(ns+2)], s.z[:ns+2])
 	}
 }
 
 // evalDevices evaluates every device at s.v into s.i and s.jd.
 func (s *Solver) evalDevices() {
 	o := 0
+	v, i, jd := s.v, s.i, s.jd
 	for _, d := range s.devs {
-		d.model.Eval(s.v[d.off:d.off+d.n], s.i[d.off:d.off+d.n], s.jd[o:o+d.n*d.n])
+		switch {
+		case d.bjt != nil:
+			var j [4]float64
+			i[d.off], i[d.off+1], j = d.bjt.Eval2(v[d.off], v[d.off+1])
+			copy(jd[o:o+4], j[:])
+		case d.dio != nil:
+			i[d.off], jd[o] = d.dio.Current(v[d.off])
+		default:
+			d.model.Eval(v[d.off:d.off+d.n], i[d.off:d.off+d.n], jd[o:o+d.n*d.n])
+		}
 		o += d.n * d.n
 	}
 }
@@ -312,9 +379,13 @@ func (s *Solver) evalDevices() {
 // newton solves v = p + K·f(v) from the current s.v, for at most maxIter
 // iterations; it returns the iterations used and whether it converged.
 // On success s.i holds f(v) (updated to first order in the last step).
-func (s *Solver) newton(p []float64, maxIter int) (int, bool, float64) {
+//
+// Convergence: the step is below Tol, or the Newton error estimate for the
+// next step, Δ²/(2·nVt) (the quadratic term of an exponential junction of
+// emission voltage nVt, the stiffest in the circuit), is below Tol/100.
+func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 	k := s.k
-	best := math.Inf(1)
+	best := inf
 	for it := 1; it <= maxIter; it++ {
 		s.evalDevices()
 		// Residual F = v − p − K·i and Newton matrix J = I − K·Jf.
@@ -326,37 +397,21 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool, float64) {
 				acc -= krow[c] * ic
 			}
 			s.f[r] = -acc
-			res = math.Max(res, math.Abs(acc))
+			if acc < 0 {
+				acc = -acc
+			}
+			if acc > res {
+				res = acc
+			}
 		}
 		if res < best {
 			best = res
 			copy(s.vBest, s.v)
 		}
-		clear(s.jac)
-		o := 0
-		for _, d := range s.devs {
-			n := d.n
-			blk := s.jd[o : o+n*n]
-			for r := 0; r < k; r++ {
-				krow := s.kk[r*k+d.off : r*k+d.off+n]
-				jrow := s.jac[r*k+d.off : r*k+d.off+n]
-				for c := 0; c < n; c++ {
-					acc := 0.0
-					for q := 0; q < n; q++ {
-						acc += krow[q] * blk[q*n+c]
-					}
-					jrow[c] = -acc
-				}
-			}
-			o += n * n
+		s.buildJacobian()
+		if !solveInPlace(s.jac, s.f, k) {
+			return it, false
 		}
-		for r := 0; r < k; r++ {
-			s.jac[r*k+r]++
-		}
-		if err := s.lu.Factor(s.jac); err != nil {
-			return it, false, best
-		}
-		s.lu.Solve(s.f)
 		// Limited step.
 		copy(s.dv, s.v)
 		for r := 0; r < k; r++ {
@@ -367,15 +422,21 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool, float64) {
 		}
 		step := 0.0
 		for r := 0; r < k; r++ {
-			s.dv[r] = s.v[r] - s.dv[r]
-			step = math.Max(step, math.Abs(s.dv[r]))
+			d := s.v[r] - s.dv[r]
+			s.dv[r] = d
+			if d < 0 {
+				d = -d
+			}
+			if d > step {
+				step = d
+			}
 		}
-		if !(step < math.Inf(1)) { // NaN or Inf
-			return it, false, best
+		if !(step < inf) { // NaN or Inf
+			return it, false
 		}
-		if step < s.tol {
+		if step < s.tol || step*step*s.curv < s.tol*0.01 {
 			// First-order update of the currents to the accepted v (the
-			// error is O(step²), far below the tolerance).
+			// error is O(step²), below the tolerance by the test above).
 			o := 0
 			for _, d := range s.devs {
 				n := d.n
@@ -389,10 +450,104 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool, float64) {
 				}
 				o += n * n
 			}
-			return it, true, 0
+			return it, true
 		}
 	}
-	return maxIter, false, best
+	return maxIter, false
+}
+
+var inf = math.Inf(1)
+
+// buildJacobian writes J = I − K·Jf, Jf block-diagonal by device.
+func (s *Solver) buildJacobian() {
+	k, kk, jac, jd := s.k, s.kk, s.jac, s.jd
+	o := 0
+	for _, d := range s.devs {
+		c0 := d.off
+		switch d.n {
+		case 1:
+			g := jd[o]
+			for r := 0; r < k; r++ {
+				jac[r*k+c0] = -kk[r*k+c0] * g
+			}
+		case 2:
+			j00, j01, j10, j11 := jd[o], jd[o+1], jd[o+2], jd[o+3]
+			for r := 0; r < k; r++ {
+				k0, k1 := kk[r*k+c0], kk[r*k+c0+1]
+				jac[r*k+c0] = -(k0*j00 + k1*j10)
+				jac[r*k+c0+1] = -(k0*j01 + k1*j11)
+			}
+		default:
+			n := d.n
+			blk := jd[o : o+n*n]
+			for r := 0; r < k; r++ {
+				for c := 0; c < n; c++ {
+					acc := 0.0
+					for q := 0; q < n; q++ {
+						acc += kk[r*k+c0+q] * blk[q*n+c]
+					}
+					jac[r*k+c0+c] = -acc
+				}
+			}
+		}
+		o += d.n * d.n
+	}
+	for r := 0; r < k; r++ {
+		jac[r*k+r]++
+	}
+}
+
+// solveInPlace solves a·x = b for the row-major k×k matrix a by Gaussian
+// elimination with partial pivoting, overwriting a and leaving x in b. It
+// reports false for a singular or non-finite matrix.
+func solveInPlace(a, b []float64, k int) bool {
+	for c := 0; c < k; c++ {
+		p, pv := c, abs(a[c*k+c])
+		for r := c + 1; r < k; r++ {
+			if v := abs(a[r*k+c]); v > pv {
+				p, pv = r, v
+			}
+		}
+		if !(pv > 1e-300) || pv == inf {
+			return false
+		}
+		if p != c {
+			rc, rp := a[c*k:c*k+k], a[p*k:p*k+k]
+			for j := c; j < k; j++ {
+				rc[j], rp[j] = rp[j], rc[j]
+			}
+			b[c], b[p] = b[p], b[c]
+		}
+		inv := 1 / a[c*k+c]
+		rc := a[c*k : c*k+k]
+		for r := c + 1; r < k; r++ {
+			rr := a[r*k : r*k+k]
+			l := rr[c] * inv
+			if l == 0 {
+				continue
+			}
+			for j := c + 1; j < k; j++ {
+				rr[j] -= l * rc[j]
+			}
+			b[r] -= l * b[c]
+		}
+	}
+	for r := k - 1; r >= 0; r-- {
+		acc := b[r]
+		rr := a[r*k : r*k+k]
+		for j := r + 1; j < k; j++ {
+			acc -= rr[j] * b[j]
+		}
+		b[r] = acc / rr[r]
+	}
+	return true
+}
+
+func abs(x float64) float64 {
+	if x < 0 {
+		return -x
+	}
+	return x
 }
 
 // solve finds the root's device voltages for s.p, falling back to a
@@ -401,7 +556,11 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool, float64) {
 // a larger iteration budget. What still fails keeps the iterate with the
 // smallest residual (finite by construction) and is counted.
 func (s *Solver) solve() {
-	it, ok, _ := s.newton(s.p, s.maxIter)
+	// Predictor: quadratic extrapolation of the last three solutions.
+	for r := range s.v {
+		s.v[r] = 3*(s.vPrev[r]-s.vOld[r]) + s.vOld2[r]
+	}
+	it, ok := s.newton(s.p, s.maxIter)
 	total := it
 	if !ok {
 		s.stats.Fallbacks++
@@ -422,6 +581,8 @@ func (s *Solver) solve() {
 	if total > s.stats.MaxIterations {
 		s.stats.MaxIterations = total
 	}
+	copy(s.vOld2, s.vOld)
+	copy(s.vOld, s.vPrev)
 	copy(s.vPrev, s.v)
 	copy(s.pPrev, s.p)
 }
@@ -447,7 +608,7 @@ func (s *Solver) substep(total *int) bool {
 			for r := 0; r < k; r++ {
 				plv[r] = s.pPrev[r] + lam*(tgt[r]-s.pPrev[r])
 			}
-			it, conv, _ := s.newton(plv, 4*s.maxIter)
+			it, conv := s.newton(plv, 4*s.maxIter)
 			*total += it
 			ok = conv
 		}
@@ -463,38 +624,31 @@ func (s *Solver) substep(total *int) bool {
 // Tick advances one sample with the signal source at vin volts above its
 // DC value and returns the probe voltage.
 func (s *Solver) Tick(vin float64) float64 {
-	s.computeP(vin)
+	ns, k := s.ns, s.k
+	z := s.z
+	z[ns+1] = vin
+	zp := z[:ns+2]
+	for r := range s.p {
+		s.p[r] = dot(s.pz[r*(ns+2):(r+1)*(ns+2)], zp)
+	}
 	s.solve()
 	s.stats.Samples++
-	k, ns := s.k, s.ns
+	bI := z[ns+2:]
 	for r := 0; r < k; r++ {
-		s.bI[r] = s.v[r] - s.rI[r]*s.i[r]
+		bI[r] = s.v[r] - s.rI[r]*s.i[r]
 	}
-	out := s.oc + s.oin*vin
-	for a, x := range s.x {
-		out += s.ox[a] * x
-	}
-	for c, b := range s.bI {
-		out += s.ob[c] * b
-	}
+	w := len(z)
+	out := dot(s.nz[ns*w:(ns+1)*w], z)
+	xn := s.xn
 	for r := 0; r < ns; r++ {
-		acc := s.ac[r] + s.ain[r]*vin
-		row := s.ax[r*ns : r*ns+ns]
-		for a, x := range s.x {
-			acc += row[a] * x
-		}
-		brow := s.ab[r*k : r*k+k]
-		for c, b := range s.bI {
-			acc += brow[c] * b
-		}
-		s.xn[r] = acc
+		xn[r] = dot(s.nz[r*w:(r+1)*w], z)
 	}
 	if math.IsNaN(out) || math.IsInf(out, 0) {
 		// Cannot happen with finite device voltages; guard the file anyway.
 		s.stats.NonConverged++
 		return s.lastOut
 	}
-	s.x, s.xn = s.xn, s.x
+	copy(z[:ns], xn)
 	s.lastOut = out
 	return out
 }

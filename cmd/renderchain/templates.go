@@ -1,0 +1,111 @@
+package main
+
+import (
+	"fmt"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/urfave/cli/v2"
+
+	"renderchain/chains"
+)
+
+func templatesCommand() *cli.Command {
+	return &cli.Command{
+		Name:      "templates",
+		Usage:     "list the built-in stage templates with their parts and knobs",
+		UsageText: "renderchain templates [NAME…] [--json]",
+		Flags:     []cli.Flag{jsonFlag},
+		Action: func(c *cli.Context) error {
+			all, err := chains.Templates()
+			if err != nil {
+				return err
+			}
+			want := map[string]bool{}
+			for _, a := range c.Args().Slice() {
+				want[a] = true
+				if _, err := chains.LoadTemplate(a); err != nil {
+					return err
+				}
+			}
+			var list []*chains.Template
+			for _, t := range all {
+				if len(want) == 0 || want[t.Name] {
+					list = append(list, t)
+				}
+			}
+			if c.Bool("json") {
+				return printJSON(c, templatesJSON(list))
+			}
+			w := tabwriter.NewWriter(c.App.Writer, 2, 4, 2, ' ', 0)
+			for _, t := range list {
+				fmt.Fprintf(w, "%s\n  %s\n", t.Name, t.About)
+				for _, k := range t.Knobs {
+					fmt.Fprintf(w, "  knob %s\tdefault %.2f\t%s\n", k.Name, k.Default, k.About)
+				}
+				for _, p := range t.Parts {
+					fmt.Fprintf(w, "  %s\t%s\t%s\t%s\n", p.Ref, p.Kind, partValue(p), pins(p))
+				}
+				fmt.Fprintln(w)
+			}
+			return w.Flush()
+		},
+	}
+}
+
+func partValue(p *chains.Part) string {
+	switch p.Kind {
+	case "diode", "npn", "pnp":
+		s := p.Model
+		for _, k := range []string{"hfe", "is", "n", "br", "icbo"} {
+			if v, ok := p.Params[k]; ok {
+				s += fmt.Sprintf(" %s=%g", k, v)
+			}
+		}
+		return strings.TrimSpace(s)
+	case "pot":
+		return p.Text + " " + p.Taper.String() + " (knob " + p.Knob + ")"
+	}
+	return p.Text
+}
+
+func pins(p *chains.Part) string {
+	var s []string
+	for _, role := range []string{"1", "2", "ccw", "wiper", "cw", "anode", "cathode", "c", "b", "e"} {
+		if n, ok := p.Pins[role]; ok {
+			if role == "1" || role == "2" {
+				s = append(s, n)
+			} else {
+				s = append(s, role+"="+n)
+			}
+		}
+	}
+	return strings.Join(s, " ")
+}
+
+type templateJSON struct {
+	Name  string            `json:"name"`
+	About string            `json:"about"`
+	Knobs []chains.KnobInfo `json:"knobs"`
+	Parts []partJSON        `json:"parts"`
+}
+
+type partJSON struct {
+	Ref   string `json:"ref"`
+	Kind  string `json:"kind"`
+	Value string `json:"value"`
+	Pins  string `json:"pins"`
+	About string `json:"about,omitempty"`
+}
+
+func templatesJSON(list []*chains.Template) []templateJSON {
+	var out []templateJSON
+	for _, t := range list {
+		tj := templateJSON{Name: t.Name, About: t.About, Knobs: t.Knobs}
+		for _, p := range t.Parts {
+			tj.Parts = append(tj.Parts, partJSON{Ref: p.Ref, Kind: p.Kind, Value: partValue(p), Pins: pins(p), About: p.About})
+		}
+		out = append(out, tj)
+	}
+	return out
+}
