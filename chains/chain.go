@@ -318,10 +318,10 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 	for name, v := range rs.Knobs {
 		x, ok := number(v)
 		if !ok {
-			return nil, fail(ch.loc.find(k, name), fmt.Sprintf("knob %s = %v is not a number", name, v))
+			return nil, fail(ch.loc.find(k, "knobs", name), fmt.Sprintf("knob %s = %v is not a number", name, v))
 		}
 		if x < 0 || x > 1 {
-			return nil, fail(ch.loc.find(k, name), fmt.Sprintf("knob %s = %g is outside 0…1 (0 fully counter-clockwise, 1 fully clockwise)", name, x))
+			return nil, fail(ch.loc.find(k, "knobs", name), fmt.Sprintf("knob %s = %g is outside 0…1 (0 fully counter-clockwise, 1 fully clockwise)", name, x))
 		}
 		knobs[name] = x
 	}

@@ -8,6 +8,7 @@ import (
 	"math"
 	"time"
 
+	"renderchain/dsp/spectrum"
 	"renderchain/dsp/wavio"
 	"renderchain/dsp/wdf"
 )
@@ -174,16 +175,37 @@ func RenderFile(ctx context.Context, e *Engine, in, out string, opt FileOptions)
 	return rep, nil
 }
 
-// levels accumulates peak and RMS of an interleaved stream.
+// levels accumulates peak and RMS of an interleaved stream, and the
+// long-term-average third-octave spectrum of its channels' mean.
 type levels struct {
-	peak   float64
-	sumSq  float64
-	n      int64
-	over   int64 // samples beyond full scale
-	finite bool
+	peak     float64
+	sumSq    float64
+	n        int64
+	over     int64 // samples beyond full scale
+	channels int
+	ltas     *spectrum.LTAS
+	mono     []float64
+}
+
+func newLevels(fs float64, channels int) *levels {
+	l := &levels{channels: channels, mono: make([]float64, MaxBlock)}
+	l.ltas, _ = spectrum.NewLTAS(fs, 0) // fs is checked already; a nil LTAS only skips the spectrum
+	return l
 }
 
 func (l *levels) add(x []float64) {
+	if l.ltas != nil {
+		nc := l.channels
+		frames := len(x) / nc
+		for i := 0; i < frames; i++ {
+			s := 0.0
+			for c := 0; c < nc; c++ {
+				s += x[i*nc+c]
+			}
+			l.mono[i] = s / float64(nc)
+		}
+		_ = l.ltas.Write(l.mono[:frames]) // samples are finite here
+	}
 	for _, v := range x {
 		a := math.Abs(v)
 		if a > l.peak {

@@ -4,6 +4,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"time"
 
 	"renderchain/dsp/wavio"
@@ -20,6 +22,7 @@ type Report struct {
 	Solver         SolverReport `json:"solver"`
 	RealtimeFactor float64      `json:"realtime_factor"`
 	ElapsedSeconds float64      `json:"elapsed_s"`
+	Spectrum       []BandReport `json:"third_octaves"`
 	Warnings       []string     `json:"warnings"`
 
 	dry, wet          *levels
@@ -40,6 +43,16 @@ type SignalReport struct {
 	CrestDB        Decibel `json:"crest_db"`
 	ClippedSamples int64   `json:"clipped_samples"`
 	PeakVolts      float64 `json:"peak_volts"`
+	CentroidHz     float64 `json:"centroid_hz"`
+}
+
+// BandReport is one third-octave band (IEC 61260-1 nominal centre) of the
+// long-term average spectrum of dry and wet, dB re a full-scale sine. For
+// stereo, the spectrum is that of the channels' mean.
+type BandReport struct {
+	Hz    float64 `json:"hz"`
+	DryDB Decibel `json:"dry_db"`
+	WetDB Decibel `json:"wet_db"`
 }
 
 // SolverReport gives the Newton statistics over all channels.
@@ -77,7 +90,7 @@ func newReport(e *Engine, in, out string, f, of wavio.Format, frames int64) *Rep
 	return &Report{Chain: e.Chain.Name, ChainFile: e.Chain.File, Input: sr(in, f), Output: sr(out, of),
 		Solver: SolverReport{Oversample: e.Oversample, InternalRate: float64(f.SampleRate * e.Oversample),
 			DCMethod: e.DC.Method, DCIterations: e.DC.Iterations},
-		Warnings: []string{}, dry: &levels{}, wet: &levels{}, inPeak: e.Chain.InputPeak, fullScale: e.Chain.FullScale}
+		Warnings: []string{}, dry: newLevels(float64(f.SampleRate), f.Channels), wet: newLevels(float64(f.SampleRate), f.Channels), inPeak: e.Chain.InputPeak, fullScale: e.Chain.FullScale}
 }
 
 func (s *SignalReport) fill(l *levels, voltsFS float64) {
@@ -88,6 +101,9 @@ func (s *SignalReport) fill(l *levels, voltsFS float64) {
 		s.CrestDB = 0
 	}
 	s.PeakVolts = l.peak * voltsFS
+	if l.ltas != nil && l.ltas.Frames() > 0 {
+		s.CentroidHz = math.Round(l.ltas.Centroid()*10) / 10
+	}
 }
 
 func (r *Report) finish(st wdf.Stats, clipped int64, elapsed time.Duration) {
@@ -95,6 +111,12 @@ func (r *Report) finish(st wdf.Stats, clipped int64, elapsed time.Duration) {
 	r.Output.fill(r.wet, r.fullScale)
 	r.Output.ClippedSamples = clipped
 	r.Input.ClippedSamples = r.dry.over
+	if r.dry.ltas != nil && r.wet.ltas != nil && r.dry.ltas.Frames() > 0 {
+		db, wb := r.dry.ltas.Bands(), r.wet.ltas.Bands()
+		for i := range db {
+			r.Spectrum = append(r.Spectrum, BandReport{Hz: db[i].Nominal, DryDB: Decibel(db[i].Level), WetDB: Decibel(wb[i].Level)})
+		}
+	}
 	r.Solver.Samples = st.Samples
 	r.Solver.MeanIterations = math.Round(st.MeanIterations()*1000) / 1000
 	r.Solver.MaxIterations = st.MaxIterations
@@ -110,4 +132,31 @@ func (r *Report) finish(st wdf.Stats, clipped int64, elapsed time.Duration) {
 	if st.NonConverged > 0 {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("%d samples did not converge to tolerance (kept finite); try a higher --oversample", st.NonConverged))
 	}
+}
+
+// writeJSONFile writes v as indented JSON to path via a temporary file.
+func writeJSONFile(path string, v any) error {
+	b, err := json.MarshalIndent(v, "", "  ")
+	if err != nil {
+		return err
+	}
+	dir, base := filepath.Split(path)
+	if dir == "" {
+		dir = "."
+	}
+	f, err := os.CreateTemp(dir, "."+base+".*.tmp")
+	if err != nil {
+		return err
+	}
+	_, err = f.Write(append(b, '\n'))
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(f.Name(), path)
+	}
+	if err != nil {
+		os.Remove(f.Name())
+	}
+	return err
 }

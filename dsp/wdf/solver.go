@@ -385,6 +385,9 @@ func (s *Solver) evalDevices() {
 // emission voltage nVt, the stiffest in the circuit), is below Tol/100.
 func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 	k := s.k
+	if k == 0 {
+		return 0, true // a linear circuit: nothing to solve
+	}
 	best := inf
 	for it := 1; it <= maxIter; it++ {
 		s.evalDevices()
@@ -457,6 +460,9 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 }
 
 var inf = math.Inf(1)
+
+// predictorTrust bounds the curvature correction of the predictor, volts.
+const predictorTrust = 1e-2
 
 // buildJacobian writes J = I − K·Jf, Jf block-diagonal by device.
 func (s *Solver) buildJacobian() {
@@ -556,12 +562,26 @@ func abs(x float64) float64 {
 // a larger iteration budget. What still fails keeps the iterate with the
 // smallest residual (finite by construction) and is counted.
 func (s *Solver) solve() {
-	// Predictor: quadratic extrapolation of the last three solutions.
+	// Predictor: quadratic extrapolation of the last three solutions,
+	// trusted only while it stays within predictorTrust of the linear one
+	// (near a clipping corner the curvature term overshoots).
 	for r := range s.v {
-		s.v[r] = 3*(s.vPrev[r]-s.vOld[r]) + s.vOld2[r]
+		lin := 2*s.vPrev[r] - s.vOld[r]
+		quad := 3*(s.vPrev[r]-s.vOld[r]) + s.vOld2[r]
+		if d := quad - lin; d < predictorTrust && d > -predictorTrust {
+			s.v[r] = quad
+		} else {
+			s.v[r] = lin
+		}
 	}
 	it, ok := s.newton(s.p, s.maxIter)
 	total := it
+	if !ok {
+		// Restart from the last solution, without extrapolation.
+		copy(s.v, s.vPrev)
+		it, ok = s.newton(s.p, s.maxIter)
+		total += it
+	}
 	if !ok {
 		s.stats.Fallbacks++
 		ok = s.substep(&total)

@@ -1,0 +1,131 @@
+package render
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sync"
+
+	"renderchain/chains"
+	"renderchain/dsp/synth"
+	"renderchain/dsp/wavio"
+)
+
+// DemoRate is the sample rate of the synthesized demo phrase.
+const DemoRate = 48000
+
+// DemoTake is one clip of the demo.
+type DemoTake struct {
+	Name, About string
+	File        string  // file name inside the demo folder
+	Report      *Report `json:"-"`
+	ReportFile  string
+}
+
+// DemoSettings are the fuzz settings the demo renders, with the bypass.
+var DemoSettings = []struct {
+	Name string
+	Fuzz float64
+}{{"fuzz-low", 0.15}, {"fuzz-mid", 0.55}, {"fuzz-max", 1.0}}
+
+// Demo synthesizes the dry phrase, renders it through chains/demo.toml at
+// three fuzz settings and through the pickup and amplifier alone (the
+// bypassed pedal), and writes the WAV files and JSON reports into dir.
+// Renders run in parallel, at most workers at a time (≥ 1).
+func Demo(ctx context.Context, dir string, workers int) ([]DemoTake, error) {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, err
+	}
+	phrase, err := synth.DemoPhrase(DemoRate, 1)
+	if err != nil {
+		return nil, err
+	}
+	dry := filepath.Join(dir, "dry.wav")
+	if err := writeWAV(dry, phrase, DemoRate); err != nil {
+		return nil, err
+	}
+	base, err := chains.Example("demo")
+	if err != nil {
+		return nil, err
+	}
+	type job struct {
+		take DemoTake
+		ch   *chains.Chain
+	}
+	var jobs []job
+	bypass := base.Clone()
+	bypass.Name = base.Name + " (pedal bypassed: pickup and cable into the amplifier)"
+	var keep []*chains.Stage
+	for _, st := range bypass.Stages {
+		if st.ID == "pickup" || st.ID == "amp" {
+			keep = append(keep, st)
+		}
+	}
+	bypass.Stages = keep
+	jobs = append(jobs, job{DemoTake{Name: "bypass", About: "pickup and cable straight into the amplifier input"}, bypass})
+	for _, s := range DemoSettings {
+		ch := base.Clone()
+		if err := ch.Set(fmt.Sprintf("fuzz.fuzz=%g", s.Fuzz)); err != nil {
+			return nil, err
+		}
+		jobs = append(jobs, job{DemoTake{Name: s.Name, About: fmt.Sprintf("chains/demo.toml with fuzz.fuzz = %.2f", s.Fuzz)}, ch})
+	}
+	if workers < 1 {
+		workers = 1
+	}
+	sem := make(chan struct{}, workers)
+	errs := make([]error, len(jobs))
+	var wg sync.WaitGroup
+	for i := range jobs {
+		wg.Add(1)
+		go func(i int) {
+			defer wg.Done()
+			sem <- struct{}{}
+			defer func() { <-sem }()
+			j := &jobs[i]
+			eng, err := Prepare(j.ch, 0)
+			if err != nil {
+				errs[i] = err
+				return
+			}
+			j.take.File = j.take.Name + ".wav"
+			rep, err := RenderFile(ctx, eng, dry, filepath.Join(dir, j.take.File), FileOptions{})
+			if err != nil {
+				errs[i] = err
+				return
+			}
+			j.take.Report = rep
+			j.take.ReportFile = j.take.Name + ".json"
+			errs[i] = writeJSONFile(filepath.Join(dir, j.take.ReportFile), rep)
+		}(i)
+	}
+	wg.Wait()
+	takes := []DemoTake{{Name: "dry", About: "the synthesized DI phrase (plucked strings, 10 s)", File: "dry.wav"}}
+	for i, j := range jobs {
+		if errs[i] != nil {
+			return nil, fmt.Errorf("demo %s: %w", j.take.Name, errs[i])
+		}
+		takes = append(takes, j.take)
+	}
+	return takes, nil
+}
+
+func writeWAV(path string, x []float64, rate int) error {
+	o, err := wavio.CreateTemp(path)
+	if err != nil {
+		return err
+	}
+	w, err := wavio.NewWriter(o, wavio.Format{SampleRate: rate, Channels: 1, BitDepth: 24})
+	if err == nil {
+		err = w.Write(x)
+	}
+	if err == nil {
+		err = w.Close()
+	}
+	if err != nil {
+		o.Abort()
+		return err
+	}
+	return o.Commit()
+}
