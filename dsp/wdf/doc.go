@@ -1,0 +1,43 @@
+// Package wdf is the wave digital solver: it turns a flat circuit into one
+// root R-type adaptor whose scattering matrix comes from modified nodal
+// analysis, with every nonlinear device port gathered at the root and
+// solved jointly by damped Newton–Raphson each sample.
+//
+// Structure. Every linear one-port (resistor, pot section, capacitor,
+// inductor) is an adapted leaf of the root adaptor, with the port
+// resistance of Fettweis's wave digital elements under the bilinear
+// transform (capacitor T/2C, inductor 2L/T). Ideal voltage sources (the
+// supply, the signal source) and ideal buffers are absorbed inside the
+// adaptor and enter as inputs. The nonlinear ports (one per diode, two per
+// transistor) are unadapted ports at the root. The scattering matrix is
+// S = 2M − I, with M the port voltages per unit incident wave from one MNA
+// solve per port (Werner, Nangia, Smith & Abel, DAFx-15, 2015; Werner,
+// Bernardini, Smith & Sarti, IEEE TCAS-I 65(12), 2018). Because the
+// adaptor is derived from nodal analysis, any topology a chain file can
+// describe is accepted, not only series/parallel trees.
+//
+// Nonlinear root. With a = v + R·i and b = v − R·i at the root's ports the
+// scattering relation becomes the Kirchhoff-domain relation v = p + K·i (the
+// K-method form of the joint solve), p linear in the leaves' waves and the
+// inputs, K constant. Newton solves v = p + K·f(v) from a predictor
+// (quadratic extrapolation of the last solutions), with SPICE junction
+// limiting and a step / error-estimate convergence test; a failed sample is
+// retried from the last solution, then by continuation in p over 4 and 16
+// sub-steps; what still fails keeps the best finite iterate and is counted
+// (Stats.NonConverged), so nothing non-finite reaches the output. The
+// device Jacobians are analytic (models package) and are checked against
+// central differences in that package's tests.
+//
+// Start. Compile takes the DC operating point and sets every state from it
+// (capacitor waves from their voltages, inductor waves from their currents,
+// the Newton start from the junction voltages), so a render starts at rest,
+// without a thump.
+//
+// Hot path. Solver.Process(dst, src) does no allocation: per sample, a few
+// dense dot products over [states, 1, input, root waves] and the small
+// Newton solve.
+//
+// Non-goals: time-varying knobs within a render (recompile per setting),
+// noise analysis, reactive parasitics of the devices (junction
+// capacitances), and the Early effect.
+package wdf
