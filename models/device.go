@@ -48,8 +48,8 @@ func limexpTail(x float64) (e, de float64) {
 }
 
 // pnjlim limits the change of a junction voltage between Newton iterates, as
-// in SPICE's junction limiting (Nagel, "SPICE2", UCB ERL-M520, 1975, sec. 4.3;
-// the same rule is in SPICE3's DEVpnjlim): above the critical voltage
+// in the junction limiting of classical circuit simulation (L. W. Nagel,
+// UCB ERL-M520, 1975, sec. 4.3): above the critical voltage
 // vcrit = nVt·ln(nVt/(√2·Is)) a step larger than 2·nVt is replaced by the
 // logarithm of the step, so the diode current rather than the voltage moves
 // by the linearised amount.

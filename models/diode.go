@@ -12,7 +12,7 @@ type DiodeParams struct {
 // Diode is a junction diode at a fixed temperature, as a one-port from anode
 // to cathode. Its current is Shockley's ideal-diode law (Shockley, "The theory
 // of p-n junctions in semiconductors", Bell Syst. Tech. J. 28, 1949, eq. 5.11,
-// with the emission coefficient n of SPICE):
+// with the emission coefficient n of circuit-simulation diode models):
 //
 //	I = Is·(exp(V/(n·Vt)) − 1)
 //

@@ -11,7 +11,7 @@ type DevicePreset struct {
 }
 
 // Presets are typical values for common device families, not any one part
-// number; every figure is from memory of typical datasheet and SPICE-model
+// number; every figure is from memory of typical datasheet and published device-model
 // ranges and is meant as a starting point for a measured value.
 var Presets = map[string]DevicePreset{
 	"si-npn": {Name: "si-npn", About: "silicon small-signal NPN (Is 10 fA, hFE 250, βR 4)",

@@ -9,7 +9,7 @@ const (
 	ElementaryCharge = 1.602176634e-19 // C
 	ZeroCelsius      = 273.15          // K
 	// NominalTemperature is the temperature at which device parameters are
-	// given (25 °C), as in SPICE's TNOM default.
+	// given (25 °C), the usual nominal temperature of device models.
 	NominalTemperature = ZeroCelsius + 25
 )
 
@@ -17,9 +17,9 @@ const (
 func ThermalVoltage(t float64) float64 { return Boltzmann * t / ElementaryCharge }
 
 // SaturationCurrentAt scales a junction saturation current given at tnom to
-// temperature t, with the SPICE2 law (Nagel, "SPICE2: A Computer Program to
-// Simulate Semiconductor Circuits", UCB ERL-M520, 1975; Massobrio &
-// Antognetti, "Semiconductor Device Modeling with SPICE", 2nd ed., eq. 1.33):
+// temperature t, with the junction law of classical circuit simulation
+// (L. W. Nagel, UCB ERL-M520, 1975; G. Massobrio & P. Antognetti,
+// McGraw-Hill, 2nd ed., 1993, eq. 1.33):
 //
 //	Is(T) = Is(Tnom)·(T/Tnom)^(XTI/N)·exp((Eg/(N·Vt(T)))·(T/Tnom − 1))
 //

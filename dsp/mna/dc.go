@@ -52,7 +52,8 @@ type DCOptions struct {
 // It tries plain damped Newton first, then gmin stepping (a conductance from
 // every node to ground, lowered a decade at a time from 1 mS to zero), then
 // source stepping (all sources ramped from 0 to full value), the two
-// continuations of SPICE (Nagel 1975, sec. 4.4).
+// continuations of classical circuit simulation (Nagel, UCB ERL-M520,
+// 1975, sec. 4.4).
 func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 	if opt.MaxIter == 0 {
 		opt.MaxIter = 200

@@ -20,7 +20,7 @@
 // scattering relation becomes the Kirchhoff-domain relation v = p + K·i (the
 // K-method form of the joint solve), p linear in the leaves' waves and the
 // inputs, K constant. Newton solves v = p + K·f(v) from a predictor
-// (quadratic extrapolation of the last solutions), with SPICE junction
+// (quadratic extrapolation of the last solutions), with classical junction
 // limiting and a step / error-estimate convergence test; a failed sample is
 // retried from the last solution, then by continuation in p over 4 and 16
 // sub-steps; what still fails keeps the best finite iterate and is counted
