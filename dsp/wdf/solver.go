@@ -382,7 +382,7 @@ func (s *Solver) evalDevices() {
 //
 // Convergence: the step is below Tol, or the Newton error estimate for the
 // next step, Δ²/(2·nVt) (the quadratic term of an exponential junction of
-// emission voltage nVt, the stiffest in the circuit), is below Tol/100.
+// emission voltage nVt, the stiffest in the circuit), is below Tol/10.
 func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 	k := s.k
 	if k == 0 {
@@ -437,7 +437,7 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 		if !(step < inf) { // NaN or Inf
 			return it, false
 		}
-		if step < s.tol || step*step*s.curv < s.tol*0.01 {
+		if step < s.tol || step*step*s.curv < s.tol*0.1 {
 			// First-order update of the currents to the accepted v (the
 			// error is O(step²), below the tolerance by the test above).
 			o := 0
