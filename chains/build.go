@@ -66,6 +66,7 @@ func (ch *Chain) Build() (*models.Circuit, error) {
 	if err := c.Check(); err != nil {
 		return nil, &Error{File: ch.File, Msg: err.Error()}
 	}
+	c.AddLeaks()
 	return c, nil
 }
 

@@ -242,3 +242,42 @@ func (u union) find(i int) int {
 }
 
 func (u union) join(a, b int) { u[u.find(a)] = u.find(b) }
+
+// LeakResistance is the resistance from ground that AddLeaks puts on a
+// node reached only by semiconductor junctions (and capacitors): 1 TΩ, the
+// reciprocal of the classical minimum conductance of circuit simulation
+// (GMIN = 1e-12 S; L. W. Nagel, UCB ERL-M520, 1975), standing for board
+// and package leakage.
+const LeakResistance = 1e12
+
+// AddLeaks gives every node that no resistor, inductor, source or buffer
+// reaches (only diode and transistor terminals, and capacitors) a
+// LeakResistance to ground, and returns how many it added. Without it such
+// a node, e.g. between two diodes in series or between the two transistors
+// of a compound pair, has no defined voltage when its junctions are off,
+// and the wave digital root sees a cut-set of nonlinear ports, where the
+// Kirchhoff-domain relation v = p + K·i has no finite K. Ordinary nodes
+// are untouched.
+func (c *Circuit) AddLeaks() int {
+	linear := make([]bool, len(c.Nodes))
+	used := make([]bool, len(c.Nodes))
+	for _, e := range c.Elements {
+		for _, n := range e.Nodes {
+			used[n] = true
+		}
+		switch e.Kind {
+		case ResistorKind, InductorKind, VoltageSourceKind, BufferKind:
+			for _, n := range e.Nodes {
+				linear[n] = true
+			}
+		}
+	}
+	added := 0
+	for n := 1; n < len(c.Nodes); n++ {
+		if used[n] && !linear[n] {
+			c.Add(Element{Ref: "leak." + c.Nodes[n], Kind: ResistorKind, Nodes: []int{n, Ground}, Value: LeakResistance})
+			added++
+		}
+	}
+	return added
+}

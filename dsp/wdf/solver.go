@@ -124,7 +124,7 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 		}
 		lu := mna.NewLU(k)
 		if err := lu.Factor(a); err != nil {
-			return nil, &models.CircuitError{What: "circuit", Reason: "a nonlinear device sees an open circuit (its current is fixed by the wiring alone)"}
+			return nil, &models.CircuitError{What: "circuit", Reason: "a node is reached only by nonlinear device terminals (call Circuit.AddLeaks, as chains do)"}
 		}
 		col := make([]float64, k)
 		for c := 0; c < k; c++ {
@@ -461,6 +461,9 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 
 var inf = math.Inf(1)
 
+// substepIter is the Newton budget of each continuation sub-step.
+const substepIter = 100
+
 // predictorTrust bounds the curvature correction of the predictor, volts.
 const predictorTrust = 1e-2
 
@@ -628,7 +631,7 @@ func (s *Solver) substep(total *int) bool {
 			for r := 0; r < k; r++ {
 				plv[r] = s.pPrev[r] + lam*(tgt[r]-s.pPrev[r])
 			}
-			it, conv := s.newton(plv, 4*s.maxIter)
+			it, conv := s.newton(plv, substepIter)
 			*total += it
 			ok = conv
 		}

@@ -45,6 +45,7 @@ func (b *bench) out(name string) { b.c.Output = b.n(name) }
 
 func (b *bench) compile(t testing.TB, fs float64) (*Solver, *mna.OperatingPoint) {
 	t.Helper()
+	b.c.AddLeaks() // as chains.Build does
 	op, err := mna.SolveDC(b.c, mna.DCOptions{})
 	if err != nil {
 		t.Fatalf("DC: %v", err)
