@@ -101,7 +101,7 @@ func demoChain(t *testing.T) *chains.Chain {
 // Unknown templates, knobs and refs name the known ones.
 func TestOverrideErrorsNameKnownKeys(t *testing.T) {
 	cases := []struct{ set, want string }{
-		{"fuzz.fuzzz=0.5", "knobs: fuzz, trim1, trim2; parts: C1, Q1"},
+		{"fuzz.fuzzz=0.5", "knobs: fuzz, trim1, trim2; parts: R0, C1, Q1"},
 		{"fuzz.fuzz=1.2", "outside 0…1"},
 		{"fuzzbox.fuzz=0.5", `no stage "fuzzbox" (stages: pickup, fuzz, tone, volume, amp)`},
 		{"fuzz.C1=47q", `value "47q"`},
