@@ -508,8 +508,12 @@ func (s *Solver) buildJacobian() {
 
 // solveInPlace solves a·x = b for the row-major k×k matrix a by Gaussian
 // elimination with partial pivoting, overwriting a and leaving x in b. It
-// reports false for a singular or non-finite matrix.
+// reports false for a singular or non-finite matrix. The pivots'
+// reciprocals are kept on a's diagonal, so back substitution multiplies
+// instead of dividing (k divisions in all).
 func solveInPlace(a, b []float64, k int) bool {
+	a = a[:k*k]
+	b = b[:k]
 	for c := 0; c < k; c++ {
 		p, pv := c, abs(a[c*k+c])
 		for r := c + 1; r < k; r++ {
@@ -521,33 +525,31 @@ func solveInPlace(a, b []float64, k int) bool {
 			return false
 		}
 		if p != c {
-			rc, rp := a[c*k:c*k+k], a[p*k:p*k+k]
 			for j := c; j < k; j++ {
-				rc[j], rp[j] = rp[j], rc[j]
+				a[c*k+j], a[p*k+j] = a[p*k+j], a[c*k+j]
 			}
 			b[c], b[p] = b[p], b[c]
 		}
 		inv := 1 / a[c*k+c]
-		rc := a[c*k : c*k+k]
+		a[c*k+c] = inv
+		bc := b[c]
 		for r := c + 1; r < k; r++ {
-			rr := a[r*k : r*k+k]
-			l := rr[c] * inv
+			l := a[r*k+c] * inv
 			if l == 0 {
 				continue
 			}
 			for j := c + 1; j < k; j++ {
-				rr[j] -= l * rc[j]
+				a[r*k+j] -= l * a[c*k+j]
 			}
-			b[r] -= l * b[c]
+			b[r] -= l * bc
 		}
 	}
 	for r := k - 1; r >= 0; r-- {
 		acc := b[r]
-		rr := a[r*k : r*k+k]
 		for j := r + 1; j < k; j++ {
-			acc -= rr[j] * b[j]
+			acc -= a[r*k+j] * b[j]
 		}
-		b[r] = acc / rr[r]
+		b[r] = acc * a[r*k+r]
 	}
 	return true
 }
