@@ -1,6 +1,3 @@
-// Command renderchain renders a dry guitar recording through a fuzz, tone
-// and volume circuit simulated at the component level and reports what the
-// circuit does. See the README for the commands.
 package main
 
 import (
