@@ -2,6 +2,7 @@ package models
 
 import (
 	"fmt"
+	"math"
 	"sort"
 )
 
@@ -156,9 +157,15 @@ func (e *CircuitError) Error() string { return e.What + ": " + e.Reason }
 // ideal voltage sources and inductors (a short across a source at DC).
 func (c *Circuit) Check() error {
 	n := len(c.Nodes)
+	if !(c.Temperature > 0) || math.IsInf(c.Temperature, 0) {
+		return &CircuitError{"circuit", fmt.Sprintf("temperature %g K must be positive and finite", c.Temperature)}
+	}
 	conduct := newUnion(n) // DC-conducting connectivity
 	vloop := newUnion(n)   // voltage-source/inductor connectivity
 	for _, e := range c.Elements {
+		if want := pinCount(e.Kind); len(e.Nodes) != want {
+			return &CircuitError{e.Ref, fmt.Sprintf("a %s has %d pins, got %d", e.Kind, want, len(e.Nodes))}
+		}
 		for _, nd := range e.Nodes {
 			if nd < 0 || nd >= n {
 				return &CircuitError{e.Ref, "pin on an unknown node"}
@@ -173,6 +180,9 @@ func (c *Circuit) Check() error {
 				return &CircuitError{e.Ref, "both pins on node " + c.Nodes[e.Nodes[0]]}
 			}
 		case VoltageSourceKind, BufferKind:
+			if math.IsNaN(e.Value) || math.IsInf(e.Value, 0) {
+				return &CircuitError{e.Ref, fmt.Sprintf("source value %g is not finite", e.Value)}
+			}
 			if e.Nodes[0] == e.Nodes[1] {
 				return &CircuitError{e.Ref, "both terminals on node " + c.Nodes[e.Nodes[0]]}
 			}
@@ -221,6 +231,14 @@ func (c *Circuit) Check() error {
 		return &CircuitError{"node " + floating[0], "has no DC path to ground (only capacitors reach it)"}
 	}
 	return nil
+}
+
+// pinCount is the number of pins of an element kind.
+func pinCount(k Kind) int {
+	if k == BJTKind {
+		return 3
+	}
+	return 2
 }
 
 type union []int

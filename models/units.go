@@ -56,7 +56,7 @@ func (q Quantity) article() string {
 // units lists, per quantity, the unit spellings accepted after the number
 // and prefix. Matching is exact (case matters: "F" farad, "f" femto).
 var units = map[Quantity][]string{
-	Resistance:  {"Ω", "ohm", "ohms", "Ohm", "R"},
+	Resistance:  {"Ω", "\u2126", "ohm", "ohms", "Ohm", "R"}, // U+2126 OHM SIGN is canonically Ω
 	Capacitance: {"F"},
 	Inductance:  {"H"},
 	Voltage:     {"V"},
@@ -72,6 +72,8 @@ var prefixes = map[rune]float64{
 	'f': 1e-15, 'p': 1e-12, 'n': 1e-9, 'u': 1e-6, 'µ': 1e-6, 'μ': 1e-6,
 	'm': 1e-3, 'k': 1e3, 'K': 1e3, 'M': 1e6, 'G': 1e9,
 }
+
+var prefixExponent = map[float64]int{1e-15: -15, 1e-12: -12, 1e-9: -9, 1e-6: -6, 1e-3: -3, 1e3: 3, 1e6: 6, 1e9: 9}
 
 // ValueError reports a value string that does not denote the wanted quantity.
 type ValueError struct {
@@ -172,6 +174,12 @@ func ParseValue(text string, q Quantity) (float64, error) {
 			}
 		}
 	}
+	// Apply a power-of-ten prefix inside the decimal string, so "2n2" rounds
+	// once (to the double nearest 2.2e-9) rather than twice.
+	if exp, ok := prefixExponent[scale]; ok && scale != 1 && !strings.ContainsAny(num, "eE") {
+		num += "e" + strconv.Itoa(exp)
+		scale = 1
+	}
 	v, err := strconv.ParseFloat(num, 64)
 	if err != nil {
 		return bad("malformed number")
@@ -222,7 +230,8 @@ func FormatValue(v float64, unit string) string {
 	}
 	num := strconv.FormatFloat(v/chosen.s, 'g', 4, 64)
 	if strings.ContainsAny(num, "e") {
-		num = strconv.FormatFloat(v/chosen.s, 'f', 1, 64)
+		// Outside the prefixes' range: plain scientific notation.
+		return strconv.FormatFloat(v, 'g', 4, 64) + " " + unit
 	}
 	return num + " " + chosen.p + unit
 }

@@ -20,7 +20,9 @@ type OperatingPoint struct {
 	// and Jacobians at the operating point.
 	Devices []DeviceState
 	// Iterations is the total number of Newton iterations spent, and
-	// Method the continuation that succeeded: "newton", "gmin" or "source".
+	// Method the continuation that succeeded: "newton", "gmin",
+	// "gmin-junction" (gmin stepping finished with 1e-12 S across every
+	// device port) or "source".
 	Iterations int
 	Method     string
 }
@@ -85,8 +87,19 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 			}
 		}
 		if err == nil {
+			saved := append([]float64(nil), x...)
 			it, err = s.newton(x, 0, 1)
 			total += it
+			if err != nil {
+				// A node held only by junctions that are off has no defined
+				// voltage without some conductance: finish with the classical
+				// minimum conductance (1e-12 S) across every device port.
+				copy(x, saved)
+				s.portGmin = junctionGmin
+				it, err = s.newton(x, 0, 1)
+				total += it
+				method = "gmin-junction"
+			}
 		}
 	}
 	if err != nil {
@@ -125,14 +138,19 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 	return s.result(x, total, method), nil
 }
 
+// junctionGmin is the conductance put across device ports as a last resort
+// (the classical GMIN of circuit simulation, L. W. Nagel, 1975).
+const junctionGmin = 1e-12
+
 type dcSolver struct {
-	c    *models.Circuit
-	opt  DCOptions
-	lay  *Layout
-	sys  *Real
-	lu   *LU
-	devs []DeviceState
-	vold [][]float64
+	portGmin float64 // conductance across every device port (last resort)
+	c        *models.Circuit
+	opt      DCOptions
+	lay      *Layout
+	sys      *Real
+	lu       *LU
+	devs     []DeviceState
+	vold     [][]float64
 }
 
 func newDCSolver(c *models.Circuit, opt DCOptions) *dcSolver {
@@ -195,6 +213,11 @@ func (s *dcSolver) newton(x []float64, gmin, lambda float64) (int, error) {
 			copy(s.vold[k], d.V)
 			d.Model.Eval(d.V, d.I, d.Jac)
 			s.sys.Device(d.Ports, d.V, d.I, d.Jac)
+			if s.portGmin > 0 {
+				for _, p := range d.Ports {
+					s.sys.Conductance(p.Plus, p.Minus, s.portGmin)
+				}
+			}
 		}
 		if err := s.lu.Factor(s.sys.A); err != nil {
 			return it, &models.CircuitError{What: "circuit", Reason: "DC equations are singular (a node or loop is undetermined)"}

@@ -1,0 +1,64 @@
+// Package mna analyses a flat circuit (models.Circuit) by modified nodal
+// analysis: the DC operating point, the small-signal AC response around
+// it, and a brute-force transient run that serves as the reference for the
+// wave digital solver.
+//
+// # Formulation
+//
+// The unknowns are the voltages of every node but ground, then one current
+// per branch whose voltage is fixed: ideal voltage sources, ideal
+// buffers and, where the analysis needs it, inductors (Layout). Real holds
+// a real system A·x = z being stamped; LU factors it densely with partial
+// pivoting in preallocated storage, so repeated Newton steps do not
+// allocate. A pivot below 1e-15 of the largest entry is ErrSingular.
+//
+// # DC
+//
+// SolveDC opens capacitors, shorts inductors and sets every source to its
+// DC value. It runs Newton's method with the devices' junction limiting
+// from all-zero voltages; if that fails, gmin stepping (a conductance from
+// every node to ground, 1 mS lowered a decade at a time, then removed);
+// if that fails too, source stepping (all sources ramped from zero with an
+// adaptive step). OperatingPoint reports the node voltages, the branch
+// currents, each device's port voltages, currents and Jacobian, the
+// iteration count and the Method that finished ("newton", "gmin",
+// "source"). Unsolvable circuits give a *models.CircuitError (from
+// Circuit.Check, or for singular equations) or a *NonConvergenceError.
+//
+// # AC
+//
+// AC linearises the circuit at an operating point (each device replaced by
+// its Jacobian, capacitors by jωC, inductors by jωL, DC sources by shorts)
+// and drives the signal source with a 1 V phasor, returning the complex
+// voltage of each probe node per frequency: a transfer function in V/V.
+//
+// # Transient
+//
+// Transient steps the circuit at a fixed sample rate with trapezoidal
+// companion models for capacitors and inductors, the same bilinear
+// discretisation as the wave digital solver, and a full Newton solve per
+// sample. It is slow and exists to check the fast solver against.
+//
+// # References
+//
+//   - C.-W. Ho, A. E. Ruehli and P. A. Brennan, "The modified nodal
+//     approach to network analysis", IEEE Trans. Circuits Syst. 22(6),
+//     1975.
+//   - L. W. Nagel, UC Berkeley memorandum ERL-M520, 1975 (junction
+//     limiting, sec. 4.3; gmin and source stepping, sec. 4.4).
+//   - L. O. Chua and P.-M. Lin, "Computer-Aided Analysis of Electronic
+//     Circuits", Prentice-Hall, 1975, ch. 13 (companion models).
+//   - J. Vlach and K. Singhal, "Computer Methods for Circuit Analysis and
+//     Design", 2nd ed., 1994, sec. 11.3.
+//   - G. H. Golub and C. F. Van Loan, "Matrix Computations", 4th ed.,
+//     2013, alg. 3.4.1 (LU with partial pivoting).
+//
+// # Non-goals
+//
+// Dense matrices only: the package is sized for effect circuits of tens of
+// nodes, not integrated circuits. No adaptive time step, no noise,
+// distortion or sensitivity analysis, no parameter or temperature sweeps
+// (run the analyses again). SolveDC returns one operating point: for a
+// bistable circuit it may be either stable state or the metastable one.
+// The transient solver is not meant for real-time rendering.
+package mna
