@@ -38,11 +38,13 @@ type port struct {
 //
 // This is the MNA derivation of the R-type scattering matrix of Werner,
 // Nangia, Smith & Abel, "Resolving wave digital filters with
-// multiple/multiport nonlinearities", DAFx-15 (2015), sec. 3, eqs. 7–14
-// (their S = I + 2[0 R]X⁻¹[0 I]ᵀ, written here with a Norton stamp of each
-// port), and of Werner, Bernardini, Smith & Sarti, "Modeling circuits with
-// arbitrary topologies and active linear multiports using wave digital
-// filters", IEEE TCAS-I 65(12), 2018.
+// multiple/multiport nonlinearities", DAFx-15 (2015) (their
+// S = I + 2[0 R]X⁻¹[0 I]ᵀ, from memory; written here with a Norton stamp of
+// each port, which gives the same S), and of Werner, Bernardini, Smith &
+// Sarti, "Modeling circuits with arbitrary topologies and active linear
+// multiports using wave digital filters", IEEE TCAS-I 65(12), 2018. The
+// equality is checked in the tests against Fettweis's closed-form series
+// and parallel adaptors.
 type Adaptor struct {
 	ports   []port
 	sources []int // element indices of ideal voltage sources (the inputs u)

@@ -151,7 +151,7 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 		}
 	}
 	// Kirchhoff-domain relation at the root (the K-method form of the
-	// joint solve: Werner et al. 2015, sec. 4, eqs. 17–22): with
+	// joint solve of Werner et al. 2015; derived here directly): with
 	// a_I = v + R_I·i and b_I = v − R_I·i substituted in
 	// a_I = S_IE·b_E + S_II·b_I + T_I·u,
 	//   v = W·(M_IE·b_E + Mu_I·u) − W·M_II·R_I·i,   W = (I − M_II)⁻¹.
