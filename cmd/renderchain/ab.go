@@ -1,9 +1,186 @@
 package main
 
-import "github.com/urfave/cli/v2"
+import (
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"path/filepath"
+	"strconv"
+	"strings"
 
-// abCommand is a placeholder until its issue lands.
+	"github.com/urfave/cli/v2"
+
+	"renderchain/abtest"
+	"renderchain/render"
+)
+
 func abCommand() *cli.Command {
-	return &cli.Command{Name: "ab", Usage: "loudness-matched A/B clips and a listening page (not built yet)", Hidden: true,
-		Action: func(c *cli.Context) error { return usagef("ab is not built yet") }}
+	return &cli.Command{
+		Name:  "ab",
+		Usage: "loudness-matched A/B clips of candidate builds, a sequence file and a listening page",
+		UsageText: "renderchain ab --chain F --in DRY.wav --outdir DIR --variant \"LABEL: K=V …\" … [--blind --seed S]\n\n" +
+			"   --variant \"as built:\"                  the chain as written\n" +
+			"   --variant \"hotter Q2: fuzz.Q2.hfe=250\"  overrides, separated by spaces\n" +
+			"   --variant \"germanium: @germanium.toml\"  another chain file (looked for in the working\n" +
+			"                                           folder, then beside --chain), optionally followed\n" +
+			"                                           by overrides",
+		Description: "Renders every variant and the dry bypass from one take (in parallel), brings all clips to one\n" +
+			"integrated loudness (ITU-R BS.1770-4) with gain alone — the --target-lufs, or lower if a clip\n" +
+			"would otherwise pass the true-peak --ceiling — and writes into DIR: one WAV per clip, sequence.wav\n" +
+			"(the clips back to back, every segment from the same point of the phrase, equal-power crossfades),\n" +
+			"ab.json and index.html (a self-contained page that works offline; switching clips keeps the\n" +
+			"position). Everything is built beside DIR and moved in when complete. --blind gives the clips\n" +
+			"neutral labels in an order drawn from --seed and writes the key to a separate file.",
+		Flags: []cli.Flag{
+			chainFlag,
+			&cli.StringFlag{Name: "in", Aliases: []string{"i"}, Usage: "dry take (WAV, mono or stereo, 44.1–192 kHz)", Required: true},
+			&cli.StringFlag{Name: "outdir", Aliases: []string{"o"}, Usage: "folder for the set", Required: true},
+			&cli.StringSliceFlag{Name: "variant", Aliases: []string{"V"}, Usage: "a candidate build `\"LABEL: K=V …\"` or \"LABEL: @FILE.toml [K=V …]\" (repeatable; none: the chain as written)"},
+			setFlag,
+			&cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16, for every variant (default: the chain's, else 4)"},
+			&cli.Float64Flag{Name: "target-lufs", Value: abtest.DefaultTargetLUFS, Usage: "integrated loudness every clip is brought to, `LUFS`"},
+			&cli.Float64Flag{Name: "ceiling", Value: abtest.DefaultCeilingDBTP, Usage: "highest true peak any clip may reach, `dBTP`; lowers the common loudness when needed"},
+			&cli.StringFlag{Name: "format", Value: render.FormatPCM24, Usage: "clip samples: pcm24, pcm16 or float32"},
+			&cli.StringFlag{Name: "segment", Value: "4s", Usage: "sequence segment `LENGTH` (s or ms); 0: no sequence file"},
+			&cli.StringFlag{Name: "crossfade", Value: "20ms", Usage: "equal-power crossfade between segments, `LENGTH` (at most half a segment)"},
+			&cli.StringFlag{Name: "segment-start", Value: "0s", Usage: "point of the take every segment starts from, `TIME`"},
+			&cli.IntFlag{Name: "rounds", Value: abtest.DefaultRounds, Usage: "times through the order in the sequence file"},
+			&cli.StringFlag{Name: "order", Usage: "one round of the sequence, `LABELS` or clip numbers separated by commas (default: every clip once)"},
+			&cli.BoolFlag{Name: "no-bypass", Usage: "leave out the dry bypass clip"},
+			&cli.StringFlag{Name: "bypass-label", Value: abtest.DefaultBypassLabel, Usage: "label of the dry bypass clip"},
+			&cli.BoolFlag{Name: "blind", Usage: "neutral labels (A, B, …) in a shuffled order; the key goes to a separate file"},
+			&cli.Int64Flag{Name: "seed", Usage: "shuffle seed of a --blind set (the same seed gives the same set)"},
+			&cli.StringFlag{Name: "key", Usage: "key `FILE` of a --blind set, outside DIR (default: DIR-key.json beside DIR)"},
+			&cli.StringFlag{Name: "plots", Usage: "folder of PNG plots to include: `DIR`/SLUG.TITLE.png for the variant whose label reads SLUG as a file name"},
+			&cli.BoolFlag{Name: "force", Usage: "replace the clips of an earlier set in DIR"},
+			&cli.IntFlag{Name: "jobs", Aliases: []string{"j"}, Usage: "variants rendered at once (default: one per core)"},
+			quietFlag,
+			&cli.BoolFlag{Name: "json", Usage: "print ab.json on stdout as well"},
+		},
+		Action: abAction,
+	}
+}
+
+func abAction(c *cli.Context) error {
+	if c.NArg() > 0 {
+		return usagef("ab takes no arguments (got %q); give variants with --variant", c.Args().First())
+	}
+	if n := c.Int("oversample"); c.IsSet("oversample") && (n < 1 || n > 16) {
+		return usagef("--oversample %d is outside 1…16", n)
+	}
+	if c.Bool("blind") && !c.IsSet("seed") {
+		return usagef("--blind needs --seed N: the shuffle is drawn from it, and the same seed gives the same set")
+	}
+	if !c.Bool("blind") && (c.IsSet("seed") || c.IsSet("key")) {
+		return usagef("--seed and --key belong to a --blind set")
+	}
+	var variants []abtest.Variant
+	for _, spec := range c.StringSlice("variant") {
+		v, err := abtest.ParseVariant(spec)
+		if err != nil {
+			return usagef("%v", err)
+		}
+		variants = append(variants, v)
+	}
+	seq := abtest.SequenceOptions{Rounds: c.Int("rounds")}
+	var err error
+	if seq.Segment, err = parseSeconds("--segment", c.String("segment")); err != nil {
+		return err
+	}
+	seq.Off = seq.Segment == 0
+	if seq.Crossfade, err = parseSeconds("--crossfade", c.String("crossfade")); err != nil {
+		return err
+	}
+	if seq.Start, err = parseSeconds("--segment-start", c.String("segment-start")); err != nil {
+		return err
+	}
+	if s := c.String("order"); s != "" {
+		seq.Order = strings.Split(s, ",")
+	}
+	ch, err := loadChain(c)
+	if err != nil {
+		return err
+	}
+	prog, done := progress(c.Bool("quiet"), "rendering variants")
+	set, err := abtest.Build(c.Context, abtest.Options{
+		Chain: ch, ChainPath: c.String("chain"), Dry: c.String("in"), OutDir: c.String("outdir"),
+		Variants: variants, NoBypass: c.Bool("no-bypass"), BypassLabel: c.String("bypass-label"),
+		Oversample: c.Int("oversample"), TargetLUFS: c.Float64("target-lufs"), CeilingDBTP: c.Float64("ceiling"),
+		Format: c.String("format"), Sequence: seq,
+		Blind: c.Bool("blind"), Seed: c.Int64("seed"), KeyPath: c.String("key"), PlotDir: c.String("plots"),
+		Force: c.Bool("force"), Jobs: c.Int("jobs"), Progress: prog,
+	})
+	done()
+	if err != nil {
+		var se *abtest.SpecError
+		var le *abtest.LabelError
+		var pe *abtest.ParamError
+		if errors.As(err, &se) || errors.As(err, &le) || errors.As(err, &pe) {
+			return usagef("%v", err)
+		}
+		return err
+	}
+	if c.Bool("json") {
+		if err := printJSON(c, set); err != nil {
+			return err
+		}
+	}
+	if !c.Bool("quiet") {
+		printAB(c.App.ErrWriter, set, c.String("outdir"))
+	}
+	fmt.Fprintln(c.App.ErrWriter, hearingCaution)
+	return nil
+}
+
+// parseSeconds reads a time: a plain number of seconds, or a number with
+// "s" or "ms".
+func parseSeconds(flag, s string) (float64, error) {
+	t := strings.TrimSpace(s)
+	scale := 1.0
+	switch {
+	case strings.HasSuffix(t, "ms"):
+		t, scale = strings.TrimSuffix(t, "ms"), 1e-3
+	case strings.HasSuffix(t, "s"):
+		t = strings.TrimSuffix(t, "s")
+	}
+	v, err := strconv.ParseFloat(strings.TrimSpace(t), 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
+		return 0, usagef("%s %q: want a time such as 4s, 2.5 or 20ms", flag, s)
+	}
+	return v * scale, nil
+}
+
+// printAB writes the human summary of a set.
+func printAB(w io.Writer, s *abtest.Set, dir string) {
+	fmt.Fprintf(w, "%d clips from %s (%.2f s, %d Hz, %d ch) in %s\n", len(s.Variants), filepath.Base(s.Dry.File),
+		s.Dry.Seconds, s.Dry.SampleRate, s.Dry.Channels, dir)
+	asked := ""
+	if s.CeilingLimited {
+		asked = fmt.Sprintf(", held below the %.1f LUFS asked for", float64(s.RequestedLUFS))
+	}
+	fmt.Fprintf(w, "  every clip at %.2f LUFS (spread %.3f LU%s), true peaks at or under %.1f dBTP\n",
+		float64(s.TargetLUFS), float64(s.SpreadLU), asked, float64(s.CeilingDBTP))
+	width := 5
+	for _, v := range s.Variants {
+		width = max(width, len([]rune(v.Shown())))
+	}
+	fmt.Fprintf(w, "  %-*s  %9s  %7s  %11s  %s\n", width, "clip", "gain", "LUFS", "true peak", "file")
+	for _, v := range s.Variants {
+		fmt.Fprintf(w, "  %-*s  %+6.2f dB  %7.2f  %6.2f dBTP  %s\n", width, v.Shown(), float64(v.GainDB), float64(v.LUFS),
+			float64(v.TruePeakDBTP), v.File)
+	}
+	if q := s.Sequence; q != nil {
+		fmt.Fprintf(w, "  %s: %d × [%s], %.3f s segments from %.3f s, %.0f ms crossfades (%.2f s)\n", q.File, q.Rounds,
+			strings.Join(q.Order, " "), q.SegmentSeconds, q.StartSeconds, 1000*q.CrossfadeSeconds, float64(q.Frames)/float64(s.Dry.SampleRate))
+	}
+	fmt.Fprintf(w, "  page: %s (self-contained, works offline)\n", filepath.Join(dir, abtest.PageFile))
+	if s.KeyFile != "" {
+		fmt.Fprintf(w, "  key: %s (keep it from the listener; ab.json's gain_db hints at which clip was quiet)\n", s.KeyFile)
+	}
+	for _, warn := range s.Warnings {
+		if !s.Blind {
+			fmt.Fprintln(w, "  warning: "+warn)
+		}
+	}
 }

@@ -1,9 +1,301 @@
 package main
 
-import "github.com/urfave/cli/v2"
+import (
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strings"
+	"text/tabwriter"
 
-// biasCommand is a placeholder until its issue lands.
+	"github.com/urfave/cli/v2"
+
+	"renderchain/bench"
+	"renderchain/chains"
+	"renderchain/models"
+)
+
 func biasCommand() *cli.Command {
-	return &cli.Command{Name: "bias", Usage: "DC operating point: node voltages and transistor bias (not built yet)", Hidden: true,
-		Action: func(c *cli.Context) error { return usagef("bias is not built yet") }}
+	return &cli.Command{
+		Name:  "bias",
+		Usage: "DC operating point: node voltages, transistor bias and regions; trimmer targets; battery and temperature tables",
+		UsageText: "renderchain bias --chain F [--set K=V]… [--json]\n" +
+			"   renderchain bias --chain F --target fuzz.Q2.vc=4.5V [--adjust fuzz.trim2]\n" +
+			"   renderchain bias --chain F --target symmetric [--level 300mV] [--freq 1kHz] [--probe NODE]\n" +
+			"   renderchain bias --chain F --supply 9.6,9,8,7 --temp 0,25,40",
+		Description: "Values are signed as measured: a PNP transistor shows negative Vbe, Vce and Ic.\n" +
+			"Measure a trimmer's resistance with the battery out and one leg lifted; in circuit the rest\n" +
+			"of the board shunts the reading.",
+		Flags: []cli.Flag{
+			chainFlag, setFlag, jsonFlag,
+			&cli.StringFlag{Name: "target", Usage: "turn a trimmer to reach `KEY=VALUE` (fuzz.Q2.vc=4.5V, fuzz.Q2.vce=4V, fuzz.Q2.ic=1mA, fuzz.c2=4.5V), or \"symmetric\" for equal clipping on both half-waves"},
+			&cli.StringFlag{Name: "adjust", Usage: "the knob a target turns, `STAGE.KNOB` or STAGE.POT (default: the trimmer the template marks for that transistor)"},
+			&cli.StringFlag{Name: "level", Usage: "symmetric target: test sine `V` peak at the source (Vpp accepted; default: the chain's input peak)"},
+			&cli.StringFlag{Name: "freq", Value: "1kHz", Usage: "symmetric target: test sine frequency `HZ`"},
+			&cli.StringFlag{Name: "probe", Usage: "symmetric target: `NODE` watched (default: the adjusted transistor's collector)"},
+			&cli.StringSliceFlag{Name: "supply", Usage: "table of the operating point at supply `V,V,…` (e.g. 9.6,9,8,7; the chain's polarity)"},
+			&cli.StringSliceFlag{Name: "temp", Usage: "table of the operating point at temperatures `C,C,…` (°C, e.g. 0,25,40)"},
+			&cli.BoolFlag{Name: "internal", Usage: "list nodes inside parts (a diode's junction) too"},
+		},
+		Action: biasAction,
+	}
+}
+
+// benchUsage turns the bench package's key errors into command-line
+// errors naming the flag (flag "": the key is the flag's name).
+func benchUsage(flag string, err error) error {
+	var ke *bench.KeyError
+	if errors.As(err, &ke) {
+		if flag == "" {
+			return usagef("--%s", ke.Error())
+		}
+		return usagef("--%s %s", flag, ke.Error())
+	}
+	return err
+}
+
+func biasAction(c *cli.Context) error {
+	if c.NArg() > 0 {
+		return usagef("bias takes no arguments (got %q)", c.Args().First())
+	}
+	ch, err := loadChain(c)
+	if err != nil {
+		return err
+	}
+	supplies, temps, err := biasConditions(c, ch)
+	if err != nil {
+		return err
+	}
+	var (
+		tr  *bench.TargetResult
+		sym *bench.SymmetricResult
+		b   *bench.Bias
+	)
+	switch target := strings.TrimSpace(c.String("target")); {
+	case target == "":
+		if c.IsSet("adjust") || c.IsSet("level") || c.IsSet("probe") || c.IsSet("freq") {
+			return usagef("--adjust, --level, --freq and --probe go with --target")
+		}
+	case strings.EqualFold(target, "symmetric"):
+		adj, err := bench.ResolveAdjuster(ch, c.String("adjust"), "")
+		if err != nil {
+			return benchUsage("adjust", err)
+		}
+		opt := bench.SymmetricOptions{Probe: c.String("probe")}
+		if s := c.String("level"); s != "" {
+			if opt.Level, err = benchAmplitude(s); err != nil {
+				return usagef("--level %s", err)
+			}
+		}
+		if opt.Freq, err = models.ParseValue(c.String("freq"), models.Frequency); err != nil || !(opt.Freq > 0) {
+			return usagef("--freq %q is not a frequency above 0 Hz", c.String("freq"))
+		}
+		if sym, err = bench.SolveSymmetric(c.Context, ch, adj, opt); err != nil {
+			return benchUsage("target", err)
+		}
+		ch.Stage(adj.Stage).Knobs[adj.Knob] = sym.Rotation
+		b = sym.Bias
+	default:
+		if c.IsSet("level") || c.IsSet("probe") || c.IsSet("freq") {
+			return usagef("--level, --freq and --probe go with --target symmetric")
+		}
+		t, err := bench.ParseTarget(ch, target)
+		if err != nil {
+			return benchUsage("target", err)
+		}
+		adj, err := bench.AdjusterFor(ch, t, c.String("adjust"))
+		if err != nil {
+			return benchUsage("adjust", err)
+		}
+		if tr, err = bench.SolveTarget(ch, t, adj); err != nil {
+			return err
+		}
+		ch.Stage(adj.Stage).Knobs[adj.Knob] = tr.Rotation
+		b = tr.Bias
+	}
+	if b == nil {
+		if b, err = bench.Solve(ch); err != nil {
+			return err
+		}
+	}
+	var rows []*bench.Bias
+	if supplies != nil || temps != nil {
+		if rows, err = bench.Sweep(ch, supplies, temps); err != nil {
+			return err
+		}
+	}
+	if c.Bool("json") {
+		r := b.Report()
+		if tr != nil {
+			r.Target = tr.Report()
+		}
+		if sym != nil {
+			r.Symmetric = sym.Report()
+		}
+		for _, row := range rows {
+			r.Conditions = append(r.Conditions, row.Row())
+		}
+		return printJSON(c, r)
+	}
+	w := c.App.Writer
+	if tr != nil {
+		biasPrintTarget(w, tr)
+	}
+	if sym != nil {
+		biasPrintSymmetric(w, sym)
+	}
+	biasPrint(w, b, c.Bool("internal"))
+	if rows != nil {
+		biasPrintConditions(w, rows)
+	}
+	return nil
+}
+
+// biasConditions reads --supply and --temp (each a comma list, repeatable).
+func biasConditions(c *cli.Context, ch *chains.Chain) (supplies, temps []float64, err error) {
+	if l := c.StringSlice("supply"); len(l) > 0 {
+		if supplies, err = bench.ParseSupplies(strings.Join(l, ","), ch.Supply); err != nil {
+			return nil, nil, benchUsage("supply", err)
+		}
+	}
+	if l := c.StringSlice("temp"); len(l) > 0 {
+		if temps, err = bench.ParseTemperatures(strings.Join(l, ",")); err != nil {
+			return nil, nil, benchUsage("temp", err)
+		}
+	}
+	return supplies, temps, nil
+}
+
+// benchAmplitude reads a peak voltage; "Vpp"/"mVpp" are peak-to-peak.
+func benchAmplitude(s string) (float64, error) {
+	t := strings.TrimSpace(s)
+	div := 1.0
+	if strings.HasSuffix(t, "pp") {
+		t, div = strings.TrimSuffix(t, "pp"), 2
+	}
+	v, err := models.ParseValue(t, models.Voltage)
+	if err != nil {
+		return 0, err
+	}
+	if !(v > 0) {
+		return 0, fmt.Errorf("%q must be above 0 V", s)
+	}
+	return v / div, nil
+}
+
+func biasVolts(v float64) string {
+	if math.Abs(v) < 0.0005 {
+		v = 0 // no "-0.000 V"
+	}
+	return fmt.Sprintf("%.3f V", v)
+}
+
+func biasPrint(w io.Writer, b *bench.Bias, internal bool) {
+	fmt.Fprintf(w, "%s (%s)\n", b.Chain, b.File)
+	fmt.Fprintf(w, "DC operating point at %s, %.1f °C (%s, %d iterations)\n\n", models.FormatValue(b.Supply, "V"),
+		b.Temperature-models.ZeroCelsius, b.Method, b.Iterations)
+	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
+	fmt.Fprintln(tw, "node\tvoltage")
+	for _, n := range b.Nodes {
+		if n.Internal && !internal {
+			continue
+		}
+		mark := ""
+		if n.Internal {
+			mark = "\t(inside the part)"
+		}
+		fmt.Fprintf(tw, "%s\t%s%s\n", n.Name, biasVolts(n.Volts), mark)
+	}
+	tw.Flush()
+	if len(b.Transistors) > 0 {
+		fmt.Fprintln(w)
+		tw = tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
+		fmt.Fprintln(tw, "transistor\tkind\tVc\tVb\tVe\tVbe\tVce\tIc\tIb\tP\tIc/Ib\tregion\t")
+		for _, t := range b.Transistors {
+			kind := "npn"
+			if t.PNP {
+				kind = "pnp"
+			}
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%.0f\t%s\t\n", t.Ref, kind, biasVolts(t.Vc), biasVolts(t.Vb), biasVolts(t.Ve),
+				biasVolts(t.Vbe), biasVolts(t.Vce), models.FormatValue(t.Ic, "A"), models.FormatValue(t.Ib, "A"),
+				models.FormatValue(t.Power, "W"), t.Beta, t.Region)
+		}
+		tw.Flush()
+	}
+	if len(b.Diodes) > 0 {
+		fmt.Fprintln(w)
+		tw = tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
+		fmt.Fprintln(tw, "diode\tanode\tcathode\tV\tI\tP\t")
+		for _, d := range b.Diodes {
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t\n", d.Ref, d.Anode, d.Cathode, biasVolts(d.V), models.FormatValue(d.I, "A"), models.FormatValue(d.Power, "W"))
+		}
+		tw.Flush()
+	}
+	fmt.Fprintf(w, "\nsupply delivers %s (%s)\n", models.FormatValue(b.SupplyCurrent, "A"), models.FormatValue(b.SupplyPower, "W"))
+	for _, s := range b.Warnings {
+		fmt.Fprintln(w, "warning: "+s)
+	}
+}
+
+func biasPrintTarget(w io.Writer, r *bench.TargetResult) {
+	if r.Reached {
+		fmt.Fprintf(w, "target %s: reached at %s = %.3f (was %.3f)\n", r.Target.Text, r.Adjust.Key(), r.Rotation, r.Start)
+	} else {
+		fmt.Fprintf(w, "target %s: OUT OF REACH\n", r.Target.Text)
+	}
+	fmt.Fprintf(w, "  %s\n", r.Message())
+	if len(r.Alternatives) > 0 {
+		var s []string
+		for _, x := range r.Alternatives {
+			s = append(s, fmt.Sprintf("%.3f", x))
+		}
+		fmt.Fprintf(w, "  also reached at %s\n", strings.Join(s, ", "))
+	}
+	fmt.Fprintf(w, "  measure with the battery out and the trimmer out of circuit; reproduce with --set %s=%.4f\n\n", r.Adjust.Key(), r.Rotation)
+}
+
+func biasPrintSymmetric(w io.Writer, r *bench.SymmetricResult) {
+	o := r.Options
+	fmt.Fprintf(w, "symmetric swing at %s for a %s, %s sine at the source:\n", r.Probe, models.FormatValue(o.Level, "V"), models.FormatValue(o.Freq, "Hz"))
+	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "  %s\tidle\tup\tdown\tasymmetry\t\n", r.Adjust.Key())
+	for _, s := range r.Scan {
+		fmt.Fprintf(tw, "  %.2f\t%s\t%s\t%s\t%+.3f\t\n", s.Rotation, biasVolts(s.Idle), biasVolts(s.Up), biasVolts(s.Down), s.Asymmetry)
+	}
+	tw.Flush()
+	if r.Reached {
+		fmt.Fprintf(w, "  equal half-waves at %s = %.3f (was %.3f): %s up, %s down; measure %s between ccw and wiper of %s\n",
+			r.Adjust.Key(), r.Rotation, r.Start, biasVolts(r.At.Up), biasVolts(r.At.Down), models.FormatValue(r.Lower, "Ω"), r.Adjust.PotRef())
+	} else {
+		fmt.Fprintf(w, "  not found: %s\n", r.Note)
+	}
+	fmt.Fprintf(w, "  reproduce with --set %s=%.4f\n\n", r.Adjust.Key(), r.Rotation)
+}
+
+func biasPrintConditions(w io.Writer, rows []*bench.Bias) {
+	fmt.Fprintln(w, "\noperating point by supply and temperature:")
+	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
+	head := "  supply\ttemp\t"
+	for _, t := range rows[0].Transistors {
+		head += t.Ref + " Vc\tVce\tIc\tregion\t"
+	}
+	fmt.Fprintln(tw, head+"supply I\t")
+	for _, b := range rows {
+		line := fmt.Sprintf("  %s\t%.0f °C\t", models.FormatValue(b.Supply, "V"), b.Temperature-models.ZeroCelsius)
+		for _, t := range b.Transistors {
+			region := string(t.Region)
+			if t.Collector != "gnd" && t.Collector != "v+" {
+				if math.Abs(t.Vc) < bench.RailMargin {
+					region += " (near gnd)"
+				}
+				if math.Abs(t.Vc-b.Supply) < bench.RailMargin {
+					region += " (near v+)"
+				}
+			}
+			line += fmt.Sprintf("%s\t%s\t%s\t%s\t", biasVolts(t.Vc), biasVolts(t.Vce), models.FormatValue(t.Ic, "A"), region)
+		}
+		fmt.Fprintf(tw, "%s%s\t\n", line, models.FormatValue(b.SupplyCurrent, "A"))
+	}
+	tw.Flush()
+	fmt.Fprintf(w, "  (near gnd / near v+: collector within %g V of that rail; the JSON rows carry the full warnings)\n", bench.RailMargin)
 }

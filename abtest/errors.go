@@ -1,0 +1,82 @@
+package abtest
+
+import (
+	"fmt"
+	"strings"
+)
+
+// SpecError reports a --variant text that cannot be read.
+type SpecError struct {
+	Spec string // the text as given
+	Msg  string
+}
+
+func (e *SpecError) Error() string { return fmt.Sprintf("--variant %q: %s", e.Spec, e.Msg) }
+
+// VariantError reports a variant whose chain could not be loaded, changed
+// or prepared: an unknown --set key, a bad value, a chain file that does not
+// parse, an operating point that does not converge.
+type VariantError struct {
+	Label string
+	Err   error
+}
+
+func (e *VariantError) Error() string { return fmt.Sprintf("variant %q: %v", e.Label, e.Err) }
+
+func (e *VariantError) Unwrap() error { return e.Err }
+
+// LabelError reports an unusable or repeated label.
+type LabelError struct {
+	Label string
+	Msg   string
+}
+
+func (e *LabelError) Error() string { return fmt.Sprintf("label %q: %s", e.Label, e.Msg) }
+
+// ParamError reports an option outside its accepted range.
+type ParamError struct {
+	Param string // option, e.g. "--ceiling"
+	Value string // as given or formatted
+	Want  string // what is accepted
+}
+
+func (e *ParamError) Error() string { return fmt.Sprintf("%s %s: want %s", e.Param, e.Value, e.Want) }
+
+// ExistsError reports an output folder that already holds clips from an
+// earlier run; Options.Force replaces them.
+type ExistsError struct {
+	Dir   string
+	Files []string // a few of the files found
+}
+
+func (e *ExistsError) Error() string {
+	list := e.Files
+	more := ""
+	if len(list) > 3 {
+		list, more = list[:3], ", …"
+	}
+	return fmt.Sprintf("%s holds clips from an earlier run (%s%s): pass --force to replace them",
+		e.Dir, strings.Join(list, ", "), more)
+}
+
+// ShortTakeError reports a dry take too short for what was asked of it.
+type ShortTakeError struct {
+	File    string
+	Seconds float64 // the take's length
+	Need    float64 // the length needed
+	Why     string  // what needs it
+}
+
+func (e *ShortTakeError) Error() string {
+	return fmt.Sprintf("%s: the dry take lasts %.3f s but %s needs %.3f s", e.File, e.Seconds, e.Why, e.Need)
+}
+
+// SilentError reports a clip whose loudness cannot be measured because no
+// 400 ms block passes the −70 LUFS gate, so no gain can match it.
+type SilentError struct {
+	Label string
+}
+
+func (e *SilentError) Error() string {
+	return fmt.Sprintf("clip %q is silent (no 400 ms block above −70 LUFS): its loudness cannot be matched", e.Label)
+}

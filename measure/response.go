@@ -1,0 +1,196 @@
+package measure
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"renderchain/chains"
+	"renderchain/dsp/mna"
+	"renderchain/models"
+	"renderchain/render"
+)
+
+// Point is one frequency of a response curve.
+type Point struct {
+	Hz  float64 `json:"hz"`
+	DB  Num     `json:"db"`  // 20·log10|H|
+	Deg Num     `json:"deg"` // arg H in degrees, (−180, 180]
+	// DBc, on a harmonic curve of a swept measurement, is the harmonic's
+	// level relative to the linear response at the same excitation
+	// frequency.
+	DBc *Num `json:"dbc,omitempty"`
+}
+
+// Curve is one labelled response.
+type Curve struct {
+	Label    string   `json:"label"`
+	Settings []string `json:"settings,omitempty"`
+	// Harmonic is set on swept curves: 1 for the linear response, h for
+	// the h-th harmonic response (plotted against the excitation
+	// frequency).
+	Harmonic int `json:"harmonic,omitempty"`
+	// ResolutionHz is the frequency resolution of a swept curve, the
+	// reciprocal of its time window.
+	ResolutionHz float64 `json:"resolution_hz,omitempty"`
+	Points       []Point `json:"points"`
+}
+
+// ResponseOptions configure a response measurement.
+type ResponseOptions struct {
+	// Probe is the node measured (default the chain's output); Ref, if
+	// set, a node the response is taken relative to instead of the source
+	// EMF.
+	Probe, Ref string
+	// SampleRate and Oversample give the internal rate whose Nyquist
+	// limit bounds the frequencies (defaults 48 kHz and the chain's own
+	// oversampling, else render.DefaultOversample).
+	SampleRate float64
+	Oversample int
+}
+
+// ResponseReport is the outcome of RunResponse or RunSwept. The JSON names
+// curves[].points[].hz, .db and .deg are part of the project's stable
+// interface.
+type ResponseReport struct {
+	Chain     string     `json:"chain"`
+	ChainFile string     `json:"chain_file"`
+	Mode      string     `json:"mode"` // "small-signal" or "swept"
+	Probe     string     `json:"probe"`
+	Reference string     `json:"reference"` // "source" (EMF) or a node name
+	Swept     *SweptInfo `json:"swept,omitempty"`
+	Curves    []Curve    `json:"curves"`
+}
+
+// checkFreqs bounds every frequency to [MinFrequency, limit).
+func checkFreqs(freqs []float64, limit float64, rateText string) error {
+	if len(freqs) == 0 {
+		return inputErr("frequencies", "", "none given")
+	}
+	for _, f := range freqs {
+		fv := models.FormatValue(f, "Hz")
+		if math.IsNaN(f) || f < MinFrequency {
+			return inputErr("frequency", fv, "is below the %g Hz limit", MinFrequency)
+		}
+		if f >= limit {
+			return inputErr("frequency", fv, "is at or above the Nyquist limit %s of the %s", models.FormatValue(limit, "Hz"), rateText)
+		}
+	}
+	return nil
+}
+
+func oversampleOf(ch *chains.Chain, n int) int {
+	if n == 0 {
+		n = ch.Oversample
+	}
+	if n == 0 {
+		n = render.DefaultOversample
+	}
+	return n
+}
+
+// SmallSignal returns the response of the chain at the given frequencies,
+// linearised at its DC operating point (mna.AC: every device replaced by
+// its small-signal conductances, capacitors and inductors by their
+// admittances): from the source EMF (or opt.Ref) to opt.Probe.
+func SmallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, error) {
+	if opt.SampleRate == 0 {
+		opt.SampleRate = DefaultSampleRate
+	}
+	internal := opt.SampleRate * float64(oversampleOf(ch, opt.Oversample))
+	if err := checkFreqs(freqs, internal/2, models.FormatValue(internal, "Hz")+" internal rate"); err != nil {
+		return nil, err
+	}
+	c, err := ch.Build()
+	if err != nil {
+		return nil, err
+	}
+	probe, err := ResolveNode(ch, c, opt.Probe)
+	if err != nil {
+		return nil, err
+	}
+	probes := []int{probe}
+	if opt.Ref != "" {
+		ref, err := ResolveNode(ch, c, opt.Ref)
+		if err != nil {
+			var ie *InputError
+			if errors.As(err, &ie) {
+				ie.What = "--ref"
+			}
+			return nil, err
+		}
+		probes = append(probes, ref)
+	}
+	op, err := mna.SolveDC(c, mna.DCOptions{})
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", ch.File, err)
+	}
+	h, err := mna.AC(c, op, freqs, probes)
+	if err != nil {
+		return nil, err
+	}
+	pts := make([]Point, len(freqs))
+	for i, f := range freqs {
+		v := h[i][0]
+		if len(probes) > 1 {
+			if h[i][1] == 0 {
+				v = cmplx.NaN()
+			} else {
+				v /= h[i][1]
+			}
+		}
+		pts[i] = point(f, v)
+	}
+	return pts, nil
+}
+
+func point(f float64, h complex128) Point {
+	return Point{Hz: f, DB: Num(db(cmplx.Abs(h))), Deg: Num(wrapDeg(cmplx.Phase(h) * 180 / math.Pi))}
+}
+
+// RunResponse computes the small-signal response of every variant of the
+// chain (one curve each, labelled by the variant).
+func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freqs []float64, opt ResponseOptions) (*ResponseReport, error) {
+	if len(variants) == 0 {
+		variants = []Variant{{}}
+	}
+	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "small-signal", Probe: probeName(opt.Probe), Reference: refName(opt.Ref)}
+	for _, v := range variants {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		c, err := v.Apply(ch)
+		if err != nil {
+			return nil, err
+		}
+		pts, err := SmallSignal(c, freqs, opt)
+		if err != nil {
+			return nil, err
+		}
+		rep.Curves = append(rep.Curves, Curve{Label: curveLabel(v.Label), Settings: v.Sets, Points: pts})
+	}
+	return rep, nil
+}
+
+func curveLabel(label string) string {
+	if label != "" {
+		return label
+	}
+	return "as set"
+}
+
+func probeName(p string) string {
+	if p == "" {
+		return "out"
+	}
+	return p
+}
+
+func refName(r string) string {
+	if r == "" {
+		return "source"
+	}
+	return r
+}

@@ -1,0 +1,316 @@
+package measure
+
+import (
+	"context"
+	"errors"
+	"math"
+	"math/cmplx"
+	"strings"
+	"testing"
+
+	"renderchain/chains"
+	"renderchain/dsp/spectrum"
+)
+
+func loadChain(t testing.TB, name string) *chains.Chain {
+	t.Helper()
+	ch, err := chains.Load("testdata/" + name + ".toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	return ch
+}
+
+const (
+	rcR         = 10e3   // Ω, testdata/rc-lowpass.toml
+	rcC         = 10e-9  // F
+	internalFs  = 192000 // Hz: 48 kHz × the default oversampling of 4
+	rippleLimit = 0.01   // dB: the rate converter's passband ripple bound (dsp/resample.PassbandRipple)
+)
+
+// warped is the analogue frequency the wave digital solver's bilinear
+// discretisation at rate fs shows at frequency f: (fs/π)·tan(π·f/fs)
+// (Oppenheim & Schafer, Discrete-Time Signal Processing, sec. 7.2).
+func warped(f, fs float64) float64 { return fs / math.Pi * math.Tan(math.Pi*f/fs) }
+
+// rcLowpass is the first-order low-pass 1/(1 + jωRC) (handbook formula).
+func rcLowpass(f float64) complex128 {
+	return 1 / complex(1, 2*math.Pi*f*rcR*rcC)
+}
+
+// An RC low-pass measured through the whole render path: its gain and
+// phase against the analytic first-order formula, and its distortion
+// against the floor a linear circuit allows.
+func TestSineLinearRC(t *testing.T) {
+	ch := loadChain(t, "rc-lowpass")
+	tests := []struct {
+		freq     float64
+		coherent bool
+	}{
+		{100, true}, {1000, true}, {5000, true}, {1000.3, false}, {15000, true},
+	}
+	for _, tc := range tests {
+		r, err := Sine(context.Background(), ch, tc.freq, 0.5, Options{})
+		if err != nil {
+			t.Fatalf("%g Hz: %v", tc.freq, err)
+		}
+		h := rcLowpass(warped(tc.freq, internalFs))
+		wantDB := db(cmplx.Abs(h))
+		wantDeg := cmplx.Phase(h) * 180 / math.Pi
+		gotDB := float64(r.GainDB)
+		t.Logf("%7g Hz: gain %.5f dB (analytic %.5f, error %.2e dB), phase %.4f° (analytic %.4f°), THD_F %.2e, THD+N %.2e, %s, settled at %.2f s",
+			tc.freq, gotDB, wantDB, gotDB-wantDB, r.Fundamental.PhaseDeg, wantDeg, r.THDPercent/100, r.THDNPercent/100, r.Record.Method, r.Settle.Seconds)
+		// Tolerance: the rate converter's passband ripple bound, 0.01 dB.
+		if math.Abs(gotDB-wantDB) > rippleLimit {
+			t.Errorf("%g Hz: gain %.5f dB, want %.5f ± %g dB", tc.freq, gotDB, wantDB, rippleLimit)
+		}
+		// Tolerance 0.05°: the converter's filters are linear-phase with
+		// their delay removed, so only its ripple can shift the phase.
+		if math.Abs(r.Fundamental.PhaseDeg-wantDeg) > 0.05 {
+			t.Errorf("%g Hz: phase %.4f°, want %.4f° ± 0.05°", tc.freq, r.Fundamental.PhaseDeg, wantDeg)
+		}
+		// A linear circuit makes no harmonics; what the render path can
+		// add is bounded by the converter's 100 dB stopband: THD_F below
+		// 1e-5 (−100 dB).
+		if r.THDPercent/100 > 1e-5 || r.THDNPercent/100 > 1e-5 {
+			t.Errorf("%g Hz: THD_F %.2e, THD+N %.2e; want both below 1e-5", tc.freq, r.THDPercent/100, r.THDNPercent/100)
+		}
+		if r.Record.Coherent != tc.coherent || !r.Settle.Settled || r.Clipping.Clips {
+			t.Errorf("%g Hz: coherent %v (want %v), settled %v, clips %v", tc.freq, r.Record.Coherent, tc.coherent, r.Settle.Settled, r.Clipping.Clips)
+		}
+	}
+}
+
+// Probing the source node measures the EMF itself: 0 dB and 0° through the
+// render path (tolerance: the converter's 0.01 dB passband ripple).
+func TestSineProbeSource(t *testing.T) {
+	ch := loadChain(t, "rc-lowpass")
+	r, err := Sine(context.Background(), ch, 2000, 0.25, Options{Probe: "in"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(float64(r.GainDB)) > rippleLimit || math.Abs(r.Fundamental.PhaseDeg) > 0.05 || r.Probe != "in" {
+		t.Errorf("probe in: gain %.5f dB, phase %.4f°, probe %q; want 0 dB, 0°, in", float64(r.GainDB), r.Fundamental.PhaseDeg, r.Probe)
+	}
+	// The peak of a 0.25 V sine (tolerance: ripple, 0.01 dB = 0.115 %).
+	if math.Abs(r.PeakPositiveV-0.25) > 0.25*0.00115 || math.Abs(r.PeakNegativeV+0.25) > 0.25*0.00115 {
+		t.Errorf("peaks %+.6f / %+.6f V, want ±0.25 V", r.PeakPositiveV, r.PeakNegativeV)
+	}
+}
+
+// A symmetric antiparallel-diode clipper has half-wave symmetry, f(−x) =
+// −f(x), so its output holds odd harmonics only (physics; any Fourier
+// text): even harmonics must stay below −80 dBc while the odd ones are
+// strong.
+func TestSineClipperOddOnly(t *testing.T) {
+	ch := loadChain(t, "clipper")
+	for _, amp := range []float64{0.3, 1, 3} {
+		r, err := Sine(context.Background(), ch, 1000, amp, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		worstEven := math.Inf(-1)
+		for _, h := range r.Harmonics {
+			if h.Order%2 == 0 {
+				worstEven = math.Max(worstEven, float64(h.DBc))
+			}
+		}
+		h3 := harmonicDBc(r, 3)
+		t.Logf("%g V peak: THD_F %.3f %%, H3 %.1f dBc, worst even %.1f dBc, even/odd %.1f dB, asymmetry %.1e, dwell %.2f/%.2f, clips %v",
+			amp, r.THDPercent, h3, worstEven, float64(r.EvenOddDB), float64(r.PeakAsymmetry),
+			float64(r.Clipping.DwellPositive), float64(r.Clipping.DwellNegative), r.Clipping.Clips)
+		if worstEven > -80 {
+			t.Errorf("%g V: worst even harmonic %.1f dBc, want below −80 dBc", amp, worstEven)
+		}
+		// The check must not pass vacuously: the diodes conduct hard
+		// at these levels (threshold about 0.5 V), so H3 is large.
+		if amp >= 1 && h3 < -40 {
+			t.Errorf("%g V: H3 %.1f dBc; the clipper should be clipping (> −40 dBc)", amp, h3)
+		}
+		// Symmetric excursions (tolerance 1e-4 of the swing).
+		if math.Abs(float64(r.PeakAsymmetry)) > 1e-4 || math.Abs(r.DCV) > 1e-6 {
+			t.Errorf("%g V: asymmetry %.2e, DC %.2e V; want symmetric about 0", amp, float64(r.PeakAsymmetry), r.DCV)
+		}
+	}
+}
+
+// Common practice (bench fact, no published source): a two-transistor
+// fuzz's trimmers are set with a 20 mV peak-to-peak sine; correctly biased,
+// its output at minimum fuzz is close to a clean sine and at maximum fuzz
+// close to a square wave. For the silicon fuzz template at its default
+// trimmers: THD_F below 10 % at minimum fuzz, above 30 % at maximum, at
+// 1 kHz.
+func TestSineFuzzTemplateTrimmerLevel(t *testing.T) {
+	ch := loadChain(t, "fuzz-si")
+	amp, err := ParseAmplitude("20mVpp")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		fuzz     string
+		min, max float64 // THD_F, %
+	}{{"0", 0, 10}, {"1", 30, 100}} {
+		c := ch.Clone()
+		if err := c.Set("fuzz.fuzz=" + tc.fuzz); err != nil {
+			t.Fatal(err)
+		}
+		r, err := Sine(context.Background(), c, 1000, amp, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Logf("fuzz %s: THD_F %.4g %%, THD+N %.4g %%, gain %.2f dB, output %.3f V rms, H2 %.1f dBc, H3 %.1f dBc, clips %v, settled %v at %.2f s",
+			tc.fuzz, r.THDPercent, r.THDNPercent, float64(r.GainDB), r.Fundamental.VRMS, harmonicDBc(r, 2), harmonicDBc(r, 3),
+			r.Clipping.Clips, r.Settle.Settled, r.Settle.Seconds)
+		if r.THDPercent < tc.min || r.THDPercent > tc.max {
+			t.Errorf("fuzz %s: THD_F %.4g %%, want between %g %% and %g %%", tc.fuzz, r.THDPercent, tc.min, tc.max)
+		}
+	}
+}
+
+func TestSineBadInput(t *testing.T) {
+	ch := loadChain(t, "rc-lowpass")
+	tests := []struct {
+		freq, amp float64
+		opt       Options
+		want      string // in the message
+	}{
+		{24000, 0.1, Options{}, "24 kHz"},
+		{30000, 0.1, Options{}, "Nyquist"},
+		{4.9, 0.1, Options{}, "5 Hz"},
+		{1000, 0, Options{}, "amplitude"},
+		{1000, -1, Options{}, "amplitude"},
+		{1000, math.NaN(), Options{}, "amplitude"},
+		{1000, 0.1, Options{Probe: "rc.nowhere"}, `"rc.nowhere"`},
+		{1000, 0.1, Options{Probe: "gnd"}, "ground"},
+		{1000, 0.1, Options{MaxOrder: 1}, "harmonic"},
+	}
+	for _, tc := range tests {
+		_, err := Sine(context.Background(), ch, tc.freq, tc.amp, tc.opt)
+		var ie *InputError
+		if !errors.As(err, &ie) || !strings.Contains(err.Error(), tc.want) || strings.Contains(err.Error(), "\n") {
+			t.Errorf("Sine(%g Hz, %g V, %+v) = %v; want a one-line *InputError naming %s", tc.freq, tc.amp, tc.opt, err, tc.want)
+		}
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if _, err := Sine(ctx, ch, 1000, 0.1, Options{}); !errors.Is(err, context.Canceled) {
+		t.Errorf("cancelled context: %v", err)
+	}
+}
+
+func TestRecordGeometry(t *testing.T) {
+	tests := []struct {
+		fs, f        float64
+		minN         int
+		n            int
+		coherent     bool
+		unitN, unitM int
+	}{
+		{48000, 1000, 4800, 4800, true, 48, 1},
+		{48000, 440, 4800, 4800, true, 1200, 11},
+		{44100, 1000, 4410, 4410, true, 441, 10},
+		{48000, 5, 4800, 9600, true, 9600, 1},
+		// No coherent unit within a second: ⌈4800·1000.3/48000⌉ = 101
+		// cycles, round(101·48000/1000.3) = 4847 samples.
+		{48000, 1000.3, 4800, 4847, false, 0, 0},
+	}
+	for _, tc := range tests {
+		n, coh, un, um := recordGeometry(tc.fs, tc.f, tc.minN)
+		if n != tc.n || coh != tc.coherent || un != tc.unitN || um != tc.unitM {
+			t.Errorf("recordGeometry(%g, %g, %d) = %d, %v, %d, %d; want %d, %v, %d, %d",
+				tc.fs, tc.f, tc.minN, n, coh, un, um, tc.n, tc.coherent, tc.unitN, tc.unitM)
+		}
+		// A coherent record holds a whole number of cycles (to the
+		// 1e-6 cycle dsp/spectrum asks of one).
+		cycles := float64(n) * tc.f / tc.fs
+		if tc.coherent && math.Abs(cycles-math.Round(cycles)) > 1e-6 {
+			t.Errorf("%g Hz: %d samples hold %.9f cycles", tc.f, n, cycles)
+		}
+	}
+}
+
+// The settle rule on windows whose DC decays as D·e^(−k·a): the relative
+// change between windows k−1 and k is D·e^(−k·a)·(e^a − 1)/R, so the first
+// k ≥ 2 with two consecutive changes within tol follows in closed form.
+func TestSettleDetector(t *testing.T) {
+	const (
+		R   = 1.0 // RMS of the AC part
+		D   = 0.5 // initial DC offset, V
+		a   = 0.7 // decay per window
+		tol = 1e-5
+	)
+	want := -1
+	change := func(k int) float64 { return D * math.Exp(-float64(k)*a) * (math.Exp(a) - 1) / R }
+	for k := 2; ; k++ {
+		if change(k) <= tol && change(k-1) <= tol {
+			want = k
+			break
+		}
+	}
+	d := settleDetector{tol: tol}
+	w := make([]float64, 96)
+	got := -1
+	for k := 0; k < 100; k++ {
+		dc := D * math.Exp(-float64(k)*a)
+		for i := range w {
+			w[i] = dc + R*math.Sqrt2*math.Sin(2*math.Pi*float64(i)/48)
+		}
+		d.next(w)
+		if d.settled() {
+			got = k
+			break
+		}
+	}
+	if got != want {
+		t.Errorf("settled at window %d, want %d (closed form)", got, want)
+	}
+	allocs := testing.AllocsPerRun(100, func() { d.next(w) })
+	if allocs != 0 {
+		t.Errorf("settleDetector.next allocates %.0f times per call, want 0", allocs)
+	}
+}
+
+// Dwell ratios of waveforms with known Fourier series (Abramowitz &
+// Stegun-style handbook series): a sine is 1 by definition; a square wave,
+// (4/π)·Σ sin(hθ)/h over odd h, is flat-topped; a triangle,
+// (8/π²)·Σ (−1)^((h−1)/2) sin(hθ)/h², is pointed.
+func TestDwellRatios(t *testing.T) {
+	series := func(amp func(h int) float64) *spectrum.Analysis {
+		an := &spectrum.Analysis{Fundamental: spectrum.Harmonic{Order: 1, Amplitude: amp(1)}}
+		for h := 2; h <= 10; h++ {
+			an.Harmonics = append(an.Harmonics, spectrum.Harmonic{Order: h, Amplitude: math.Abs(amp(h)),
+				Phase: map[bool]float64{true: math.Pi, false: 0}[amp(h) < 0]})
+		}
+		return an
+	}
+	sine := series(func(h int) float64 { return map[bool]float64{true: 1}[h == 1] })
+	square := series(func(h int) float64 {
+		if h%2 == 0 {
+			return 0
+		}
+		return 4 / math.Pi / float64(h)
+	})
+	triangle := series(func(h int) float64 {
+		if h%2 == 0 {
+			return 0
+		}
+		return 8 / (math.Pi * math.Pi) * math.Pow(-1, float64((h-1)/2)) / float64(h*h)
+	})
+	tests := []struct {
+		name   string
+		an     *spectrum.Analysis
+		lo, hi float64
+	}{
+		// Tolerance for the sine: one point of the 2048-point cycle,
+		// 1/(2048·0.1436) = 0.0034.
+		{"sine", sine, 1 - 0.0035, 1 + 0.0035},
+		{"square", square, 2.5, 3.5},
+		{"triangle", triangle, 0.5, 0.8},
+	}
+	for _, tc := range tests {
+		up, down := dwellRatios(tc.an)
+		if up < tc.lo || up > tc.hi || math.Abs(up-down) > 0.0035 {
+			t.Errorf("%s: dwell ratios %.4f / %.4f, want both in [%g, %g]", tc.name, up, down, tc.lo, tc.hi)
+		}
+	}
+}
