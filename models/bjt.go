@@ -139,5 +139,15 @@ func (b *BJT) Limit(vnew, vold []float64) {
 	vnew[1] = s * (be - bc)
 }
 
+// Physical reports whether the port voltages are physically reachable:
+// both junctions inside the range of physicalJunction.
+func (b *BJT) Physical(vbe, vce float64) bool {
+	if b.pnp {
+		vbe, vce = -vbe, -vce
+	}
+	return physicalJunction(vbe, b.vt) && physicalJunction(vbe-vce, b.vt) &&
+		vce < MaxPortVoltage && vce > -MaxPortVoltage
+}
+
 // EmissionVoltage returns Vt, the voltage scale of the exponentials.
 func (b *BJT) EmissionVoltage() float64 { return b.vt }

@@ -17,6 +17,19 @@ type Nonlinear interface {
 	Limit(vnew, vold []float64)
 }
 
+// MaxPortVoltage bounds the magnitude of any device port voltage a solver
+// may accept, volts: no effect-pedal circuit puts a kilovolt across a
+// junction, so a larger value marks a spurious root.
+const MaxPortVoltage = 1e3
+
+// physicalJunction reports whether a junction voltage v with emission
+// voltage nvt is one a finite circuit current can produce: forward bias
+// inside the exponential's range (below expLimit·nVt, about 2 V for a
+// silicon junction) and reverse bias within MaxPortVoltage.
+func physicalJunction(v, nvt float64) bool {
+	return v < expLimit*nvt && v > -MaxPortVoltage
+}
+
 // expLimit is the point past which exponentials are continued linearly.
 // exp(80) ≈ 5.5e34: no junction in a working circuit gets near (80·Vt ≈ 2 V
 // across an ideal junction), and the linear continuation keeps Newton's

@@ -48,5 +48,9 @@ func (d *Diode) Limit(vnew, vold []float64) {
 	vnew[0] = pnjlim(vnew[0], vold[0], d.NVt, d.vcrit)
 }
 
+// Physical reports whether v is a physically reachable diode voltage (see
+// physicalJunction); solvers reject roots outside it.
+func (d *Diode) Physical(v float64) bool { return physicalJunction(v, d.NVt) }
+
 // EmissionVoltage returns n·Vt, the voltage scale of the exponential.
 func (d *Diode) EmissionVoltage() float64 { return d.NVt }

@@ -292,3 +292,49 @@ func TestChannelZeroAlloc(t *testing.T) {
 		t.Errorf("%v allocations per block", a)
 	}
 }
+
+// Regression: a germanium build biased far off (Q2 trimmer at 0.1 and 0.2)
+// and driven hard at 2x oversampling once let Newton start from an
+// extrapolation that put a junction far into forward bias and accept a
+// spurious root of the linearly continued exponentials, and the states ran
+// away (1e25 V). The output of a −9 V circuit into its load cannot exceed
+// the supply: check it stays below 9 V at every sample.
+func TestGermaniumHardDriveStaysBounded(t *testing.T) {
+	for _, trim := range []string{"0.1", "0.2"} {
+		ch, err := chains.Load("../chains/germanium.toml")
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, kv := range []string{"fuzz.trim2=" + trim, "input.peak=400mV"} {
+			if err := ch.Set(kv); err != nil {
+				t.Fatal(err)
+			}
+		}
+		e, err := Prepare(ch, 2)
+		if err != nil {
+			t.Fatal(err)
+		}
+		c, err := e.NewChannel(48000)
+		if err != nil {
+			t.Fatal(err)
+		}
+		src := make([]float64, 4096)
+		dst := make([]float64, 4096)
+		worst := 0.0
+		for blk := 0; blk < 6; blk++ {
+			for i := range src {
+				src[i] = math.Sin(2 * math.Pi * 1000 * float64(blk*4096+i) / 48000)
+			}
+			n := c.Process(dst, src)
+			for _, v := range dst[:n] {
+				worst = math.Max(worst, math.Abs(v*ch.FullScale))
+			}
+		}
+		if !(worst < 9) {
+			t.Errorf("trim2 %s: output reached %.3g V", trim, worst)
+		}
+		if st := c.Stats(); st.NonConverged != 0 {
+			t.Errorf("trim2 %s: %d samples did not converge", trim, st.NonConverged)
+		}
+	}
+}

@@ -437,7 +437,7 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 		if !(step < inf) { // NaN or Inf
 			return it, false
 		}
-		if step < s.tol || step*step*s.curv < s.tol*0.1 {
+		if (step < s.tol || step*step*s.curv < s.tol*0.1) && s.physical() {
 			// First-order update of the currents to the accepted v (the
 			// error is O(step²), below the tolerance by the test above).
 			o := 0
@@ -461,11 +461,37 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 
 var inf = math.Inf(1)
 
+// physical reports whether every device's port voltages are physically
+// reachable (models' Physical): a root outside that range (a junction
+// forward-biased past the exponential's range, or kilovolts of reverse
+// bias) is a spurious solution of the linearly continued device
+// equations, and is not accepted.
+func (s *Solver) physical() bool {
+	for _, d := range s.devs {
+		switch {
+		case d.bjt != nil:
+			if !d.bjt.Physical(s.v[d.off], s.v[d.off+1]) {
+				return false
+			}
+		case d.dio != nil:
+			if !d.dio.Physical(s.v[d.off]) {
+				return false
+			}
+		}
+	}
+	return true
+}
+
 // substepIter is the Newton budget of each continuation sub-step.
 const substepIter = 100
 
-// predictorTrust bounds the curvature correction of the predictor, volts.
-const predictorTrust = 1e-2
+// predictorTrust bounds the curvature correction of the predictor, and
+// predictorMaxMove the last move of a port beyond which it is not
+// extrapolated at all, volts.
+const (
+	predictorTrust   = 1e-2
+	predictorMaxMove = 0.1
+)
 
 // buildJacobian writes J = I − K·Jf, Jf block-diagonal by device.
 func (s *Solver) buildJacobian() {
@@ -569,7 +595,11 @@ func abs(x float64) float64 {
 func (s *Solver) solve() {
 	// Predictor: quadratic extrapolation of the last three solutions,
 	// trusted only while it stays within predictorTrust of the linear one
-	// (near a clipping corner the curvature term overshoots).
+	// (near a clipping corner the curvature term overshoots). A device
+	// whose port moved more than predictorMaxMove in the last sample (a
+	// switching edge) starts from its last solution instead, and the
+	// prediction is junction-limited against that solution, so that no
+	// start puts a junction far into forward bias.
 	for r := range s.v {
 		lin := 2*s.vPrev[r] - s.vOld[r]
 		quad := 3*(s.vPrev[r]-s.vOld[r]) + s.vOld2[r]
@@ -578,6 +608,15 @@ func (s *Solver) solve() {
 		} else {
 			s.v[r] = lin
 		}
+	}
+	for _, d := range s.devs {
+		for r := d.off; r < d.off+d.n; r++ {
+			if m := s.vPrev[r] - s.vOld[r]; m > predictorMaxMove || m < -predictorMaxMove {
+				copy(s.v[d.off:d.off+d.n], s.vPrev[d.off:d.off+d.n])
+				break
+			}
+		}
+		d.model.Limit(s.v[d.off:d.off+d.n], s.vPrev[d.off:d.off+d.n])
 	}
 	it, ok := s.newton(s.p, s.maxIter)
 	total := it
