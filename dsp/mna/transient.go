@@ -27,7 +27,8 @@ type Transient struct {
 	devs  []DeviceState
 	vold  [][]float64
 	input int // element index of the signal source, −1 if none
-	// Tol is the Newton step tolerance in volts (default 1e-12).
+	// Tol is the Newton step tolerance, relative to the largest unknown
+	// plus one (default 1e-12).
 	Tol float64
 }
 
@@ -66,6 +67,7 @@ func NewTransient(c *models.Circuit, fs float64, op *OperatingPoint) *Transient 
 // and returns the Newton iterations it took.
 func (t *Transient) Step(vin float64) (int, error) {
 	const maxIter = 100
+	step := 0.0
 	for it := 1; it <= maxIter; it++ {
 		s := t.sys
 		s.Reset()
@@ -103,18 +105,20 @@ func (t *Transient) Step(vin float64) (int, error) {
 			return it, err
 		}
 		t.lu.Solve(s.Z)
-		step := 0.0
+		step = 0.0
 		for i := range t.x {
 			step = math.Max(step, math.Abs(s.Z[i]-t.x[i]))
 		}
 		copy(t.x, s.Z)
-		if step < t.Tol {
+		// Tol is relative to the largest unknown (at least 1 V or 1 A), so
+		// rounding in a large, stiff system cannot stall it.
+		if step < t.Tol*(1+maxAbs(t.x)) {
 			t.commit()
 			return it, nil
 		}
 	}
 	t.commit()
-	return maxIter, &NonConvergenceError{Iterations: maxIter}
+	return maxIter, &NonConvergenceError{Iterations: maxIter, Residual: step}
 }
 
 func (t *Transient) commit() {
