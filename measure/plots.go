@@ -66,10 +66,7 @@ func (r *Report) Figure() (*plotting.Figure, error) {
 			}
 		}
 		spec.Lines = append(spec.Lines, plotting.Line{X: hx, Y: hy, NoLine: true, Group: i + 1})
-		name := m.Label
-		if name == "" {
-			name = "as set"
-		}
+		name := curveLabel(Variant{Label: m.Label, Sets: m.Settings})
 		bars.Bars = append(bars.Bars, plotting.BarGroup{Label: name, Values: vals})
 	}
 	if !math.IsInf(top, 0) {
@@ -144,9 +141,13 @@ func (r *ResponseReport) Figure() *plotting.Figure {
 			group++
 		}
 		last = key
-		xs, ys, ds := make([]float64, len(c.Points)), make([]float64, len(c.Points)), make([]float64, len(c.Points))
+		var xs, ys, ds []float64
 		for i, p := range c.Points {
-			xs[i], ys[i], ds[i] = p.Hz, float64(p.DB), float64(p.Deg)
+			if i > 0 && math.Abs(float64(p.Deg-c.Points[i-1].Deg)) > 180 {
+				// A wrap of the phase: break the line there.
+				xs, ys, ds = append(xs, p.Hz), append(ys, float64(p.DB)), append(ds, math.NaN())
+			}
+			xs, ys, ds = append(xs, p.Hz), append(ys, float64(p.DB)), append(ds, float64(p.Deg))
 		}
 		dash := max(c.Harmonic-1, 0) // H1 solid, H2 dashed, H3 dotted, …
 		mag.Lines = append(mag.Lines, plotting.Line{Label: c.Label, X: xs, Y: ys, Dash: dash, Group: group})

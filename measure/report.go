@@ -253,8 +253,12 @@ func (r *ResponseReport) WriteTable(w io.Writer) error {
 	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	head := "  Hz\t"
-	for i := range r.Curves {
-		head += fmt.Sprintf("[%d] dB\t[%d] °\t", i+1, i+1)
+	for i, c := range r.Curves {
+		if c.Harmonic > 1 {
+			head += fmt.Sprintf("[%d] dB\t[%d] dBc\t", i+1, i+1)
+		} else {
+			head += fmt.Sprintf("[%d] dB\t[%d] °\t", i+1, i+1)
+		}
 	}
 	fmt.Fprintln(tw, head)
 	for _, f := range r.frequencies() {
@@ -265,7 +269,11 @@ func (r *ResponseReport) WriteTable(w io.Writer) error {
 				row += "\t\t"
 				continue
 			}
-			row += fmtNum(float64(p.DB), "%.3f") + "\t" + fmtNum(float64(p.Deg), "%.1f") + "\t"
+			second := fmtNum(float64(p.Deg), "%.1f")
+			if c.Harmonic > 1 && p.DBc != nil {
+				second = fmtNum(float64(*p.DBc), "%.2f")
+			}
+			row += fmtNum(float64(p.DB), "%.3f") + "\t" + second + "\t"
 		}
 		fmt.Fprintln(tw, row)
 	}

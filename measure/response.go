@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"strings"
 
 	"renderchain/chains"
 	"renderchain/dsp/mna"
@@ -169,14 +170,19 @@ func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freq
 		if err != nil {
 			return nil, err
 		}
-		rep.Curves = append(rep.Curves, Curve{Label: curveLabel(v.Label), Settings: v.Sets, Points: pts})
+		rep.Curves = append(rep.Curves, Curve{Label: curveLabel(v), Settings: v.Sets, Points: pts})
 	}
 	return rep, nil
 }
 
-func curveLabel(label string) string {
-	if label != "" {
-		return label
+// curveLabel names a variant: its varying settings, else every override,
+// else "as set" (the chain as written).
+func curveLabel(v Variant) string {
+	switch {
+	case v.Label != "":
+		return v.Label
+	case len(v.Sets) > 0:
+		return strings.Join(v.Sets, " ")
 	}
 	return "as set"
 }

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"math/cmplx"
+	"runtime"
 	"strings"
 	"testing"
 
@@ -312,5 +313,33 @@ func TestDwellRatios(t *testing.T) {
 		if up < tc.lo || up > tc.hi || math.Abs(up-down) > 0.0035 {
 			t.Errorf("%s: dwell ratios %.4f / %.4f, want both in [%g, %g]", tc.name, up, down, tc.lo, tc.hi)
 		}
+	}
+}
+
+// The measurement streams: memory allocated does not grow with how long it
+// waits for the output to settle. A tolerance no window can meet runs it
+// to the limit; 0.5 s and 2 s of rendering must allocate the same to
+// within 64 KiB, where buffering the stream would cost 8 bytes a sample
+// (576 KiB for the 1.5 s difference at 48 kHz).
+func TestSineConstantMemory(t *testing.T) {
+	ch := loadChain(t, "rc-lowpass")
+	alloc := func(maxSettle float64) uint64 {
+		var before, after runtime.MemStats
+		runtime.GC()
+		runtime.ReadMemStats(&before)
+		r, err := Sine(context.Background(), ch, 1000.3, 0.5, Options{SettleTolerance: 1e-300, MaxSettle: maxSettle})
+		runtime.ReadMemStats(&after)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Settle.Settled || r.Settle.Seconds < maxSettle-0.2 || len(r.Warnings) == 0 {
+			t.Errorf("MaxSettle %g s: settled %v at %.2f s, warnings %v; want the limit reached and warned about", maxSettle, r.Settle.Settled, r.Settle.Seconds, r.Warnings)
+		}
+		return after.TotalAlloc - before.TotalAlloc
+	}
+	short, long := alloc(0.5), alloc(2)
+	t.Logf("allocated %d B for 0.5 s, %d B for 2 s", short, long)
+	if long > short+64<<10 {
+		t.Errorf("2 s allocates %d B more than 0.5 s: the measurement should stream in constant memory", long-short)
 	}
 }

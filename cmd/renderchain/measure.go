@@ -34,15 +34,15 @@ func measureCommand() *cli.Command {
 			"energy, DC, peaks and their asymmetry, and whether the output clips.\n\n" +
 			"--amplitude is at the chain's source EMF, before any source impedance: 100mV, 0.1V (peak),\n" +
 			"20mVpp, 70.7mVrms, -20dBV. Sweep steps and conditions run in parallel across cores.\n\n" +
-			"Safety: on a real bench, a mains-powered signal generator or scope belongs on an isolated,\n" +
-			"earthed supply; this command needs neither.",
+			"Safety: on a real bench, keep mains-powered test gear earthed as its maker intends and\n" +
+			"power the pedal from its own 9 V supply; this command needs neither.",
 		Flags: []cli.Flag{
 			chainFlag,
 			&cli.StringFlag{Name: "freq", Aliases: []string{"f"}, Value: "1kHz", Usage: "test frequency (5 Hz up to below half the rate)"},
 			&cli.StringFlag{Name: "amplitude", Aliases: []string{"a"}, Value: "100mV", Usage: "source amplitude: 100mV (peak), 20mVpp, 70.7mVrms, -20dBV"},
 			familySetFlag,
-			&cli.StringFlag{Name: "supply", Usage: "supply voltages to measure at, `V,V,…` (plain numbers are volts)"},
-			&cli.StringFlag{Name: "temp", Usage: "temperatures to measure at, `C,C,…` (plain numbers are °C)"},
+			&cli.StringFlag{Name: "supply", Usage: "one measurement per supply voltage in the `V,V,…` list (plain numbers are volts)"},
+			&cli.StringFlag{Name: "temp", Usage: "one measurement per temperature in the `C,C,…` list (plain numbers are °C)"},
 			&cli.StringFlag{Name: "sweep-level", Usage: "step the source amplitude over `FROM..TO` in logarithmic steps, e.g. 1mV..1V"},
 			&cli.StringFlag{Name: "sweep-knob", Usage: "step a knob over `STAGE.KNOB=FROM..TO` in linear steps, e.g. fuzz.fuzz=0..1"},
 			&cli.IntFlag{Name: "steps", Value: 9, Usage: "number of sweep steps, ends included"},
@@ -74,6 +74,9 @@ func runMeasure(c *cli.Context) error {
 	}
 	if c.IsSet("sweep-level") && c.IsSet("sweep-knob") {
 		return usagef("--sweep-level and --sweep-knob exclude each other: sweep one thing at a time")
+	}
+	if c.IsSet("sweep-level") && c.IsSet("amplitude") {
+		return usagef("--amplitude and --sweep-level exclude each other: the sweep sets the amplitude")
 	}
 	if n := c.Int("oversample"); c.IsSet("oversample") && (n < 1 || n > 16) {
 		return usagef("--oversample %d is outside 1…16", n)
