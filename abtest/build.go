@@ -620,12 +620,6 @@ func (j *job) render(ctx context.Context, dry string, oversample int, pr *progre
 	defer in.Close()
 	fm := in.Format()
 	nc, fs := fm.Channels, float64(fm.SampleRate)
-	chans := make([]*render.Channel, nc)
-	for c := range chans {
-		if chans[c], err = eng.NewChannel(fs); err != nil {
-			return fail(err)
-		}
-	}
 	f, err := os.Create(j.raw)
 	if err != nil {
 		return err
@@ -639,65 +633,26 @@ func (j *job) render(ctx context.Context, dry string, oversample int, pr *progre
 	if err != nil {
 		return err
 	}
-	const blk = render.MaxBlock
-	inter := make([]float64, blk*nc)
-	outI := make([]float64, blk*nc)
-	src := make([][]float64, nc)
-	dst := make([][]float64, nc)
-	for c := range src {
-		src[c], dst[c] = make([]float64, blk), make([]float64, blk)
-	}
-	emit := func(n int) error {
-		for c := 0; c < nc; c++ {
-			for i := 0; i < n; i++ {
-				outI[i*nc+c] = dst[c][i]
-			}
-		}
-		meter.Write(outI[:n*nc])
-		if err := w.Write(outI[:n*nc]); err != nil {
+	var last int64
+	info, err := render.Stream(ctx, eng, in, fs, nc, nil, func(y []float64) error {
+		meter.Write(y)
+		if err := w.Write(y); err != nil {
 			return fail(fmt.Errorf("the circuit's output: %w", err))
 		}
 		return nil
-	}
-	for {
-		if err := ctx.Err(); err != nil {
+	}, func(done int64) {
+		pr.add(done - last)
+		last = done
+	})
+	if err != nil {
+		if errors.Is(err, render.ErrInterrupted) {
+			return ctx.Err()
+		}
+		var ve *VariantError
+		if errors.As(err, &ve) {
 			return err
 		}
-		n, rerr := in.Read(inter)
-		if n > 0 {
-			frames := n / nc
-			for c := 0; c < nc; c++ {
-				for i := 0; i < frames; i++ {
-					src[c][i] = inter[i*nc+c]
-				}
-			}
-			got := 0
-			for c := 0; c < nc; c++ {
-				got = chans[c].Process(dst[c], src[c][:frames])
-			}
-			if err := emit(got); err != nil {
-				return err
-			}
-			pr.add(int64(frames))
-		}
-		if rerr == io.EOF {
-			break
-		}
-		if rerr != nil {
-			return rerr
-		}
-	}
-	for {
-		got := 0
-		for c := 0; c < nc; c++ {
-			got = chans[c].Flush(dst[c])
-		}
-		if got == 0 {
-			break
-		}
-		if err := emit(got); err != nil {
-			return err
-		}
+		return fail(err)
 	}
 	if err := w.Close(); err != nil {
 		return err
@@ -705,9 +660,7 @@ func (j *job) render(ctx context.Context, dry string, oversample int, pr *progre
 	if err := meter.Err(); err != nil {
 		return fail(err)
 	}
-	for _, c := range chans {
-		j.stats.Add(c.Stats())
-	}
+	j.stats.Add(info.Stats)
 	j.before = levelsOf(meter)
 	j.clip.Solver = &SolverStats{MeanIterations: math.Round(j.stats.MeanIterations()*1000) / 1000,
 		MaxIterations: j.stats.MaxIterations, Fallbacks: j.stats.Fallbacks, NonConverged: j.stats.NonConverged}

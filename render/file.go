@@ -2,15 +2,12 @@ package render
 
 import (
 	"context"
-	"errors"
 	"fmt"
-	"io"
 	"math"
 	"time"
 
 	"renderchain/dsp/spectrum"
 	"renderchain/dsp/wavio"
-	"renderchain/dsp/wdf"
 )
 
 // Output sample formats.
@@ -68,12 +65,6 @@ func RenderFile(ctx context.Context, e *Engine, in, out string, opt FileOptions)
 		return nil, fmt.Errorf("--format %q is not one of pcm16, pcm24, float32", opt.Format)
 	}
 	fs := float64(f.SampleRate)
-	chans := make([]*Channel, f.Channels)
-	for c := range chans {
-		if chans[c], err = e.NewChannel(fs); err != nil {
-			return nil, err
-		}
-	}
 	o, err := wavio.CreateTemp(out)
 	if err != nil {
 		return nil, err
@@ -90,84 +81,29 @@ func RenderFile(ctx context.Context, e *Engine, in, out string, opt FileOptions)
 	}
 	rep := newReport(e, in, out, f, of, r.Frames())
 	start := time.Now()
-	nc := f.Channels
-	inter := make([]float64, MaxBlock*nc)
-	outInter := make([]float64, MaxBlock*nc)
-	src := make([][]float64, nc)
-	dst := make([][]float64, nc)
-	for c := range src {
-		src[c] = make([]float64, MaxBlock)
-		dst[c] = make([]float64, MaxBlock)
-	}
-	emit := func(n int) error {
-		for c := 0; c < nc; c++ {
-			for i := 0; i < n; i++ {
-				outInter[i*nc+c] = dst[c][i]
-			}
-		}
-		rep.wet.add(outInter[:n*nc])
-		return w.Write(outInter[:n*nc])
-	}
-	var done int64
 	lastProgress := time.Now()
-	for {
-		if err := ctx.Err(); err != nil {
-			return nil, errors.New("render interrupted: no output written")
-		}
-		n, rerr := r.Read(inter)
-		if n > 0 {
-			frames := n / nc
-			rep.dry.add(inter[:n])
-			for c := 0; c < nc; c++ {
-				for i := 0; i < frames; i++ {
-					src[c][i] = inter[i*nc+c]
-				}
-			}
-			got := 0
-			for c := 0; c < nc; c++ {
-				got = chans[c].Process(dst[c], src[c][:frames])
-			}
-			if err := emit(got); err != nil {
-				return nil, err
-			}
-			done += int64(frames)
-			if opt.Progress != nil && time.Since(lastProgress) > 100*time.Millisecond {
-				opt.Progress(done, r.Frames())
-				lastProgress = time.Now()
-			}
-		}
-		if rerr == io.EOF {
-			break
-		}
-		if rerr != nil {
-			return nil, rerr
+	prog := func(done int64) {
+		if opt.Progress != nil && time.Since(lastProgress) > 100*time.Millisecond {
+			opt.Progress(done, r.Frames())
+			lastProgress = time.Now()
 		}
 	}
-	for {
-		got := 0
-		for c := 0; c < nc; c++ {
-			got = chans[c].Flush(dst[c])
-		}
-		if got == 0 {
-			break
-		}
-		if err := emit(got); err != nil {
-			return nil, err
-		}
+	st, err := Stream(ctx, e, r, fs, f.Channels,
+		func(x []float64) error { rep.dry.add(x); return nil },
+		func(y []float64) error { rep.wet.add(y); return w.Write(y) },
+		prog)
+	if err != nil {
+		return nil, err
 	}
 	if opt.Progress != nil {
-		opt.Progress(done, r.Frames())
+		opt.Progress(r.Frames(), r.Frames())
 	}
 	elapsed := time.Since(start)
 	if err := w.Close(); err != nil {
 		return nil, err
 	}
-	var st wdf.Stats
-	for _, c := range chans {
-		st.Add(c.Stats())
-	}
-	rep.Solver.States, rep.Solver.NonlinearPorts = chans[0].Solver.States()
-	rep.finish(st, w.Clipped(), elapsed)
+	rep.Solver.States, rep.Solver.NonlinearPorts = st.States, st.NonlinearPorts
+	rep.finish(st.Stats, w.Clipped(), elapsed)
 	if err := o.Commit(); err != nil {
 		return nil, err
 	}

@@ -149,6 +149,9 @@ func writeJSONFile(path string, v any) error {
 		return err
 	}
 	_, err = f.Write(append(b, '\n'))
+	if err == nil {
+		err = f.Chmod(0o644) // CreateTemp makes 0600; a report is for sharing
+	}
 	if cerr := f.Close(); err == nil {
 		err = cerr
 	}
