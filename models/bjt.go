@@ -125,6 +125,18 @@ func (b *BJT) Eval2(vbe, vce float64) (ib, ic float64, jac [4]float64) {
 	return ib, ic, jac
 }
 
+// Limit2 is Limit without slices: it returns the limited (Vbe, Vce) for a
+// step from (vbe0, vce0) to (vbe, vce).
+func (b *BJT) Limit2(vbe, vce, vbe0, vce0 float64) (float64, float64) {
+	s := 1.0
+	if b.pnp {
+		s = -1
+	}
+	be := pnjlim(s*vbe, s*vbe0, b.vt, b.vcritBE)
+	bc := pnjlim(s*(vbe-vce), s*(vbe0-vce0), b.vt, b.vcritBC)
+	return s * be, s * (be - bc)
+}
+
 // Limit implements Nonlinear: junction limiting on Vbe and Vbc.
 func (b *BJT) Limit(vnew, vold []float64) {
 	s := 1.0

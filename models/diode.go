@@ -43,6 +43,9 @@ func (d *Diode) Eval(v, i, jac []float64) {
 	i[0], jac[0] = d.Current(v[0])
 }
 
+// Limit1 is Limit for one voltage: the limited value of a step v0 → v.
+func (d *Diode) Limit1(v, v0 float64) float64 { return pnjlim(v, v0, d.NVt, d.vcrit) }
+
 // Limit implements Nonlinear with junction limiting.
 func (d *Diode) Limit(vnew, vold []float64) {
 	vnew[0] = pnjlim(vnew[0], vold[0], d.NVt, d.vcrit)

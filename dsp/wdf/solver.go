@@ -388,18 +388,16 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 	if k == 0 {
 		return 0, true // a linear circuit: nothing to solve
 	}
+	v, i, f, dv, kk := s.v[:k], s.i[:k], s.f[:k], s.dv[:k], s.kk[:k*k]
+	p = p[:k]
 	best := inf
 	for it := 1; it <= maxIter; it++ {
 		s.evalDevices()
 		// Residual F = v − p − K·i and Newton matrix J = I − K·Jf.
 		res := 0.0
 		for r := 0; r < k; r++ {
-			acc := s.v[r] - p[r]
-			krow := s.kk[r*k : r*k+k]
-			for c, ic := range s.i {
-				acc -= krow[c] * ic
-			}
-			s.f[r] = -acc
+			acc := v[r] - p[r] - dot(kk[r*k:r*k+k], i)
+			f[r] = -acc
 			if acc < 0 {
 				acc = -acc
 			}
@@ -409,24 +407,22 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 		}
 		if res < best {
 			best = res
-			copy(s.vBest, s.v)
+			copy(s.vBest, v)
 		}
 		s.buildJacobian()
-		if !solveInPlace(s.jac, s.f, k) {
+		if !solveInPlace(s.jac, f, k) {
 			return it, false
 		}
 		// Limited step.
-		copy(s.dv, s.v)
+		copy(dv, v)
 		for r := 0; r < k; r++ {
-			s.v[r] += s.f[r]
+			v[r] += f[r]
 		}
-		for _, d := range s.devs {
-			d.model.Limit(s.v[d.off:d.off+d.n], s.dv[d.off:d.off+d.n])
-		}
+		s.limit(v, dv)
 		step := 0.0
 		for r := 0; r < k; r++ {
-			d := s.v[r] - s.dv[r]
-			s.dv[r] = d
+			d := v[r] - dv[r]
+			dv[r] = d
 			if d < 0 {
 				d = -d
 			}
@@ -441,22 +437,45 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 			// First-order update of the currents to the accepted v (the
 			// error is O(step²), below the tolerance by the test above).
 			o := 0
+			jd := s.jd
 			for _, d := range s.devs {
-				n := d.n
-				blk := s.jd[o : o+n*n]
-				for r := 0; r < n; r++ {
-					acc := 0.0
-					for c := 0; c < n; c++ {
-						acc += blk[r*n+c] * s.dv[d.off+c]
+				switch d.n {
+				case 1:
+					i[d.off] += jd[o] * dv[d.off]
+				case 2:
+					a, b := dv[d.off], dv[d.off+1]
+					i[d.off] += jd[o]*a + jd[o+1]*b
+					i[d.off+1] += jd[o+2]*a + jd[o+3]*b
+				default:
+					n := d.n
+					for r := 0; r < n; r++ {
+						acc := 0.0
+						for c := 0; c < n; c++ {
+							acc += jd[o+r*n+c] * dv[d.off+c]
+						}
+						i[d.off+r] += acc
 					}
-					s.i[d.off+r] += acc
 				}
-				o += n * n
+				o += d.n * d.n
 			}
 			return it, true
 		}
 	}
 	return maxIter, false
+}
+
+// limit applies each device's junction limiting to the step vold → v.
+func (s *Solver) limit(v, vold []float64) {
+	for _, d := range s.devs {
+		switch {
+		case d.bjt != nil:
+			v[d.off], v[d.off+1] = d.bjt.Limit2(v[d.off], v[d.off+1], vold[d.off], vold[d.off+1])
+		case d.dio != nil:
+			v[d.off] = d.dio.Limit1(v[d.off], vold[d.off])
+		default:
+			d.model.Limit(v[d.off:d.off+d.n], vold[d.off:d.off+d.n])
+		}
+	}
 }
 
 var inf = math.Inf(1)
@@ -616,8 +635,8 @@ func (s *Solver) solve() {
 				break
 			}
 		}
-		d.model.Limit(s.v[d.off:d.off+d.n], s.vPrev[d.off:d.off+d.n])
 	}
+	s.limit(s.v, s.vPrev)
 	it, ok := s.newton(s.p, s.maxIter)
 	total := it
 	if !ok {
