@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/dsp/synth"
 )
 
 // BenchmarkDemoChain renders a 220 Hz tone burst through chains/demo.toml
@@ -28,6 +29,7 @@ func BenchmarkDemoChain(b *testing.B) {
 	src := make([]float64, n)
 	dst := make([]float64, n)
 	ph := 0.0
+	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
 		for k := range src {
@@ -39,5 +41,39 @@ func BenchmarkDemoChain(b *testing.B) {
 	nsPerSample := float64(b.Elapsed().Nanoseconds()) / float64(b.N*n)
 	b.ReportMetric(nsPerSample, "ns/sample")
 	b.ReportMetric(1e9/nsPerSample/48000, "x-realtime")
+	b.ReportMetric(c.Stats().MeanIterations(), "newton/sample")
+}
+
+// BenchmarkDemoPhrase is the same chain on music: the first 2 s of the
+// demo's synthesized phrase (chords and single notes, hard clipping, many
+// switching edges), the harder case for the Newton solve.
+func BenchmarkDemoPhrase(b *testing.B) {
+	ch, err := chains.Load("../chains/demo.toml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	e, err := Prepare(ch, 4)
+	if err != nil {
+		b.Fatal(err)
+	}
+	x, err := synth.DemoPhrase(48000, 1)
+	if err != nil {
+		b.Fatal(err)
+	}
+	x = x[:2*48000]
+	dst := make([]float64, MaxBlock)
+	var c *Channel
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if c, err = e.NewChannel(48000); err != nil {
+			b.Fatal(err)
+		}
+		for k := 0; k+MaxBlock <= len(x); k += MaxBlock {
+			c.Process(dst, x[k:k+MaxBlock])
+		}
+	}
+	ns := float64(b.Elapsed().Nanoseconds()) / float64(b.N*(len(x)/MaxBlock*MaxBlock))
+	b.ReportMetric(ns, "ns/sample")
+	b.ReportMetric(1e9/ns/48000, "x-realtime")
 	b.ReportMetric(c.Stats().MeanIterations(), "newton/sample")
 }
