@@ -271,8 +271,7 @@ type stream interface {
 }
 
 // openStream builds the render path for the probed node: the render's own
-// Channel for the output, or the same oversampler and aligner around a
-// solver compiled with that probe.
+// Channel, for the output or for another node.
 func openStream(eng *render.Engine, fs float64, probe int) (stream, float64, func() wdf.Stats, error) {
 	if probe == eng.Circuit.Output {
 		c, err := eng.NewChannel(fs)
@@ -281,21 +280,11 @@ func openStream(eng *render.Engine, fs float64, probe int) (stream, float64, fun
 		}
 		return c, eng.Chain.FullScale, c.Stats, nil
 	}
-	s, err := wdf.Compile(eng.Circuit, eng.DC, wdf.Options{SampleRate: fs * float64(eng.Oversample), Probe: probe})
+	c, err := eng.NewProbeChannel(fs, probe)
 	if err != nil {
 		return nil, 0, nil, err
 	}
-	s.InputGain = eng.Chain.InputPeak
-	s.OutputGain = 1
-	ov, err := resample.NewOversampler(eng.Oversample, fs, s, render.MaxBlock)
-	if err != nil {
-		return nil, 0, nil, err
-	}
-	al, err := resample.NewAligner(ov, ov.Latency(), render.MaxBlock)
-	if err != nil {
-		return nil, 0, nil, err
-	}
-	return al, 1, s.Stats, nil
+	return c, 1, c.Stats, nil
 }
 
 // recordGeometry picks the analysed record: the shortest whole number of

@@ -71,6 +71,17 @@ func (e *Engine) NewChannel(fs float64) (*Channel, error) {
 	return newChannel(s, e.Oversample, fs)
 }
 
+// NewProbeChannel is NewChannel watching another node: its output samples
+// are that node's voltage in volts (not scaled by the full scale).
+func (e *Engine) NewProbeChannel(fs float64, node int) (*Channel, error) {
+	s, err := wdf.Compile(e.Circuit, e.DC, wdf.Options{SampleRate: fs * float64(e.Oversample), Probe: node})
+	if err != nil {
+		return nil, err
+	}
+	s.InputGain = e.Chain.InputPeak
+	return newChannel(s, e.Oversample, fs)
+}
+
 func newChannel(s *wdf.Solver, factor int, fs float64) (*Channel, error) {
 	os, err := resample.NewOversampler(factor, fs, s, MaxBlock)
 	if err != nil {
