@@ -1,5 +1,7 @@
 package resample
 
+import "gonum.org/v1/gonum/floats"
+
 // chunk is the number of base-rate samples Up and Down move through their
 // linear history buffers per pass. It bounds their memory; any len(src) is
 // accepted and walked in pieces of this size.
@@ -88,19 +90,5 @@ func (u *Up) Latency() int { return u.delay }
 func (u *Up) Reset() { clear(u.buf) }
 
 // dot returns Σ a[i]·b[i] over len(a); b must be at least as long as a.
-// Four partial sums shorten the floating-point dependency chain.
-func dot(a, b []float64) float64 {
-	b = b[:len(a)]
-	var s0, s1, s2, s3 float64
-	i := 0
-	for ; i+4 <= len(a); i += 4 {
-		s0 += a[i] * b[i]
-		s1 += a[i+1] * b[i+1]
-		s2 += a[i+2] * b[i+2]
-		s3 += a[i+3] * b[i+3]
-	}
-	for ; i < len(a); i++ {
-		s0 += a[i] * b[i]
-	}
-	return (s0 + s1) + (s2 + s3)
-}
+// gonum's assembly kernel (SIMD on amd64) does the work.
+func dot(a, b []float64) float64 { return floats.Dot(a, b[:len(a)]) }
