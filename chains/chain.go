@@ -652,16 +652,7 @@ func (p *Part) DiodeParams() models.DiodeParams {
 	if p.Model == "" {
 		d.Eg = 0
 	}
-	set := func(key string, dst *float64) {
-		if v, ok := p.Params[key]; ok {
-			*dst = v
-		}
-	}
-	set("is", &d.Is)
-	set("n", &d.N)
-	set("rs", &d.Rs)
-	set("eg", &d.Eg)
-	set("xti", &d.XTI)
+	p.setParams(map[string]*float64{"is": &d.Is, "n": &d.N, "rs": &d.Rs, "eg": &d.Eg, "xti": &d.XTI})
 	return d
 }
 
@@ -675,18 +666,17 @@ func (p *Part) BJTParams() models.BJTParams {
 	if p.Model == "" {
 		b.Eg = 0
 	}
-	set := func(key string, dst *float64) {
-		if v, ok := p.Params[key]; ok {
-			*dst = v
-		}
-	}
-	set("is", &b.Is)
-	set("hfe", &b.BetaF)
-	set("br", &b.BetaR)
-	set("icbo", &b.Icbo)
-	set("leak_doubling", &b.LeakDoubling)
-	set("eg", &b.Eg)
-	set("xti", &b.XTI)
+	p.setParams(map[string]*float64{"is": &b.Is, "hfe": &b.BetaF, "br": &b.BetaR, "icbo": &b.Icbo,
+		"leak_doubling": &b.LeakDoubling, "eg": &b.Eg, "xti": &b.XTI})
 	b.PNP = p.Kind == "pnp"
 	return b
+}
+
+// setParams copies the written parameters over the defaults.
+func (p *Part) setParams(dst map[string]*float64) {
+	for k, v := range p.Params {
+		if d, ok := dst[k]; ok {
+			*d = v
+		}
+	}
 }
