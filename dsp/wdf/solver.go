@@ -47,17 +47,10 @@ type devSlot struct {
 // channels (clones) share them.
 type shared struct {
 	ns, k int
-	// p = Pp·x + pc + pin·vin   (k)
-	pp, pc, pin []float64
-	kk          []float64 // K (k×k): v = p + K·i
-	rI          []float64 // root port resistances
-	// a = Ax·x + Ab·bI + ac + ain·vin   (ns), the next states
-	ax, ab, ac, ain []float64
-	// out = ox·x + ob·bI + oc + oin·vin
-	ox, ob  []float64
-	oc, oin float64
-	// Packed forms for the hot loop, over z = [x…, 1, vin, bI…]:
-	// p = pz·z[:ns+2] (k rows) and [x_next; out] = nz·z (ns+1 rows).
+	kk    []float64 // K (k×k): v = p + K·i
+	rI    []float64 // root port resistances
+	// Over z = [x…, 1, vin, bI…]: p = pz·z[:ns+2] (k rows) and
+	// [x_next; out] = nz·z (ns+1 rows).
 	pz, nz  []float64
 	devs    []devSlot
 	x0, v0  []float64 // states and device voltages at the operating point
@@ -155,26 +148,29 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 	// a_I = v + R_I·i and b_I = v − R_I·i substituted in
 	// a_I = S_IE·b_E + S_II·b_I + T_I·u,
 	//   v = W·(M_IE·b_E + Mu_I·u) − W·M_II·R_I·i,   W = (I − M_II)⁻¹.
-	sh.pp = make([]float64, k*ns)
-	sh.pc = make([]float64, k)
-	sh.pin = make([]float64, k)
+	// The hot loop works over z = [x…, 1, vin, bI…] (states, a constant
+	// 1, the signal, the root's waves): p = pz·z[:ns+2] (k rows) and
+	// [x_next; out] = nz·z (ns+1 rows), contiguous dot products.
+	zp, w2 := ns+2, ns+2+k
+	sh.pz = make([]float64, k*zp)
 	sh.kk = make([]float64, k*k)
 	for r := 0; r < k; r++ {
+		row := sh.pz[r*zp : (r+1)*zp]
 		for a, j := range xs {
 			s := 0.0
 			for q := 0; q < k; q++ {
 				s += w[r*k+q] * m(nE+q, j)
 			}
-			sh.pp[r*ns+a] = s * sign[a]
+			row[a] = s * sign[a]
 		}
 		for src := 0; src < nsrc; src++ {
 			s := 0.0
 			for q := 0; q < k; q++ {
 				s += w[r*k+q] * mu(nE+q, src)
 			}
-			sh.pc[r] += s * udc[src]
+			row[ns] += s * udc[src]
 			if src == sig {
-				sh.pin[r] = s
+				row[ns+1] = s
 			}
 		}
 		for c := 0; c < k; c++ {
@@ -185,46 +181,42 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 			sh.kk[r*k+c] = -s * sh.rI[c]
 		}
 	}
-	// Reflected waves into the reactive leaves: a = 2·v_port − b, i.e.
-	// a_X = (2M_XX − I)·b_X + 2M_XI·b_I + 2Mu_X·u.
-	sh.ax = make([]float64, ns*ns)
-	sh.ab = make([]float64, ns*k)
-	sh.ac = make([]float64, ns)
-	sh.ain = make([]float64, ns)
+	// Reflected waves into the reactive leaves, the next states: a =
+	// 2·v_port − b, i.e. a_X = (2M_XX − I)·b_X + 2M_XI·b_I + 2Mu_X·u.
+	sh.nz = make([]float64, (ns+1)*w2)
 	for r, jr := range xs {
+		row := sh.nz[r*w2 : (r+1)*w2]
 		for a, j := range xs {
 			v := 2 * m(jr, j)
 			if a == r {
 				v--
 			}
-			sh.ax[r*ns+a] = v * sign[a]
-		}
-		for c := 0; c < k; c++ {
-			sh.ab[r*k+c] = 2 * m(jr, nE+c)
+			row[a] = v * sign[a]
 		}
 		for src := 0; src < nsrc; src++ {
-			sh.ac[r] += 2 * mu(jr, src) * udc[src]
+			row[ns] += 2 * mu(jr, src) * udc[src]
 			if src == sig {
-				sh.ain[r] = 2 * mu(jr, src)
+				row[ns+1] = 2 * mu(jr, src)
 			}
 		}
+		for c := 0; c < k; c++ {
+			row[ns+2+c] = 2 * m(jr, nE+c)
+		}
 	}
-	// The probe node's voltage.
-	nn := func(c int) float64 { return ad.N[opt.Probe*P+c] }
-	sh.ox = make([]float64, ns)
-	sh.ob = make([]float64, k)
+	// The last row: the probe node's voltage.
+	out := sh.nz[ns*w2:]
 	for a, j := range xs {
-		sh.ox[a] = nn(j) * sign[a]
-	}
-	for c := 0; c < k; c++ {
-		sh.ob[c] = nn(nE + c)
+		out[a] = ad.N[opt.Probe*P+j] * sign[a]
 	}
 	for src := 0; src < nsrc; src++ {
 		u := ad.Nu[opt.Probe*nsrc+src]
-		sh.oc += u * udc[src]
+		out[ns] += u * udc[src]
 		if src == sig {
-			sh.oin = u
+			out[ns+1] = u
 		}
+	}
+	for c := 0; c < k; c++ {
+		out[ns+2+c] = ad.N[opt.Probe*P+nE+c]
 	}
 	// Devices and initial state from the operating point.
 	off := 0
@@ -251,34 +243,7 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 			sh.x0[a] = pt.r * op.Branch[pt.elem] // a = v + R·i with v = 0
 		}
 	}
-	sh.pack()
 	return sh.newChannel(), nil
-}
-
-// pack lays the matrices out row by row over z = [x…, 1, vin, bI…] so the
-// per-sample work is a handful of contiguous dot products.
-func (sh *shared) pack() {
-	ns, k := sh.ns, sh.k
-	w := ns + 2 + k
-	sh.pz = make([]float64, k*(ns+2))
-	for r := 0; r < k; r++ {
-		row := sh.pz[r*(ns+2) : (r+1)*(ns+2)]
-		copy(row, sh.pp[r*ns:r*ns+ns])
-		row[ns], row[ns+1] = sh.pc[r], sh.pin[r]
-	}
-	sh.nz = make([]float64, (ns+1)*w)
-	for r := 0; r <= ns; r++ {
-		row := sh.nz[r*w : (r+1)*w]
-		if r < ns {
-			copy(row, sh.ax[r*ns:r*ns+ns])
-			row[ns], row[ns+1] = sh.ac[r], sh.ain[r]
-			copy(row[ns+2:], sh.ab[r*k:r*k+k])
-		} else {
-			copy(row, sh.ox)
-			row[ns], row[ns+1] = sh.oc, sh.oin
-			copy(row[ns+2:], sh.ob)
-		}
-	}
 }
 
 // dot returns Σ a[i]·b[i] over len(a), four lanes at a time.
