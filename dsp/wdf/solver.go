@@ -75,6 +75,7 @@ type Solver struct {
 	xn          []float64 // next states
 	v, i        []float64 // device port voltages and currents
 	p, pPrev    []float64
+	pSub        []float64 // continuation target of a sub-step
 	vPrev, vOld []float64 // the last two solutions
 	vOld2       []float64 // and the one before
 	vBest       []float64
@@ -271,7 +272,7 @@ func (sh *shared) newChannel() *Solver {
 	}
 	s := &Solver{shared: sh, InputGain: 1, OutputGain: 1,
 		z: make([]float64, ns+2+k), xn: make([]float64, ns),
-		v: make([]float64, k), i: make([]float64, k), p: make([]float64, k), pPrev: make([]float64, k),
+		v: make([]float64, k), i: make([]float64, k), p: make([]float64, k), pPrev: make([]float64, k), pSub: make([]float64, k),
 		vPrev: make([]float64, k), vOld: make([]float64, k), vOld2: make([]float64, k), vBest: make([]float64, k), f: make([]float64, k), dv: make([]float64, k),
 		jd: make([]float64, jdLen), jac: make([]float64, k*k)}
 	s.Reset()
@@ -635,37 +636,25 @@ func (s *Solver) solve() {
 	copy(s.pPrev, s.p)
 }
 
-// substep runs the continuation; s.p is the target and is restored.
+// substep runs the continuation from the last sample's p to s.p.
 func (s *Solver) substep(total *int) bool {
-	k := s.k
-	var target, pl [16]float64
-	tgt := target[:k:k]
-	if k > len(target) {
-		tgt = make([]float64, k) // only for very large circuits
-	}
-	copy(tgt, s.p)
-	plv := pl[:k:k]
-	if k > len(pl) {
-		plv = make([]float64, k)
-	}
+	k, pl := s.k, s.pSub
 	for _, n := range [...]int{4, 16} {
 		copy(s.v, s.vPrev)
 		ok := true
 		for step := 1; step <= n && ok; step++ {
 			lam := float64(step) / float64(n)
 			for r := 0; r < k; r++ {
-				plv[r] = s.pPrev[r] + lam*(tgt[r]-s.pPrev[r])
+				pl[r] = s.pPrev[r] + lam*(s.p[r]-s.pPrev[r])
 			}
-			it, conv := s.newton(plv, substepIter)
+			it, conv := s.newton(pl, substepIter)
 			*total += it
 			ok = conv
 		}
 		if ok {
-			copy(s.p, tgt)
 			return true
 		}
 	}
-	copy(s.p, tgt)
 	return false
 }
 
