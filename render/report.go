@@ -4,8 +4,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
-	"os"
-	"path/filepath"
 	"time"
 
 	"renderchain/dsp/wavio"
@@ -134,32 +132,11 @@ func (r *Report) finish(st wdf.Stats, clipped int64, elapsed time.Duration) {
 	}
 }
 
-// writeJSONFile writes v as indented JSON to path via a temporary file.
+// writeJSONFile writes v as indented JSON to path, atomically.
 func writeJSONFile(path string, v any) error {
 	b, err := json.MarshalIndent(v, "", "  ")
 	if err != nil {
 		return err
 	}
-	dir, base := filepath.Split(path)
-	if dir == "" {
-		dir = "."
-	}
-	f, err := os.CreateTemp(dir, "."+base+".*.tmp")
-	if err != nil {
-		return err
-	}
-	_, err = f.Write(append(b, '\n'))
-	if err == nil {
-		err = f.Chmod(0o644) // CreateTemp makes 0600; a report is for sharing
-	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(f.Name(), path)
-	}
-	if err != nil {
-		os.Remove(f.Name())
-	}
-	return err
+	return wavio.WriteFileAtomic(path, append(b, '\n'))
 }

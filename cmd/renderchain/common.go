@@ -4,7 +4,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"os"
-	"path/filepath"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
@@ -12,6 +11,7 @@ import (
 	"golang.org/x/term"
 
 	"renderchain/chains"
+	"renderchain/dsp/wavio"
 )
 
 // Flags shared by several commands, defined once.
@@ -45,33 +45,7 @@ func writeJSON(path string, v any) error {
 	return writeFileAtomic(path, append(b, '\n'))
 }
 
-func writeFileAtomic(path string, b []byte) error {
-	dir := filepath.Dir(path)
-	f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.tmp")
-	if err != nil {
-		return err
-	}
-	tmp := f.Name()
-	if err := f.Chmod(0o644); err != nil { // CreateTemp makes 0600
-		f.Close()
-		os.Remove(tmp)
-		return err
-	}
-	if _, err := f.Write(b); err != nil {
-		f.Close()
-		os.Remove(tmp)
-		return err
-	}
-	if err := f.Close(); err != nil {
-		os.Remove(tmp)
-		return err
-	}
-	if err := os.Rename(tmp, path); err != nil {
-		os.Remove(tmp)
-		return err
-	}
-	return nil
-}
+func writeFileAtomic(path string, b []byte) error { return wavio.WriteFileAtomic(path, b) }
 
 func printJSON(c *cli.Context, v any) error {
 	b, err := json.MarshalIndent(v, "", "  ")

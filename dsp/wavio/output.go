@@ -147,3 +147,17 @@ func resolveMissing(p string) (string, error) {
 	}
 	return filepath.Join(dir, base), nil
 }
+
+// WriteFileAtomic writes b to path through CreateTemp and Commit: the file
+// appears whole or not at all, with the permissions CreateTemp gives it.
+func WriteFileAtomic(path string, b []byte) error {
+	o, err := CreateTemp(path)
+	if err != nil {
+		return err
+	}
+	if _, err := o.Write(b); err != nil {
+		o.Abort()
+		return err
+	}
+	return o.Commit()
+}

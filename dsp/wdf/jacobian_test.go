@@ -9,7 +9,7 @@ import (
 // the residual F(v) = v − p − K·f(v) itself, on the two-transistor stage
 // at several operating points (idle, and along a driven waveform, so that
 // devices are in their active, saturated and cut-off regions). Step h =
-// 1e-7 V: the truncation error h²·|F'''|/6 (|F'''| ≲ |K|·Is·e^x/Vt³) and
+// 1e-7 V: the truncation error h²·|F”'|/6 (|F”'| ≲ |K|·Is·e^x/Vt³) and
 // the rounding error ε·|F|/h both stay below 1e-6 of J's scale, the
 // tolerance used.
 func TestNewtonMatrixAgainstCentralDifferences(t *testing.T) {
