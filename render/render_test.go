@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"testing"
 
@@ -336,5 +337,34 @@ func TestGermaniumHardDriveStaysBounded(t *testing.T) {
 		if st := c.Stats(); st.NonConverged != 0 {
 			t.Errorf("trim2 %s: %d samples did not converge", trim, st.NonConverged)
 		}
+	}
+}
+
+// Streaming: the memory a render allocates does not grow with the file's
+// length (an 8 s file allocates what a 1 s file does, within 64 KiB: the
+// blocks, the filters and the spectrum accumulators are all fixed-size).
+func TestRenderMemoryIsFlat(t *testing.T) {
+	dir := t.TempDir()
+	alloc := func(seconds int) uint64 {
+		in := filepath.Join(dir, "in.wav")
+		x := make([]float64, seconds*48000)
+		for i := range x {
+			x[i] = 0.3 * math.Sin(2*math.Pi*440*float64(i)/48000)
+		}
+		writeTestWAV(t, in, wavio.Format{SampleRate: 48000, Channels: 1, BitDepth: 16}, x)
+		e := engine(t, dividerChain, 1)
+		var before, after runtime.MemStats
+		runtime.GC()
+		runtime.ReadMemStats(&before)
+		if _, err := RenderFile(context.Background(), e, in, filepath.Join(dir, "out.wav"), FileOptions{}); err != nil {
+			t.Fatal(err)
+		}
+		runtime.ReadMemStats(&after)
+		return after.TotalAlloc - before.TotalAlloc
+	}
+	short, long := alloc(1), alloc(8)
+	t.Logf("1 s: %d B, 8 s: %d B", short, long)
+	if long > short+64<<10 {
+		t.Errorf("an 8 s render allocates %d B, a 1 s render %d B", long, short)
 	}
 }
