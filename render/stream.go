@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"io"
+	"sync"
 
 	"renderchain/dsp/wdf"
 )
@@ -49,6 +50,7 @@ func Stream(ctx context.Context, e *Engine, src Source, fs float64, nc int, in, 
 		}
 		return sink(outInter[:n*nc])
 	}
+	counts := make([]int, nc)
 	var done int64
 	for {
 		if ctx.Err() != nil {
@@ -67,10 +69,7 @@ func Stream(ctx context.Context, e *Engine, src Source, fs float64, nc int, in, 
 					chIn[c][i] = inter[i*nc+c]
 				}
 			}
-			got := 0
-			for c := 0; c < nc; c++ {
-				got = chans[c].Process(chOut[c], chIn[c][:frames])
-			}
+			got := processChannels(chans, chOut, chIn, frames, counts)
 			if err := emit(got); err != nil {
 				return st, err
 			}
@@ -102,6 +101,25 @@ func Stream(ctx context.Context, e *Engine, src Source, fs float64, nc int, in, 
 		st.Stats.Add(c.Stats())
 	}
 	return st, nil
+}
+
+// processChannels runs one block through every channel, each channel on
+// its own goroutine when there are several (channels share nothing), and
+// returns the samples each produced (the same for all).
+func processChannels(chans []*Channel, out, in [][]float64, frames int, got []int) int {
+	if len(chans) == 1 {
+		return chans[0].Process(out[0], in[0][:frames])
+	}
+	var wg sync.WaitGroup
+	for c := range chans {
+		wg.Add(1)
+		go func(c int) {
+			defer wg.Done()
+			got[c] = chans[c].Process(out[c], in[c][:frames])
+		}(c)
+	}
+	wg.Wait()
+	return got[0]
 }
 
 // StreamInfo describes a finished Stream: the channels' summed Newton
