@@ -19,18 +19,37 @@ func (ch *Chain) Build() (*models.Circuit, error) {
 	c.Input = in
 	c.Add(models.Element{Ref: "input.source", Kind: models.VoltageSourceKind, Nodes: []int{in, models.Ground}, Signal: true})
 	c.Add(models.Element{Ref: "supply", Kind: models.VoltageSourceKind, Nodes: []int{vplus, models.Ground}, Value: ch.Supply})
+	// Each stage's out node is "STAGE.out", except the one that ends up as
+	// the chain's output, which is "out": the last stage's, or, behind
+	// trailing shunt stages (which pass their in through), the last
+	// out-driving stage's.
+	outName := make([]string, len(ch.Stages))
+	for k, st := range ch.Stages {
+		outName[k] = st.ID + ".out"
+	}
+	bufferedOut := -1 // a buffered shunt stage whose buffer output is the chain's output
+	for k := len(ch.Stages) - 1; k >= 0; k-- {
+		st := ch.Stages[k]
+		outName[k] = "out"
+		if st.usesPin("out") {
+			break
+		}
+		if st.Buffer {
+			bufferedOut = k
+			break
+		}
+	}
 	prev := "in"
 	for k, st := range ch.Stages {
-		last := k == len(ch.Stages)-1
 		stageIn := prev
 		if st.Buffer {
 			stageIn = st.ID + ".in"
+			if k == bufferedOut {
+				stageIn = "out"
+			}
 			c.Add(models.Element{Ref: st.ID + ".buffer", Kind: models.BufferKind, Nodes: []int{c.Node(stageIn), c.Node(prev)}})
 		}
-		stageOut := st.ID + ".out"
-		if last {
-			stageOut = "out"
-		}
+		stageOut := outName[k]
 		if !st.usesPin("out") {
 			stageOut = stageIn
 		}
@@ -54,11 +73,7 @@ func (ch *Chain) Build() (*models.Circuit, error) {
 		}
 		prev = stageOut
 	}
-	out := c.Lookup("out")
-	if out < 0 {
-		// The last stage is a shunt stage: its in is the chain's output.
-		out = c.Node(prev)
-	}
+	out := c.Node(prev) // "out", or "in" when every stage is a shunt
 	c.Output = out
 	if ch.Load > 0 {
 		c.Add(models.Element{Ref: "output.load", Kind: models.ResistorKind, Nodes: []int{out, models.Ground}, Value: ch.Load})

@@ -337,3 +337,39 @@ func TestExampleChains(t *testing.T) {
 		}
 	}
 }
+
+// The chain's output node is named "out" (the interface's shared node),
+// also when the last stages are shunt stages that pass their in through,
+// and a stage's out is the next stage's in (one node).
+func TestOutputNodeIsOut(t *testing.T) {
+	ch := demoChain(t)
+	c, err := ch.Build()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.Output != c.Lookup("out") || c.Lookup("out") < 0 {
+		t.Errorf("output node %q, want \"out\"", c.Nodes[c.Output])
+	}
+	// The volume pot's wiper (the last out-driving stage) is the output;
+	// the amp-input stage hangs on it.
+	if c.Element("volume.VR1.ccw").Nodes[1] != c.Output || c.Element("amp.RIN").Nodes[0] != c.Output {
+		t.Error("volume wiper and amplifier input are not the output node")
+	}
+	if c.Lookup("fuzz.out") < 0 || c.Element("tone.R1").Nodes[0] != c.Lookup("fuzz.out") {
+		t.Error("the fuzz's out is not the tone stage's in")
+	}
+	// A buffered shunt stage at the end: its buffer output is "out".
+	src := "name = \"b\"\n[output]\nload = \"none\"\n[[stage]]\nid = \"a\"\nparts = [{ ref = \"R1\", kind = \"resistor\", value = \"1k\", pins = [\"in\", \"out\"] }, { ref = \"R2\", kind = \"resistor\", value = \"1k\", pins = [\"out\", \"gnd\"] }]\n" +
+		"[[stage]]\nid = \"load\"\nbuffer = true\nparts = [{ ref = \"R\", kind = \"resistor\", value = \"10k\", pins = [\"in\", \"gnd\"] }]\n"
+	ch2, err := chains.Parse("b.toml", src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c2, err := ch2.Build()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c2.Nodes[c2.Output] != "out" || c2.Element("load.R").Nodes[0] != c2.Output {
+		t.Errorf("buffered shunt: output %q", c2.Nodes[c2.Output])
+	}
+}
