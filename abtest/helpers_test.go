@@ -17,19 +17,7 @@ import (
 // writeWAV writes interleaved samples as a 24-bit PCM WAV file.
 func writeWAV(t testing.TB, path string, x []float64, channels, rate int) {
 	t.Helper()
-	f, err := os.Create(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	w, err := wavio.NewWriter(f, wavio.Format{SampleRate: rate, Channels: channels, BitDepth: 24})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := w.Write(x); err != nil {
-		t.Fatal(err)
-	}
-	if err := w.Close(); err != nil {
+	if err := wavio.WriteFile(path, wavio.Format{SampleRate: rate, Channels: channels, BitDepth: 24}, x); err != nil {
 		t.Fatal(err)
 	}
 }

@@ -42,7 +42,7 @@ func Demo(ctx context.Context, dir string, workers int) ([]DemoTake, error) {
 		return nil, err
 	}
 	dry := filepath.Join(dir, "dry.wav")
-	if err := writeWAV(dry, phrase, DemoRate); err != nil {
+	if err := wavio.WriteFile(dry, wavio.Format{SampleRate: DemoRate, Channels: 1, BitDepth: 24}, phrase); err != nil {
 		return nil, err
 	}
 	base, err := chains.Example("demo")
@@ -109,23 +109,4 @@ func Demo(ctx context.Context, dir string, workers int) ([]DemoTake, error) {
 		takes = append(takes, j.take)
 	}
 	return takes, nil
-}
-
-func writeWAV(path string, x []float64, rate int) error {
-	o, err := wavio.CreateTemp(path)
-	if err != nil {
-		return err
-	}
-	w, err := wavio.NewWriter(o, wavio.Format{SampleRate: rate, Channels: 1, BitDepth: 24})
-	if err == nil {
-		err = w.Write(x)
-	}
-	if err == nil {
-		err = w.Close()
-	}
-	if err != nil {
-		o.Abort()
-		return err
-	}
-	return o.Commit()
 }

@@ -44,21 +44,7 @@ func engine(t testing.TB, src string, oversample int) *Engine {
 
 func writeTestWAV(t testing.TB, path string, f wavio.Format, x []float64) {
 	t.Helper()
-	o, err := wavio.CreateTemp(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	w, err := wavio.NewWriter(o, f)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := w.Write(x); err != nil {
-		t.Fatal(err)
-	}
-	if err := w.Close(); err != nil {
-		t.Fatal(err)
-	}
-	if err := o.Commit(); err != nil {
+	if err := wavio.WriteFile(path, f, x); err != nil {
 		t.Fatal(err)
 	}
 }

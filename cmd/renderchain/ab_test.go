@@ -2,7 +2,6 @@ package main
 
 import (
 	"encoding/json"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -22,15 +21,7 @@ func abDry(t *testing.T, dir string) string {
 	}
 	x = x[:72000]
 	path := filepath.Join(dir, "take.wav")
-	o, err := wavio.CreateTemp(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer o.Abort()
-	w, _ := wavio.NewWriter(o, wavio.Format{SampleRate: 48000, Channels: 1, BitDepth: 24})
-	w.Write(x)
-	w.Close()
-	if err := o.Commit(); err != nil {
+	if err := wavio.WriteFile(path, wavio.Format{SampleRate: 48000, Channels: 1, BitDepth: 24}, x); err != nil {
 		t.Fatal(err)
 	}
 	return path
@@ -39,30 +30,8 @@ func abDry(t *testing.T, dir string) string {
 // abStdout runs the command line with stdout captured.
 func abStdout(t *testing.T, args ...string) (int, string) {
 	t.Helper()
-	code, out, _ := abCapture(t, args...)
+	code, out, _ := capture(t, args...)
 	return code, out
-}
-
-// abCapture runs the command line with stdout and stderr captured.
-func abCapture(t *testing.T, args ...string) (int, string, string) {
-	t.Helper()
-	pipe := func(f **os.File) (func() string, func()) {
-		r, w, err := os.Pipe()
-		if err != nil {
-			t.Fatal(err)
-		}
-		old := *f
-		*f = w
-		got := make(chan string)
-		go func() { b, _ := io.ReadAll(r); got <- string(b) }()
-		return func() string { return <-got }, func() { *f = old; w.Close() }
-	}
-	out, restoreOut := pipe(&os.Stdout)
-	errs, restoreErr := pipe(&os.Stderr)
-	code := run(append([]string{"renderchain"}, args...))
-	restoreOut()
-	restoreErr()
-	return code, out(), errs()
 }
 
 // TestABCommand runs ab end to end and reads what the project's interface
@@ -74,7 +43,7 @@ func TestABCommand(t *testing.T) {
 	dir := t.TempDir()
 	dry := abDry(t, dir)
 	out := filepath.Join(dir, "set")
-	code, _, stderr := abCapture(t, "ab", "--chain", "../../chains/fuzz-only.toml", "--in", dry, "--outdir", out,
+	code, _, stderr := capture(t, "ab", "--chain", "../../chains/fuzz-only.toml", "--in", dry, "--outdir", out,
 		"--variant", "as built:", "--variant", "more fuzz: fuzz.fuzz=1", "--oversample", "1",
 		"--segment", "500ms", "--crossfade", "10ms", "--quiet")
 	if code != exitOK {
@@ -159,7 +128,7 @@ func TestABExitStatuses(t *testing.T) {
 		{"seed without blind", []string{"--outdir", out, "--seed", "3"}, exitUsage, "--blind"},
 		{"ceiling above 0 dBTP", []string{"--outdir", out, "--ceiling", "1"}, exitUsage, "--ceiling"},
 	} {
-		code, _, msg := abCapture(t, append(base, tc.args...)...)
+		code, _, msg := capture(t, append(base, tc.args...)...)
 		if code != tc.want || !strings.Contains(msg, tc.msg) || strings.Count(msg, "\n") != 1 {
 			t.Errorf("%s: exit %d, message %q; want exit %d and one line naming %s", tc.name, code, msg, tc.want, tc.msg)
 		}
@@ -193,11 +162,7 @@ func abEntries(t *testing.T, dir string) []string {
 func TestAnalyzeCommand(t *testing.T) {
 	dir := t.TempDir()
 	p := filepath.Join(dir, "silence.wav")
-	o, _ := wavio.CreateTemp(p)
-	w, _ := wavio.NewWriter(o, wavio.Format{SampleRate: 44100, Channels: 2, BitDepth: 16})
-	w.Write(make([]float64, 2*44100))
-	w.Close()
-	if err := o.Commit(); err != nil {
+	if err := wavio.WriteFile(p, wavio.Format{SampleRate: 44100, Channels: 2, BitDepth: 16}, make([]float64, 2*44100)); err != nil {
 		t.Fatal(err)
 	}
 	code, js := abStdout(t, "analyze", "--json", p)

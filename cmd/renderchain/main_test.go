@@ -18,14 +18,7 @@ func dryTake(t *testing.T, dir string) string {
 		t.Fatal(err)
 	}
 	path := filepath.Join(dir, "dry.wav")
-	o, err := wavio.CreateTemp(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	w, _ := wavio.NewWriter(o, wavio.Format{SampleRate: 48000, Channels: 1, BitDepth: 24})
-	w.Write(x)
-	w.Close()
-	if err := o.Commit(); err != nil {
+	if err := wavio.WriteFile(path, wavio.Format{SampleRate: 48000, Channels: 1, BitDepth: 24}, x); err != nil {
 		t.Fatal(err)
 	}
 	return path

@@ -4,7 +4,6 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"image/png"
-	"io"
 	"math"
 	"math/cmplx"
 	"os"
@@ -47,34 +46,12 @@ parts = [
 	return path
 }
 
-// measCapture runs a command line with stdout and stderr captured.
-func measCapture(t *testing.T, args ...string) (code int, stdout, stderr string) {
-	t.Helper()
-	pipe := func(f **os.File) (func() string, func()) {
-		r, w, err := os.Pipe()
-		if err != nil {
-			t.Fatal(err)
-		}
-		old := *f
-		*f = w
-		got := make(chan string)
-		go func() { b, _ := io.ReadAll(r); got <- string(b) }()
-		return func() string { return <-got }, func() { *f = old; w.Close() }
-	}
-	out, restoreOut := pipe(&os.Stdout)
-	errs, restoreErr := pipe(&os.Stderr)
-	code = run(append([]string{"renderchain"}, args...))
-	restoreOut()
-	restoreErr()
-	return code, out(), errs()
-}
-
 // measure --json gives the interface's fields; the clipper makes odd
 // harmonics only (half-wave symmetry), so THD_F comes from H3, H5, … and
 // every even harmonic is far below them.
 func TestMeasureCommandJSON(t *testing.T) {
 	chain := measTestChain(t)
-	code, out, errs := measCapture(t, "measure", "--chain", chain, "--freq", "1kHz", "--amplitude", "2Vpp", "--json", "--quiet")
+	code, out, errs := capture(t, "measure", "--chain", chain, "--freq", "1kHz", "--amplitude", "2Vpp", "--json", "--quiet")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -107,7 +84,7 @@ func TestMeasureCommandConditionsCSVAndPlot(t *testing.T) {
 	chain := measTestChain(t)
 	dir := t.TempDir()
 	plot := filepath.Join(dir, "thd.png")
-	code, out, errs := measCapture(t, "measure", "--chain", chain, "--amplitude", "300mV", "--supply", "9,7",
+	code, out, errs := capture(t, "measure", "--chain", chain, "--amplitude", "300mV", "--supply", "9,7",
 		"--set", "clip.R1=10k,22k", "--csv", "--plot", plot, "--quiet")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
@@ -128,7 +105,7 @@ func TestMeasureCommandConditionsCSVAndPlot(t *testing.T) {
 		t.Errorf("plot is not a PNG: %v", err)
 	}
 	// A knob-free level sweep, table output.
-	code, out, errs = measCapture(t, "measure", "--chain", chain, "--sweep-level", "10mV..1V", "--steps", "3", "--quiet")
+	code, out, errs = capture(t, "measure", "--chain", chain, "--sweep-level", "10mV..1V", "--steps", "3", "--quiet")
 	if code != 0 || !strings.Contains(out, "input V pk") || strings.Count(out, "mV") < 2 {
 		t.Errorf("level sweep: exit %d, %s\n%s", code, errs, out)
 	}
@@ -158,7 +135,7 @@ func TestMeasureCommandBadInput(t *testing.T) {
 		{[]string{"--amplitude", "1V", "--plot", plot, "--set", "clip.D1.n=banana"}, 1, "banana"},
 	}
 	for _, tc := range tests {
-		code, _, errs := measCapture(t, append([]string{"measure", "--chain", chain, "--quiet"}, tc.args...)...)
+		code, _, errs := capture(t, append([]string{"measure", "--chain", chain, "--quiet"}, tc.args...)...)
 		msg := strings.TrimSpace(errs)
 		if code != tc.code || !strings.Contains(msg, tc.want) || strings.Count(msg, "\n") > 0 {
 			t.Errorf("measure %v: exit %d, stderr %q; want exit %d and one line naming %s", tc.args, code, msg, tc.code, tc.want)
@@ -177,7 +154,7 @@ func TestMeasureCommandBadInput(t *testing.T) {
 // admittance of that branch (nodal analysis by hand). Tolerance 0.01 dB.
 func TestResponseCommandJSON(t *testing.T) {
 	chain := measTestChain(t)
-	code, out, errs := measCapture(t, "response", "--chain", chain, "--freqs", "100,1k,10k", "--probe", "rc.out",
+	code, out, errs := capture(t, "response", "--chain", chain, "--freqs", "100,1k,10k", "--probe", "rc.out",
 		"--set", "rc.C1=10n,22n", "--json")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
@@ -220,7 +197,7 @@ func TestResponseCommandJSON(t *testing.T) {
 	}
 	t.Logf("rc.out against the hand nodal formula: worst %.2e dB", worst)
 	// The swept mode through the same chain at a small level.
-	code, out, errs = measCapture(t, "response", "--chain", chain, "--from", "100", "--to", "5k", "--points", "5",
+	code, out, errs = capture(t, "response", "--chain", chain, "--from", "100", "--to", "5k", "--points", "5",
 		"--swept", "--amplitude", "10mV", "--duration", "1s", "--json", "--quiet")
 	if code != 0 || !strings.Contains(out, `"mode": "swept"`) || !strings.Contains(out, `"H2`) {
 		t.Errorf("swept: exit %d, %s\n%.400s", code, errs, out)
@@ -243,7 +220,7 @@ func TestResponseCommandBadInput(t *testing.T) {
 		{[]string{"--freqs", "1k", "--points", "9"}, "--freqs"},
 	}
 	for _, tc := range tests {
-		code, _, errs := measCapture(t, append([]string{"response", "--chain", chain, "--quiet"}, tc.args...)...)
+		code, _, errs := capture(t, append([]string{"response", "--chain", chain, "--quiet"}, tc.args...)...)
 		msg := strings.TrimSpace(errs)
 		if code != 2 || !strings.Contains(msg, tc.want) || strings.Contains(msg, "\n") {
 			t.Errorf("response %v: exit %d, stderr %q; want exit 2 and one line naming %s", tc.args, code, msg, tc.want)

@@ -161,3 +161,24 @@ func WriteFileAtomic(path string, b []byte) error {
 	}
 	return o.Commit()
 }
+
+// WriteFile writes the interleaved samples x as a whole WAV file of format
+// f at path, atomically (CreateTemp, then Commit; nothing is left on error).
+func WriteFile(path string, f Format, x []float64) error {
+	o, err := CreateTemp(path)
+	if err != nil {
+		return err
+	}
+	w, err := NewWriter(o, f)
+	if err == nil {
+		err = w.Write(x)
+	}
+	if err == nil {
+		err = w.Close()
+	}
+	if err != nil {
+		o.Abort()
+		return err
+	}
+	return o.Commit()
+}

@@ -268,3 +268,36 @@ func TestSameFile(t *testing.T) {
 		t.Error("SameFile through a regular file: want an error")
 	}
 }
+
+// WriteFile round-trips samples exactly (16-bit codes here) and leaves no
+// file when the samples are refused (NaN).
+func TestWriteFile(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "w.wav")
+	x := []float64{0, 0.5, -0.5, 0.25}
+	if err := WriteFile(path, Format{SampleRate: 48000, Channels: 1, BitDepth: 16}, x); err != nil {
+		t.Fatal(err)
+	}
+	f, err := Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := make([]float64, 8)
+	n, _ := f.Read(got)
+	f.Close()
+	if n != len(x) {
+		t.Fatalf("read %d samples", n)
+	}
+	for i := range x {
+		if got[i] != x[i] { // 0, ±0.5, 0.25 are exact 16-bit codes
+			t.Errorf("sample %d = %g, want %g", i, got[i], x[i])
+		}
+	}
+	bad := filepath.Join(dir, "bad.wav")
+	if err := WriteFile(bad, Format{SampleRate: 48000, Channels: 1, BitDepth: 16}, []float64{math.NaN()}); err == nil {
+		t.Fatal("NaN accepted")
+	}
+	if ents, _ := os.ReadDir(dir); len(ents) != 1 {
+		t.Errorf("files left: %d", len(ents))
+	}
+}
