@@ -83,3 +83,21 @@ func pnjlim(vnew, vold, nvt, vcrit float64) float64 {
 func criticalVoltage(nvt, is float64) float64 {
 	return nvt * math.Log(nvt/(math.Sqrt2*is))
 }
+
+// Charged is a Nonlinear device that also stores charge on its ports:
+// junction depletion and diffusion charges. Port k's charge q_k is the
+// charge that has flowed into its Plus terminal, so its capacitive current
+// is dq_k/dt, added to the current Eval returns. Charges is static: the
+// solvers own the time discretisation (the trapezoidal rule, the bilinear
+// transform every linear reactive element uses) and the per-sample state
+// (last charge and last capacitive current), so a device stays a pure
+// function of its port voltages. The DC solve ignores charges; the
+// small-signal analyses add jω times the capacitance matrix at the
+// operating point.
+type Charged interface {
+	Nonlinear
+	// Charges writes the port charges q (len P), coulombs, and the
+	// capacitance matrix dq/dv (row-major P×P), farads, for the port
+	// voltages v (len P). It must be cheap and allocation-free.
+	Charges(v, q, c []float64)
+}
