@@ -528,8 +528,10 @@ func TestOtherChainFile(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if jobs[0].ch.Name != ge.Name || jobs[0].ch.Supply != 9.5 || ge.Supply == 9.5 {
-		t.Errorf("variant chain %q supply %g; want %q with the 9.5 V override", jobs[0].ch.Name, jobs[0].ch.Supply, ge.Name)
+	// The germanium chain is a positive-ground build (supply = "-9V"): the
+	// override sets the magnitude and keeps the file's polarity.
+	if jobs[0].ch.Name != ge.Name || jobs[0].ch.Supply != -9.5 || ge.Supply != -9 {
+		t.Errorf("variant chain %q supply %g; want %q with the 9.5 V override at the file's polarity, -9.5 V", jobs[0].ch.Name, jobs[0].ch.Supply, ge.Name)
 	}
 	if !jobs[1].bypass || len(jobs) != 2 {
 		t.Errorf("want the variant and the bypass, got %d jobs", len(jobs))

@@ -3,7 +3,6 @@ package bench
 import (
 	"fmt"
 	"math"
-	"strings"
 
 	"renderchain/chains"
 	"renderchain/dsp/mna"
@@ -151,9 +150,8 @@ func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
 	return b
 }
 
-// internalNode tells the nodes Build adds inside a part ("stage.REF.x")
-// from a stage's own nodes ("stage.node").
-func internalNode(name string) bool { return strings.Count(name, ".") >= 2 }
+// internalNode tells the nodes Build adds inside a part (chains.InternalNode).
+func internalNode(name string) bool { return chains.InternalNode(name) }
 
 func transistorAt(c *models.Circuit, op *mna.OperatingPoint, e models.Element, d mna.DeviceState) Transistor {
 	nc, nb, ne := e.Nodes[0], e.Nodes[1], e.Nodes[2]

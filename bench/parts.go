@@ -103,21 +103,21 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 	vmin := CapacitorMargin * supply
 	bom := &BOM{Chain: ch.Name, File: ch.File, Supply: ch.Supply}
 	for _, st := range ch.Stages {
-		if IsEnvironment(st) && !allStages {
+		if st.Environment && !allStages {
 			continue
 		}
 		for _, p := range st.Parts {
 			ref := st.ID + "." + p.Ref
-			l := BOMLine{Ref: ref, Kind: p.Kind, Written: p.Text, ValueSI: Number(p.Value),
+			l := BOMLine{Ref: ref, Kind: p.Kind.String(), Written: p.Text, ValueSI: Number(p.Value),
 				IdleVolts: Number(math.NaN()), IdlePower: Number(math.NaN()), Tolerance: Number(math.NaN())}
 			if tol, rule := Tolerance(p); tol > 0 {
 				l.Tolerance, l.ToleranceRule = Number(100*tol), rule
 			}
 			switch p.Kind {
-			case "resistor", "capacitor", "inductor", "cable":
-				unit := map[string]string{"resistor": "Ω", "capacitor": "F", "inductor": "H", "cable": "m"}[p.Kind]
+			case chains.Resistor, chains.Capacitor, chains.Inductor, chains.Cable:
+				unit := p.Kind.Unit()
 				l.Value = models.FormatValue(p.Value, unit)
-				if p.Kind == "resistor" || p.Kind == "capacitor" {
+				if p.Kind == chains.Resistor || p.Kind == chains.Capacitor {
 					l.e12, l.e24 = eseries.E12.Nearest(p.Value), eseries.E24.Nearest(p.Value)
 					l.E12, l.E24 = models.FormatValue(l.e12, unit), models.FormatValue(l.e24, unit)
 					l.Series = "off-series"
@@ -128,12 +128,12 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 				v, _ := across(ref)
 				l.IdleVolts = Number(v)
 				switch p.Kind {
-				case "resistor":
+				case chains.Resistor:
 					pw := v * v / p.Value
 					l.IdlePower = Number(pw)
 					l.MinPower = Number(pick(resistorRatings, PowerMargin*pw))
 					l.Rating = ratingW(float64(l.MinPower))
-				case "capacitor":
+				case chains.Capacitor:
 					l.IdlePower = 0
 					need := math.Max(vmin, CapacitorMargin*math.Abs(v))
 					l.MinVoltage = Number(pick(capacitorRatings, need))
@@ -141,11 +141,11 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 					if p.Value >= ElectrolyticFrom {
 						l.Note = polarity(ch, st, p, v)
 					}
-				case "cable":
+				case chains.Cable:
 					l.Value += sprintf(" at %s/m", models.FormatValue(p.PerMetre, "F"))
 				}
 				l.order = l.Value
-			case "pot":
+			case chains.Pot:
 				l.Value = models.FormatValue(p.Value, "Ω") + " " + p.Taper.String()
 				pw := 0.0
 				for _, sec := range []string{".ccw", ".cw"} {
@@ -170,14 +170,14 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 					l.Note += sprintf("; trimmer for %s (set with bias --target)", p.Adjusts)
 				}
 				l.order = l.Value
-			case "npn", "pnp":
+			case chains.NPN, chains.PNP:
 				bp := p.BJTParams()
 				model := p.Model
 				if model == "" {
-					model = "si-" + p.Kind
+					model = "si-" + p.Kind.String()
 				}
 				l.Value = sprintf("%s %s hFE %g", p.Kind, model, bp.BetaF)
-				l.order = p.Kind + " " + model
+				l.order = p.Kind.String() + " " + model
 				if t := b.Transistor(ref); t != nil {
 					l.IdleVolts, l.IdlePower = Number(t.Vce), Number(t.Power)
 					l.MinPower = Number(PowerMargin * t.Power)
@@ -188,7 +188,7 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 				if bp.Icbo > 0 {
 					l.Note += sprintf("; leakage Icbo %s at 25 °C, about doubling per %g °C", models.FormatValue(bp.Icbo, "A"), bp.LeakDoubling)
 				}
-			case "diode":
+			case chains.Diode:
 				model := p.Model
 				if model == "" {
 					model = "si-signal"
@@ -247,7 +247,7 @@ func polarity(ch *chains.Chain, st *chains.Stage, p *chains.Part, v float64) str
 	if v < 0 {
 		plus = p.Pins["2"]
 	}
-	return sprintf("electrolytic: + to %s (%s across at idle)", nodeName(ch, st, plus), models.FormatValue(math.Abs(v), "V"))
+	return sprintf("electrolytic: + to %s (%s across at idle)", ch.Wiring().Node(st.ID, plus), models.FormatValue(math.Abs(v), "V"))
 }
 
 var kindOrder = map[string]int{"resistor": 0, "pot": 1, "capacitor": 2, "inductor": 3, "cable": 4, "diode": 5, "npn": 6, "pnp": 7}

@@ -75,7 +75,7 @@ func ParseProbe(ch *chains.Chain, key string) (*Probe, error) {
 		var found *chains.Part
 		var refs []string
 		for _, p := range st.Parts {
-			if p.Kind == "npn" || p.Kind == "pnp" {
+			if p.Kind.Transistor() {
 				refs = append(refs, p.Ref)
 				if p.Ref == parts[1] {
 					found = p

@@ -299,23 +299,23 @@ func (v varied) name() string {
 func plan(ch *chains.Chain, opt *SpreadOptions) []varied {
 	var out []varied
 	for _, st := range ch.Stages {
-		if IsEnvironment(st) && !opt.AllStages {
+		if st.Environment && !opt.AllStages {
 			continue
 		}
 		for _, p := range st.Parts {
 			switch p.Kind {
-			case "resistor", "capacitor", "pot":
+			case chains.Resistor, chains.Capacitor, chains.Pot:
 				if tol, rule := Tolerance(p); tol > 0 {
-					out = append(out, varied{stage: st.ID, ref: p.Ref, kind: p.Kind, rule: rule, tol: tol})
+					out = append(out, varied{stage: st.ID, ref: p.Ref, kind: p.Kind.String(), rule: rule, tol: tol})
 				}
-			case "npn", "pnp":
+			case chains.NPN, chains.PNP:
 				if len(opt.HFEBin) > 0 {
-					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "hfe", kind: p.Kind, rule: "hFE bin"})
+					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "hfe", kind: p.Kind.String(), rule: "hFE bin"})
 				} else if opt.HFEHigh > 0 {
-					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "hfe", kind: p.Kind, rule: "hFE range"})
+					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "hfe", kind: p.Kind.String(), rule: "hFE range"})
 				}
 				if p.BJTParams().Icbo > 0 && opt.LeakSpread > 1 {
-					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "icbo", kind: p.Kind, rule: "leakage spread"})
+					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "icbo", kind: p.Kind.String(), rule: "leakage spread"})
 				}
 			}
 		}

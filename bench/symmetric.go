@@ -183,42 +183,16 @@ func SolveSymmetric(ctx context.Context, ch *chains.Chain, adj *Adjuster, opt Sy
 }
 
 // defaultProbe is the collector of the transistor the trimmer is marked for,
-// else the stage's output node.
+// else the stage's output node, by the chain's wiring.
 func defaultProbe(ch *chains.Chain, adj *Adjuster) string {
 	st := ch.Stage(adj.Stage)
+	w := ch.Wiring()
 	for _, p := range st.Parts {
-		if (p.Kind == "npn" || p.Kind == "pnp") && p.Ref == adj.Pot.Adjusts {
-			return nodeName(ch, st, p.Pins["c"])
+		if p.Kind.Transistor() && p.Ref == adj.Pot.Adjusts {
+			return w.Node(st.ID, p.Pins["c"])
 		}
 	}
-	return nodeName(ch, st, "out")
-}
-
-// nodeName maps a stage's pin name to the circuit's node name as Build
-// names it.
-func nodeName(ch *chains.Chain, st *chains.Stage, pin string) string {
-	switch pin {
-	case "gnd", "v+":
-		return pin
-	case "out":
-		if ch.Stages[len(ch.Stages)-1] == st {
-			return "out"
-		}
-		return st.ID + ".out"
-	case "in":
-		for k, s := range ch.Stages {
-			if s == st {
-				if s.Buffer {
-					return st.ID + ".in"
-				}
-				if k == 0 {
-					return "in"
-				}
-				return nodeName(ch, ch.Stages[k-1], "out")
-			}
-		}
-	}
-	return st.ID + "." + pin
+	return w.Node(st.ID, "out")
 }
 
 // measureSwing runs the test sine through the circuit at its present

@@ -44,7 +44,7 @@ func ResolveAdjuster(ch *chains.Chain, spec, device string) (*Adjuster, error) {
 			return nil, keyErr(spec, "want STAGE.KNOB or STAGE.POT (stages: %s)", stageIDs(ch))
 		}
 		for _, p := range st.Parts {
-			if p.Kind == "pot" && (p.Knob == name || p.Ref == name) {
+			if p.Kind == chains.Pot && (p.Knob == name || p.Ref == name) {
 				return &Adjuster{Stage: st.ID, Knob: p.Knob, Pot: p}, nil
 			}
 		}
@@ -60,7 +60,7 @@ func ResolveAdjuster(ch *chains.Chain, spec, device string) (*Adjuster, error) {
 		st := ch.Stage(stage)
 		if st != nil {
 			for _, p := range st.Parts {
-				if p.Kind == "pot" && p.Adjusts == ref {
+				if p.Kind == chains.Pot && p.Adjusts == ref {
 					return &Adjuster{Stage: st.ID, Knob: p.Knob, Pot: p}, nil
 				}
 			}
@@ -70,11 +70,11 @@ func ResolveAdjuster(ch *chains.Chain, spec, device string) (*Adjuster, error) {
 	var last *Adjuster
 	for _, st := range ch.Stages {
 		for _, q := range st.Parts {
-			if q.Kind != "npn" && q.Kind != "pnp" {
+			if !q.Kind.Transistor() {
 				continue
 			}
 			for _, p := range st.Parts {
-				if p.Kind == "pot" && p.Adjusts == q.Ref {
+				if p.Kind == chains.Pot && p.Adjusts == q.Ref {
 					last = &Adjuster{Stage: st.ID, Knob: p.Knob, Pot: p}
 					break
 				}

@@ -24,29 +24,19 @@ func Tolerance(p *chains.Part) (float64, string) {
 		return p.Tolerance, "written"
 	}
 	switch p.Kind {
-	case "resistor", "capacitor":
+	case chains.Resistor, chains.Capacitor:
 		switch {
 		case eseries.E12.Contains(p.Value):
 			return eseries.E12.Tolerance, "E12 value"
 		case eseries.E24.Contains(p.Value):
 			return eseries.E24.Tolerance, "E24 value"
-		case p.Kind == "resistor":
+		case p.Kind == chains.Resistor:
 			return OffSeriesResistorTolerance, "off-series resistor"
 		default:
 			return OffSeriesCapacitorTolerance, "off-series capacitor"
 		}
-	case "pot":
+	case chains.Pot:
 		return PotTolerance, "pot track"
 	}
 	return 0, ""
 }
-
-// environmentTemplates model what the chain plugs into rather than what is
-// built: the instrument's pickup and the amplifier's input.
-var environmentTemplates = map[string]bool{"pickup": true, "amp-input": true}
-
-// IsEnvironment reports whether a stage models the instrument or the
-// amplifier (the pickup and amp-input templates) rather than the build:
-// such stages are left out of the parts list and the tolerance spread
-// unless asked for.
-func IsEnvironment(st *chains.Stage) bool { return environmentTemplates[st.Template] }

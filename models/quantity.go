@@ -82,16 +82,21 @@ func (r Range) Check(v float64) error {
 // show writes a value of the range's quantity for people.
 func (r Range) show(v float64) string {
 	v -= r.Offset
+	var s string
 	switch r.Unit {
 	case "", "°C":
-		return strings.TrimSpace(strconv.FormatFloat(v, 'g', 6, 64) + " " + r.Unit)
+		s = strings.TrimSpace(strconv.FormatFloat(v, 'g', 6, 64) + " " + r.Unit)
+	default:
+		s = FormatValue(v, r.Unit)
 	}
-	return FormatValue(v, r.Unit)
+	if t, ok := strings.CutPrefix(s, "-"); ok {
+		s = "−" + t // U+2212, the minus sign of printed ranges
+	}
+	return s
 }
 
-// Describe says what the range accepts: "outside 1…16" is its negation's
-// wording, so Describe reads "1…16", "above 0 V", "above 0 V and at most
-// 60 V" or "0 up to (not including) 1".
+// Describe says what the range accepts: "1…16", "above 0 V", "above 0 V
+// and at most 60 V", "at least 0 and below 1".
 func (r Range) Describe() string {
 	lo, hi := r.show(r.Lo), r.show(r.Hi)
 	switch {
@@ -104,7 +109,7 @@ func (r Range) Describe() string {
 	case r.LoOpen:
 		return "above " + lo + " and at most " + hi
 	case r.HiOpen:
-		return lo + " up to (not including) " + hi
+		return "at least " + lo + " and below " + hi
 	}
 	if r.Unit != "" {
 		lo = r.show(r.Lo)
@@ -126,10 +131,20 @@ func (e *RangeError) Error() string {
 	if e.Text != "" {
 		v = strconv.Quote(e.Text)
 	}
-	if math.IsNaN(e.Value) || math.IsInf(e.Value, 0) {
-		return v + " is not a finite number"
+	return v + " " + e.violation()
+}
+
+// violation words what is wrong, to follow the value: "is outside 1…16",
+// "must be above 0 V", "is not a finite number".
+func (e *RangeError) violation() string {
+	r := e.Range
+	switch {
+	case math.IsNaN(e.Value) || math.IsInf(e.Value, 0):
+		return "is not a finite number"
+	case !r.LoOpen && !r.HiOpen && !math.IsInf(r.Hi, 1):
+		return "is outside " + r.Describe()
 	}
-	return v + " is outside " + e.Range.Describe()
+	return "must be " + r.Describe()
 }
 
 // Unwrap returns ErrInvalid.
@@ -176,31 +191,33 @@ func Fieldf(field, value, format string, a ...any) *FieldError {
 }
 
 // FieldOf wraps a parse or range error of this package as the field's
-// error, keeping the reason and dropping the repeated value; nil stays nil.
+// error, keeping the reason and dropping the repeated value ("outside
+// 0…1", "must be above 0 V"); nil stays nil.
 func FieldOf(field, value string, err error) error {
 	if err == nil {
 		return nil
 	}
-	return &FieldError{Field: field, Value: value, Msg: Reason(err), Err: err}
+	return &FieldError{Field: field, Value: value, Msg: strings.TrimPrefix(Reason(err), "is "), Err: err}
 }
 
-// Reason returns the why of a value error without the value itself ("no
-// number", "outside 0…1"), for messages that already name the value.
+// Reason words a value error to follow the value it concerns ("is not a
+// voltage (no number)", "is outside 0…1", "must be above 0 V", "is not a
+// finite number"), for messages that name the value themselves.
 func Reason(err error) string {
 	var ve *ValueError
 	var re *RangeError
+	var pe *PolarityError
 	switch {
 	case errors.As(err, &ve) && ve.Reason != "":
-		return fmt.Sprintf("not %s %s (%s)", ve.Quantity.article(), ve.Quantity, ve.Reason)
+		return fmt.Sprintf("is not %s %s (%s)", ve.Quantity.article(), ve.Quantity, ve.Reason)
 	case errors.As(err, &ve):
-		return fmt.Sprintf("not %s %s", ve.Quantity.article(), ve.Quantity)
+		return fmt.Sprintf("is not %s %s", ve.Quantity.article(), ve.Quantity)
 	case errors.As(err, &re):
-		if math.IsNaN(re.Value) || math.IsInf(re.Value, 0) {
-			return "not a finite number"
-		}
-		return "outside " + re.Range.Describe()
+		return re.violation()
+	case errors.As(err, &pe):
+		return "contradicts the chain's polarity: " + pe.Advice()
 	}
-	return err.Error()
+	return "is wrong: " + err.Error()
 }
 
 // ParseIn reads a value of quantity q (ParseValue) and checks it against r.
@@ -308,13 +325,18 @@ type PolarityError struct {
 }
 
 func (e *PolarityError) Error() string {
+	return fmt.Sprintf("supply %q: %s", e.Text, e.Advice())
+}
+
+// Advice says what is wrong and how to write it, without the value.
+func (e *PolarityError) Advice() string {
 	want := "a positive supply (negative ground)"
 	if e.Chain < 0 {
 		want = "a negative supply (positive ground)"
 	}
 	mag := strings.TrimLeft(strings.TrimSpace(e.Text), "+-")
-	return fmt.Sprintf("supply %q: the chain file is built for %s; write %s or %s%s (a supply given outside the chain file sets the magnitude and keeps the file's polarity; change supply in the file to change the build)",
-		e.Text, want, mag, signOf(e.Chain), mag)
+	return fmt.Sprintf("the chain file is built for %s; write %s or %s%s (a supply given outside the chain file sets the magnitude and keeps the file's polarity; change supply in the file to change the build)",
+		want, mag, signOf(e.Chain), mag)
 }
 
 func signOf(v float64) string {

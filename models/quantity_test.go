@@ -192,7 +192,7 @@ func TestFieldError(t *testing.T) {
 	if got := models.SupplyRange.Describe(); got != "above 0 V and at most 60 V" {
 		t.Errorf("supply range %q", got)
 	}
-	if got := models.TemperatureRange.Describe(); got != "-60…150 °C" {
+	if got := models.TemperatureRange.Describe(); got != "−60…150 °C" {
 		t.Errorf("temperature range %q", got)
 	}
 }

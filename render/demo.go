@@ -58,7 +58,7 @@ func Demo(ctx context.Context, dir string, workers int) ([]DemoTake, error) {
 	bypass.Name = base.Name + " (pedal bypassed: pickup and cable into the amplifier)"
 	var keep []*chains.Stage
 	for _, st := range bypass.Stages {
-		if st.ID == "pickup" || st.ID == "amp" {
+		if st.Environment {
 			keep = append(keep, st)
 		}
 	}
