@@ -19,6 +19,7 @@ import (
 	"renderchain/chains"
 	"renderchain/dsp/wavio"
 	"renderchain/dsp/wdf"
+	"renderchain/engine"
 	"renderchain/render"
 )
 
@@ -466,12 +467,11 @@ func normalise(o Options) (Options, error) {
 	if o.Jobs <= 0 {
 		o.Jobs = runtime.NumCPU()
 	}
-	if o.Oversample == 0 {
-		o.Oversample = o.Chain.Oversample
+	os, err := engine.Oversample(o.Chain, o.Oversample)
+	if err != nil {
+		return o, err
 	}
-	if o.Oversample == 0 {
-		o.Oversample = render.DefaultOversample
-	}
+	o.Oversample = os
 	if o.Format == "" {
 		o.Format = render.FormatPCM24
 	}
@@ -609,7 +609,7 @@ func outFormat(name string, t Take) (wavio.Format, int) {
 // measures it.
 func (j *job) render(ctx context.Context, dry string, oversample int, pr *progress) error {
 	fail := func(err error) error { return &VariantError{Label: j.label, Err: err} }
-	eng, err := render.Prepare(j.ch, oversample)
+	eng, err := engine.Prepare(j.ch, oversample)
 	if err != nil {
 		return fail(err)
 	}
@@ -634,7 +634,7 @@ func (j *job) render(ctx context.Context, dry string, oversample int, pr *progre
 		return err
 	}
 	var last int64
-	info, err := render.Stream(ctx, eng, in, fs, nc, nil, func(y []float64) error {
+	info, err := eng.Stream(ctx, in, fs, nc, nil, func(y []float64) error {
 		meter.Write(y)
 		if err := w.Write(y); err != nil {
 			return fail(fmt.Errorf("the circuit's output: %w", err))
@@ -645,7 +645,7 @@ func (j *job) render(ctx context.Context, dry string, oversample int, pr *progre
 		last = done
 	})
 	if err != nil {
-		if errors.Is(err, render.ErrInterrupted) {
+		if errors.Is(err, engine.ErrInterrupted) {
 			return ctx.Err()
 		}
 		var ve *VariantError

@@ -13,6 +13,7 @@ import (
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/engine"
 	"renderchain/render"
 )
 
@@ -156,7 +157,7 @@ func TestMatchedSet(t *testing.T) {
 			// Gain only: one rendered clip against the render command's
 			// own path, float32 output, times the recorded gain.
 			ref := filepath.Join(dir, "ref.wav")
-			eng, err := render.Prepare(ch, 2)
+			eng, err := engine.Prepare(ch, 2)
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -6,8 +6,8 @@ import (
 	"renderchain/chains"
 	"renderchain/dsp/mna"
 	"renderchain/dsp/spectrum"
+	"renderchain/engine"
 	"renderchain/models"
-	"renderchain/render"
 )
 
 // GainAt returns the small-signal gain, dB, from the chain's source to its
@@ -34,11 +34,11 @@ const (
 // the chain's oversampled rendering channel (render.Engine.NewChannel) and
 // returns THD_F of the settled output (spectrum.Analyze), a fraction.
 func THDAt(ch *chains.Chain, c *models.Circuit, dc *mna.OperatingPoint, freq, amp float64) (float64, error) {
-	os := ch.Oversample
-	if os == 0 {
-		os = render.DefaultOversample
+	os, err := engine.Oversample(ch, 0)
+	if err != nil {
+		return math.NaN(), err
 	}
-	eng := &render.Engine{Chain: ch, Circuit: c, DC: dc, Oversample: os}
+	eng := &engine.Prepared{Chain: ch, Circuit: c, DC: dc, Oversample: os}
 	chn, err := eng.NewChannel(thdRate)
 	if err != nil {
 		return math.NaN(), err
@@ -48,8 +48,8 @@ func THDAt(ch *chains.Chain, c *models.Circuit, dc *mna.OperatingPoint, freq, am
 	record := int(math.Round(cycles * thdRate / freq))
 	total := settle + record
 	rec := make([]float64, 0, record)
-	src := make([]float64, render.MaxBlock)
-	dst := make([]float64, render.MaxBlock)
+	src := make([]float64, engine.MaxBlock)
+	dst := make([]float64, engine.MaxBlock)
 	a := amp / ch.InputPeak
 	w := 2 * math.Pi * freq / thdRate
 	fade := 0.01 * thdRate

@@ -121,6 +121,7 @@ func (r Range) Describe() string {
 // RangeError reports a value outside its range (or not finite). Text is
 // the value as written, when there is one.
 type RangeError struct {
+	What  string // the quantity, for messages ("amplitude"); may be empty
 	Text  string
 	Value float64
 	Range Range
@@ -130,6 +131,9 @@ func (e *RangeError) Error() string {
 	v := e.Range.show(e.Value)
 	if e.Text != "" {
 		v = strconv.Quote(e.Text)
+	}
+	if e.What != "" {
+		v = e.What + " " + v
 	}
 	return v + " " + e.violation()
 }
@@ -150,10 +154,11 @@ func (e *RangeError) violation() string {
 // Unwrap returns ErrInvalid.
 func (e *RangeError) Unwrap() error { return ErrInvalid }
 
-// checkText is Check for a value read from text: the error quotes the text.
-func (r Range) checkText(text string, v float64) (float64, error) {
+// checkText is Check for a value of quantity q read from text: the error
+// names the quantity and quotes the text.
+func (r Range) checkText(q Quantity, text string, v float64) (float64, error) {
 	if err := r.Check(v); err != nil {
-		return 0, &RangeError{Text: strings.TrimSpace(text), Value: v, Range: r}
+		return 0, &RangeError{What: q.String(), Text: strings.TrimSpace(text), Value: v, Range: r}
 	}
 	return v, nil
 }
@@ -226,7 +231,7 @@ func ParseIn(text string, q Quantity, r Range) (float64, error) {
 	if err != nil {
 		return 0, err
 	}
-	return r.checkText(text, v)
+	return r.checkText(q, text, v)
 }
 
 // ParseList splits a comma-separated list, trimming blanks; an empty item
@@ -305,7 +310,7 @@ func ParseAmplitude(text string) (float64, error) {
 	if err != nil {
 		return 0, err
 	}
-	return SignalRange.checkText(text, v)
+	return SignalRange.checkText(Amplitude, text, v)
 }
 
 // ParseFrequency reads a frequency ("1k", "1kHz", "440") in hertz, within
@@ -362,7 +367,7 @@ func ParseSupply(text string, polarity float64) (float64, error) {
 	if err != nil {
 		return 0, err
 	}
-	if _, err := SupplyRange.checkText(text, math.Abs(v)); err != nil {
+	if _, err := SupplyRange.checkText(Voltage, text, math.Abs(v)); err != nil {
 		return 0, err
 	}
 	if polarity == 0 {
@@ -408,7 +413,7 @@ func ParseTolerance(text string) (float64, error) {
 	if err != nil {
 		return 0, &ValueError{Text: text, Quantity: Fraction, Reason: "want a fraction or a percentage, e.g. 0.05 or 5%"}
 	}
-	return ToleranceRange.checkText(text, v*scale)
+	return ToleranceRange.checkText(Fraction, text, v*scale)
 }
 
 // ParseDecibels reads a level or gain in dB ("30dB", "-3", "6 dB"); it
@@ -459,7 +464,7 @@ func ParseWhole(text string, r Range) (int, error) {
 	if err != nil {
 		return 0, &ValueError{Text: text, Quantity: Dimensionless, Reason: "want a whole number"}
 	}
-	if _, err := r.checkText(text, float64(n)); err != nil {
+	if _, err := r.checkText(Dimensionless, text, float64(n)); err != nil {
 		return 0, err
 	}
 	return n, nil

@@ -3,6 +3,7 @@ package models_test
 import (
 	"errors"
 	"math"
+	"slices"
 	"strings"
 	"testing"
 
@@ -194,5 +195,77 @@ func TestFieldError(t *testing.T) {
 	}
 	if got := models.TemperatureRange.Describe(); got != "−60…150 °C" {
 		t.Errorf("temperature range %q", got)
+	}
+}
+
+func TestParseAmplitudeForms(t *testing.T) {
+	tests := []struct {
+		text string
+		want float64 // volts peak
+	}{
+		{"100mV", 0.1},
+		{"0.1", 0.1},
+		{"0.1V", 0.1},
+		{"100mVp", 0.1},
+		{"20mVpp", 0.01}, // peak-to-peak is twice the peak (definition)
+		{"2Vpp", 1},
+		// dBV is dB re 1 V RMS (common practice); a sine's peak is √2 × RMS.
+		{"0dBV", math.Sqrt2},
+		{"-20dBV", math.Sqrt2 * 0.1},
+		{" -6.0206 dBV ", math.Sqrt2 * 0.5},
+		{"1Vrms", math.Sqrt2},
+		{"70.71mVrms", 0.07071 * math.Sqrt2},
+	}
+	for _, tc := range tests {
+		got, err := models.ParseAmplitude(tc.text)
+		if err != nil {
+			t.Errorf("models.ParseAmplitude(%q): %v", tc.text, err)
+			continue
+		}
+		// Tolerance: a few ulps of the arithmetic; -6.0206 dB is 0.5 to 5 digits.
+		tol := 1e-12
+		if strings.Contains(tc.text, "6.0206") {
+			tol = 1e-5
+		}
+		if math.Abs(got-tc.want) > tol*tc.want {
+			t.Errorf("models.ParseAmplitude(%q) = %.12g V, want %.12g V", tc.text, got, tc.want)
+		}
+	}
+}
+
+func TestParseAmplitudeErrors(t *testing.T) {
+	for _, text := range []string{"0", "-1mV", "0mVpp", "abc", "10dBX", "dBV", "1A", "", "1e400"} {
+		_, err := models.ParseAmplitude(text)
+		if !errors.Is(err, models.ErrInvalid) {
+			t.Errorf("models.ParseAmplitude(%q) = %v, want an error wrapping ErrInvalid", text, err)
+			continue
+		}
+		if msg := err.Error(); strings.Contains(msg, "\n") || !strings.Contains(msg, "amplitude") || (text != "" && !strings.Contains(msg, `"`+text+`"`)) {
+			t.Errorf("models.ParseAmplitude(%q): message %q should be one line naming the amplitude and the value", text, msg)
+		}
+	}
+}
+
+func TestParseFrequencyForms(t *testing.T) {
+	tests := []struct {
+		text string
+		want float64
+		ok   bool
+	}{
+		{"1k", 1000, true}, {"1kHz", 1000, true}, {"440", 440, true}, {"2.5kHz", 2500, true},
+		{"0", 0, false}, {"-5", 0, false}, {"1kV", 0, false}, {"fast", 0, false},
+	}
+	for _, tc := range tests {
+		got, err := models.ParseFrequency(tc.text)
+		if (err == nil) != tc.ok || (tc.ok && got != tc.want) {
+			t.Errorf("models.ParseFrequency(%q) = %g, %v; want %g, ok %v", tc.text, got, err, tc.want, tc.ok)
+		}
+	}
+	fs, err := models.ParseFrequencies("100, 1k,10k")
+	if err != nil || !slices.Equal(fs, []float64{100, 1000, 10000}) {
+		t.Errorf("ParseFrequencies = %v, %v", fs, err)
+	}
+	if _, err := models.ParseFrequencies("100,,1k"); err == nil {
+		t.Error("ParseFrequencies with an empty item: want an error")
 	}
 }

@@ -7,12 +7,12 @@
 // # Rules
 //
 // A Level is a ratio in decibels (dBFS, dBV, dBc, dB gain, LUFS, LU,
-// dBTP). It is written to JSON rounded to six decimals (1 µdB, far below
-// any difference a listener or a meter resolves, so that reports diff
-// cleanly); a Number (volts, amperes, ratios, seconds) is written exactly,
-// in the shortest form that reads back to the same float64. Both write
-// NaN and ±∞ as null, since JSON has neither (RFC 8259, section 6), and
-// read null back as NaN.
+// dBTP), a Number a plain value (volts, amperes, ratios, seconds). The one
+// rounding rule of both: none. Each is written in the shortest decimal
+// that reads back to the same float64, so a report read by another
+// program gives exactly the figures this one computed; NaN and ±∞ are
+// written as null, since JSON has neither (RFC 8259, section 6), and null
+// reads back as NaN. Tables for people round; reports do not.
 //
 // DB(r) = 20·log10(r) for an amplitude ratio and PowerDB(r) = 10·log10(r)
 // for a power ratio (IEC 60027-3 level definitions); a ratio of 0 is −∞

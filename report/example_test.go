@@ -19,5 +19,5 @@ func ExampleLevel() {
 	}{report.Level(report.DB(m.Peak())), report.Level(m.CrestDB()), report.Level(report.DB(math.Sqrt2))}
 	b, _ := json.Marshal(out)
 	fmt.Println(string(b))
-	// Output: {"peak_dbfs":null,"crest_db":null,"gain_db":3.0103}
+	// Output: {"peak_dbfs":null,"crest_db":null,"gain_db":3.010299956639812}
 }

@@ -8,7 +8,7 @@ import (
 )
 
 // Level is a ratio in decibels (dBFS, dBV, dBc, LUFS, LU, dBTP, dB of
-// gain). It marshals to JSON rounded to six decimals, and a level that
+// gain). It marshals to JSON like a Number: exactly, and a level that
 // does not exist (−∞ for silence, NaN) as null.
 type Level float64
 
@@ -16,27 +16,14 @@ type Level float64
 // marshals to JSON exactly, and as null when it is NaN or infinite.
 type Number float64
 
-// levelDecimals is the one rounding rule of levels in JSON.
-const levelDecimals = 1e6
-
 var null = []byte("null")
 
 // Finite reports whether v is neither NaN nor infinite.
 func Finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // MarshalJSON implements json.Marshaler: null when not finite, else the
-// level rounded to six decimals.
-func (l Level) MarshalJSON() ([]byte, error) {
-	v := float64(l)
-	if !Finite(v) {
-		return null, nil
-	}
-	r := math.Round(v*levelDecimals) / levelDecimals
-	if !Finite(r) { // beyond ±1e302 dB: keep the value as it is
-		r = v
-	}
-	return strconv.AppendFloat(nil, r, 'g', -1, 64), nil
-}
+// shortest decimal that reads back to the same float64.
+func (l Level) MarshalJSON() ([]byte, error) { return Number(l).MarshalJSON() }
 
 // UnmarshalJSON implements json.Unmarshaler: null reads as NaN.
 func (l *Level) UnmarshalJSON(b []byte) error {

@@ -10,8 +10,8 @@ import (
 )
 
 // JSON has no NaN or infinities (RFC 8259, section 6): both types write
-// null for them and read null back as NaN; a level is rounded to six
-// decimals, a number is written exactly.
+// null for them and read null back as NaN; finite values are written
+// exactly (the shortest decimal that reads back to the same float64).
 func TestJSON(t *testing.T) {
 	cases := []struct {
 		v    any
@@ -19,9 +19,9 @@ func TestJSON(t *testing.T) {
 	}{
 		{Level(math.Inf(-1)), "null"},
 		{Level(math.NaN()), "null"},
-		{Level(-3.0102999566398120), "-3.0103"},
-		{Level(1.23456749), "1.234567"},
-		{Level(-0.0000004), "-0"},
+		{Level(-3.0102999566398120), "-3.010299956639812"},
+		{Level(1.23456749), "1.23456749"},
+		{Level(-0.0000004), "-4e-07"},
 		{Number(math.Inf(1)), "null"},
 		{Number(math.NaN()), "null"},
 		{Number(1.5e-9), "1.5e-09"},
@@ -42,12 +42,13 @@ func TestJSON(t *testing.T) {
 	if err := json.Unmarshal([]byte(`{"L": null, "N": 2.5}`), &back); err != nil || !math.IsNaN(float64(back.L)) || back.N != 2.5 {
 		t.Errorf("read back %+v, %v", back, err)
 	}
-	// An exact number survives the round trip bit for bit.
-	x := Number(math.Pi * 1e-13)
-	b, _ := json.Marshal(x)
-	var y Number
-	if err := json.Unmarshal(b, &y); err != nil || y != x {
-		t.Errorf("%v came back as %v", x, y)
+	// A finite value survives the round trip bit for bit.
+	for _, x := range []float64{math.Pi * 1e-13, -18.1234567, 20 * math.Log10(0.3)} {
+		b, _ := json.Marshal([]any{Number(x), Level(x)})
+		var y [2]float64
+		if err := json.Unmarshal(b, &y); err != nil || y[0] != x || y[1] != x {
+			t.Errorf("%v came back as %v", x, y)
+		}
 	}
 }
 

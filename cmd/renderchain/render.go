@@ -7,6 +7,7 @@ import (
 
 	"github.com/urfave/cli/v2"
 
+	"renderchain/engine"
 	"renderchain/render"
 )
 
@@ -17,26 +18,24 @@ func renderCommand() *cli.Command {
 		UsageText: "renderchain render --chain F --in DRY.wav --out WET.wav [--set K=V]… [--oversample N] [--report R.json]",
 		Flags: []cli.Flag{
 			chainFlag,
-			&cli.StringFlag{Name: "in", Aliases: []string{"i"}, Usage: "dry WAV (PCM 8–32 bit or float, mono/stereo, 44.1–192 kHz)", Required: true},
-			&cli.StringFlag{Name: "out", Aliases: []string{"o"}, Usage: "wet WAV to write", Required: true},
+			&cli.StringFlag{Name: "in", Aliases: []string{"i"}, Usage: "dry WAV (PCM 8–32 bit or float, mono/stereo, 44.1–192 kHz), required"},
+			&cli.StringFlag{Name: "out", Aliases: []string{"o"}, Usage: "wet WAV to write, required"},
 			setFlag,
-			&cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16 (default: the chain's, else 4)"},
+			oversampleFlag,
 			&cli.StringFlag{Name: "format", Value: render.FormatPCM24, Usage: "output samples: pcm24, pcm16 or float32"},
 			&cli.StringFlag{Name: "report", Usage: "write the render report as JSON to `FILE`"},
 			quietFlag,
 		},
+		Before: requireFlags("chain", "in", "out"),
 		Action: func(c *cli.Context) error {
 			if c.NArg() > 0 {
 				return usagef("render takes no arguments (got %q); use --in and --out", c.Args().First())
-			}
-			if n := c.Int("oversample"); c.IsSet("oversample") && (n < 1 || n > 16) {
-				return usagef("--oversample %d is outside 1…16", n)
 			}
 			ch, err := loadChain(c)
 			if err != nil {
 				return err
 			}
-			eng, err := render.Prepare(ch, c.Int("oversample"))
+			eng, err := engine.Prepare(ch, c.Int("oversample"))
 			if err != nil {
 				return err
 			}

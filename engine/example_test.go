@@ -1,23 +1,23 @@
-package render_test
+package engine_test
 
 import (
 	"fmt"
 	"math"
 
 	"renderchain/chains"
-	"renderchain/render"
+	"renderchain/engine"
 )
 
 // One channel of the stripped fuzz chain, fed a 1 kHz sine at a quarter of
 // full scale: the fuzz clips it, so the crest factor falls below a sine's
 // 3.0 dB toward a square's 0 dB (the band-limited edges keep some overshoot).
-func ExampleEngine_NewChannel() {
+func ExamplePrepared_NewChannel() {
 	ch, err := chains.Example("fuzz-only")
 	if err != nil {
 		fmt.Println(err)
 		return
 	}
-	eng, err := render.Prepare(ch, 4)
+	eng, err := engine.Prepare(ch, 4)
 	if err != nil {
 		fmt.Println(err)
 		return

@@ -1,87 +1,15 @@
 package measure
 
 import (
-	"encoding/json"
 	"errors"
 	"math"
 	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/floats"
+
+	"renderchain/models"
 )
-
-func TestParseAmplitude(t *testing.T) {
-	tests := []struct {
-		text string
-		want float64 // volts peak
-	}{
-		{"100mV", 0.1},
-		{"0.1", 0.1},
-		{"0.1V", 0.1},
-		{"100mVp", 0.1},
-		{"20mVpp", 0.01}, // peak-to-peak is twice the peak (definition)
-		{"2Vpp", 1},
-		// dBV is dB re 1 V RMS (common practice); a sine's peak is √2 × RMS.
-		{"0dBV", math.Sqrt2},
-		{"-20dBV", math.Sqrt2 * 0.1},
-		{" -6.0206 dBV ", math.Sqrt2 * 0.5},
-		{"1Vrms", math.Sqrt2},
-		{"70.71mVrms", 0.07071 * math.Sqrt2},
-	}
-	for _, tc := range tests {
-		got, err := ParseAmplitude(tc.text)
-		if err != nil {
-			t.Errorf("ParseAmplitude(%q): %v", tc.text, err)
-			continue
-		}
-		// Tolerance: a few ulps of the arithmetic; -6.0206 dB is 0.5 to 5 digits.
-		tol := 1e-12
-		if strings.Contains(tc.text, "6.0206") {
-			tol = 1e-5
-		}
-		if math.Abs(got-tc.want) > tol*tc.want {
-			t.Errorf("ParseAmplitude(%q) = %.12g V, want %.12g V", tc.text, got, tc.want)
-		}
-	}
-}
-
-func TestParseAmplitudeErrors(t *testing.T) {
-	for _, text := range []string{"0", "-1mV", "0mVpp", "abc", "10dBX", "dBV", "1A", "", "1e400"} {
-		_, err := ParseAmplitude(text)
-		var ie *InputError
-		if !errors.As(err, &ie) {
-			t.Errorf("ParseAmplitude(%q) = %v, want an *InputError", text, err)
-			continue
-		}
-		if msg := err.Error(); strings.Contains(msg, "\n") || !strings.Contains(msg, "amplitude") || (text != "" && !strings.Contains(msg, `"`+text+`"`)) {
-			t.Errorf("ParseAmplitude(%q): message %q should be one line naming the amplitude and the value", text, msg)
-		}
-	}
-}
-
-func TestParseFrequency(t *testing.T) {
-	tests := []struct {
-		text string
-		want float64
-		ok   bool
-	}{
-		{"1k", 1000, true}, {"1kHz", 1000, true}, {"440", 440, true}, {"2.5kHz", 2500, true},
-		{"0", 0, false}, {"-5", 0, false}, {"1kV", 0, false}, {"fast", 0, false},
-	}
-	for _, tc := range tests {
-		got, err := ParseFrequency(tc.text)
-		if (err == nil) != tc.ok || (tc.ok && got != tc.want) {
-			t.Errorf("ParseFrequency(%q) = %g, %v; want %g, ok %v", tc.text, got, err, tc.want, tc.ok)
-		}
-	}
-	fs, err := ParseFrequencies("100, 1k,10k")
-	if err != nil || !floats.Equal(fs, []float64{100, 1000, 10000}) {
-		t.Errorf("ParseFrequencies = %v, %v", fs, err)
-	}
-	if _, err := ParseFrequencies("100,,1k"); err == nil {
-		t.Error("ParseFrequencies with an empty item: want an error")
-	}
-}
 
 // LogGrid must match gonum's floats.LogSpan (an outside reference for
 // logarithmically spaced points) to rounding.
@@ -132,9 +60,9 @@ func TestSweeps(t *testing.T) {
 		} else {
 			_, err = ParseKnobSweep(b.text, 5)
 		}
-		var ie *InputError
-		if !errors.As(err, &ie) {
-			t.Errorf("sweep %q: got %v, want an *InputError", b.text, err)
+		var fe *models.FieldError
+		if !errors.As(err, &fe) || fe.Field != "sweep_"+b.level {
+			t.Errorf("sweep %q: got %v, want a *models.FieldError on sweep_%s", b.text, err, b.level)
 		}
 	}
 	if _, err := ParseLevelSweep("1mV..1V", 1); err == nil {
@@ -173,16 +101,10 @@ func TestExpand(t *testing.T) {
 			t.Errorf("Expand(%q): want an error", bad)
 		}
 	}
-	sup, _ := SupplySet("9.6, 9,8V")
-	tmp, _ := TemperatureSet("0,25,313.15K")
-	if sup != "supply=9.6V,9V,8V" || tmp != "temperature=0C,25C,313.15K" {
-		t.Errorf("SupplySet = %q, TemperatureSet = %q", sup, tmp)
-	}
-}
-
-func TestNumJSON(t *testing.T) {
-	b, err := json.Marshal([]Num{1.5, Num(math.Inf(-1)), Num(math.NaN()), Num(math.Inf(1))})
-	if err != nil || string(b) != "[1.5,null,null,null]" {
-		t.Errorf("Num JSON = %s, %v", b, err)
+	sup := SupplyFamily([]float64{9.6, 9, 8})
+	neg := SupplyFamily([]float64{-9.6, -7})
+	tmp := TemperatureFamily([]float64{273.15, 298.15, 313.15})
+	if sup != "supply=9.6V,9V,8V" || neg != "supply=-9.6V,-7V" || tmp != "temperature=0C,25C,40C" {
+		t.Errorf("SupplyFamily = %q, %q, TemperatureFamily = %q", sup, neg, tmp)
 	}
 }

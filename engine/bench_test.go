@@ -1,4 +1,4 @@
-package render
+package engine
 
 import (
 	"math"
@@ -76,4 +76,19 @@ func BenchmarkDemoPhrase(b *testing.B) {
 	b.ReportMetric(ns, "ns/sample")
 	b.ReportMetric(1e9/ns/48000, "x-realtime")
 	b.ReportMetric(c.Stats().MeanIterations(), "newton/sample")
+}
+
+// The settle detector on one 0.1 s window: it runs once per window of the
+// stream and must not allocate.
+func BenchmarkSettleDetector(b *testing.B) {
+	d := settleDetector{tol: 1e-5}
+	w := make([]float64, 4800)
+	for i := range w {
+		w[i] = float64(i%48) / 48
+	}
+	b.ReportAllocs()
+	b.SetBytes(int64(8 * len(w)))
+	for i := 0; i < b.N; i++ {
+		d.next(w)
+	}
 }

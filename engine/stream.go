@@ -1,8 +1,9 @@
-package render
+package engine
 
 import (
 	"context"
 	"errors"
+	"fmt"
 	"io"
 	"sync"
 
@@ -14,26 +15,27 @@ type Source interface {
 	Read(dst []float64) (int, error) // io.EOF when done
 }
 
-// ErrInterrupted reports a render stopped by its context.
-var ErrInterrupted = errors.New("render interrupted: no output written")
+// ErrInterrupted reports a run stopped by its context; the error returned
+// wraps the context's error too.
+var ErrInterrupted = errors.New("interrupted")
 
-// Stream runs an interleaved stream of nc channels through the engine at
-// base rate fs, one circuit per channel, and hands every block of
+// Stream runs an interleaved stream of nc channels through the prepared
+// chain at base rate fs, one circuit per channel, and hands every block of
 // interleaved output to sink together with the matching input frames'
 // count (the output lines up with the input sample for sample, and over
 // the stream has exactly as many frames). in, when not nil, sees each block
 // of input as read. progress, when not nil, gets the input frames done.
 // Memory is constant: blocks of MaxBlock frames.
-func Stream(ctx context.Context, e *Engine, src Source, fs float64, nc int, in, sink func([]float64) error, progress func(int64)) (StreamInfo, error) {
+func (p *Prepared) Stream(ctx context.Context, src Source, fs float64, nc int, in, sink func([]float64) error, progress func(int64)) (StreamInfo, error) {
 	var st StreamInfo
 	chans := make([]*Channel, nc)
 	for c := range chans {
 		var err error
-		if chans[c], err = e.NewChannel(fs); err != nil {
+		if chans[c], err = p.NewChannel(fs); err != nil {
 			return st, err
 		}
 	}
-	st.States, st.NonlinearPorts = chans[0].Solver.States()
+	st.States, st.NonlinearPorts = chans[0].States()
 	inter := make([]float64, MaxBlock*nc)
 	outInter := make([]float64, MaxBlock*nc)
 	chIn := make([][]float64, nc)
@@ -53,8 +55,8 @@ func Stream(ctx context.Context, e *Engine, src Source, fs float64, nc int, in, 
 	counts := make([]int, nc)
 	var done int64
 	for {
-		if ctx.Err() != nil {
-			return st, ErrInterrupted
+		if err := ctx.Err(); err != nil {
+			return st, fmt.Errorf("%w (%w)", ErrInterrupted, err)
 		}
 		n, rerr := src.Read(inter)
 		if n > 0 {
