@@ -40,5 +40,5 @@ func ExamplePrepared_NewChannel() {
 	}
 	rms := math.Sqrt(sum / float64(n-2400))
 	fmt.Printf("crest factor %.1f dB\n", 20*math.Log10(peak/rms))
-	// Output: crest factor 2.5 dB
+	// Output: crest factor 2.3 dB
 }

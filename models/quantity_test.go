@@ -47,7 +47,7 @@ func TestQuantityParsers(t *testing.T) {
 		{"seconds", models.ParseSeconds, "20ms", 0.02},
 		{"seconds", models.ParseSeconds, "4s", 4},
 		{"seconds", models.ParseSeconds, "2.5", 2.5},
-		{"gain", models.ParseGain, "215", 215},
+		{"gain", models.ParseGain, "182", 182},
 	}
 	for _, c := range cases {
 		got, err := c.parse(c.text)

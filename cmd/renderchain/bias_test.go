@@ -8,7 +8,7 @@ import (
 	"strings"
 	"testing"
 
-	"renderchain/bench"
+	"renderchain/bias"
 	"renderchain/chains"
 )
 
@@ -59,7 +59,7 @@ func TestBiasJSON(t *testing.T) {
 	}
 	ch, _ := chains.Load(benchChain)
 	ch.Set("fuzz.trim2=0.4")
-	b, err := bench.Solve(ch)
+	b, err := bias.Solve(ch)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"renderchain/bench"
+	"renderchain/parts"
 )
 
 func TestPartsCLI(t *testing.T) {
@@ -15,7 +15,7 @@ func TestPartsCLI(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	recs, err := csv.NewReader(strings.NewReader(out)).ReadAll()
-	if err != nil || len(recs) < 10 || strings.Join(recs[0], ",") != strings.Join(bench.CSVHeader, ",") {
+	if err != nil || len(recs) < 10 || strings.Join(recs[0], ",") != strings.Join(parts.CSVHeader, ",") {
 		t.Fatalf("CSV: %v, %d records", err, len(recs))
 	}
 	code, out, _ = benchRun(t, "parts", "--chain", "../../chains/demo.toml", "--json")

@@ -14,7 +14,7 @@ import (
 func TestSpreadCLI(t *testing.T) {
 	dir := t.TempDir()
 	csvPath := filepath.Join(dir, "trials.csv")
-	args := []string{"spread", "--chain", benchChain, "--trials", "12", "--seed", "9", "--no-thd", "--hfe-bin", "110,140,215,393",
+	args := []string{"spread", "--chain", benchChain, "--trials", "12", "--seed", "9", "--no-thd", "--hfe-bin", "126,158,182,231,268,304",
 		"--spec", "fuzz.Q2.vc=4..5V", "--json", "-q"}
 	c1, out1, e1 := benchRun(t, append(args, "--workers", "1", "--trials-csv", csvPath)...)
 	c2, out2, _ := benchRun(t, append(args, "--workers", "2")...)

@@ -1,4 +1,4 @@
-package bench
+package bias
 
 import (
 	"math"
@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/internal/testchains"
 	"renderchain/models"
 )
 
@@ -20,17 +21,17 @@ import (
 // which at these bias points are far below that.
 func TestCommonEmitterAgainstHandbook(t *testing.T) {
 	cases := []struct {
-		ce                  ceChain
+		ce                  testchains.CE
 		vcc, r1, r2, rc, re float64
 	}{
-		{ceChain{Vcc: "9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100}, 9, 47e3, 10e3, 4.7e3, 1e3},
-		{ceChain{Vcc: "12V", R1: "82k", R2: "22k", RC: "3k9", RE: "1k5", Kind: "npn", Beta: 250}, 12, 82e3, 22e3, 3.9e3, 1.5e3},
-		{ceChain{Vcc: "9V", R1: "100k", R2: "22k", RC: "10k", RE: "2k2", Kind: "npn", Beta: 60}, 9, 100e3, 22e3, 10e3, 2.2e3},
+		{testchains.CE{Vcc: "9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100}, 9, 47e3, 10e3, 4.7e3, 1e3},
+		{testchains.CE{Vcc: "12V", R1: "82k", R2: "22k", RC: "3k9", RE: "1k5", Kind: "npn", Beta: 250}, 12, 82e3, 22e3, 3.9e3, 1.5e3},
+		{testchains.CE{Vcc: "9V", R1: "100k", R2: "22k", RC: "10k", RE: "2k2", Kind: "npn", Beta: 60}, 9, 100e3, 22e3, 10e3, 2.2e3},
 	}
 	const is = 10e-15
 	vt := models.ThermalVoltage(models.NominalTemperature)
 	for _, tc := range cases {
-		b, err := Solve(tc.ce.parse(t))
+		b, err := Solve(tc.ce.Parse(t))
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -65,10 +66,10 @@ func TestCommonEmitterAgainstHandbook(t *testing.T) {
 // issue's figure (both solve the same equations to far better than that).
 func TestPairAgainstIndependentNodalSolve(t *testing.T) {
 	type setting struct{ trim1, trim2 float64 }
-	for _, p := range []pairChain{siPair(), gePair()} {
+	for _, p := range []testchains.Pair{testchains.SiPair(), testchains.GePair()} {
 		for _, s := range []setting{{0.5, 0.5}, {0.3, 0.8}, {0.9, 0.1}} {
 			p.Trim1, p.Trim2 = s.trim1, s.trim2
-			ch := p.parse(t)
+			ch := p.Parse(t)
 			b, err := Solve(ch)
 			if err != nil {
 				t.Fatal(err)
@@ -133,10 +134,10 @@ func TestPairAgainstIndependentNodalSolve(t *testing.T) {
 // sign within 1 nV / 1 pA relative (solver tolerance), regions and
 // dissipation agree.
 func TestPNPMirrorsNPN(t *testing.T) {
-	npn := ceChain{Vcc: "9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 150}
+	npn := testchains.CE{Vcc: "9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 150}
 	pnp := npn
 	pnp.Vcc, pnp.Kind = "-9V", "pnp"
-	siN, siP := siPair(), siPair()
+	siN, siP := testchains.SiPair(), testchains.SiPair()
 	siP.Vcc, siP.Kind = "-9V", "pnp"
 	solve := func(src string) *Bias {
 		ch, err := chains.Parse("mirror.toml", src)
@@ -150,8 +151,8 @@ func TestPNPMirrorsNPN(t *testing.T) {
 		return b
 	}
 	for _, tc := range []struct{ name, a, b string }{
-		{"common emitter", npn.toml(), pnp.toml()},
-		{"direct-coupled pair", siN.toml(), siP.toml()},
+		{"common emitter", npn.TOML(), pnp.TOML()},
+		{"direct-coupled pair", siN.TOML(), siP.TOML()},
 	} {
 		a, b := solve(tc.a), solve(tc.b)
 		for i, n := range a.Nodes {
@@ -195,28 +196,28 @@ func TestPNPMirrorsNPN(t *testing.T) {
 func TestRegionsAndWarnings(t *testing.T) {
 	cases := []struct {
 		name   string
-		ce     ceChain
+		ce     testchains.CE
 		region Region
 		warn   string
 		check  func(q *Transistor) bool
 	}{
-		{"active", ceChain{Vcc: "9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100}, Active, "",
+		{"active", testchains.CE{Vcc: "9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100}, Active, "",
 			func(q *Transistor) bool { return q.Vce > 0.5 && math.Abs(q.Beta-100) < 1 }},
-		{"saturated", ceChain{Vcc: "9V", R1: "4k7", R2: "100k", RC: "4k7", RE: "100", Kind: "npn", Beta: 100}, Saturated, "saturated",
+		{"saturated", testchains.CE{Vcc: "9V", R1: "4k7", R2: "100k", RC: "4k7", RE: "100", Kind: "npn", Beta: 100}, Saturated, "saturated",
 			func(q *Transistor) bool { return q.Vce < 0.2 && q.Beta < 0.9*100 }},
-		{"cut-off", ceChain{Vcc: "9V", R1: "10M", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100}, CutOff, "cut off",
+		{"cut-off", testchains.CE{Vcc: "9V", R1: "10M", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100}, CutOff, "cut off",
 			func(q *Transistor) bool { return math.Abs(q.Ic) < ConductionCurrent }},
-		{"reverse", ceChain{Vcc: "9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100, Swap: true}, Reverse, "reverse",
+		{"reverse", testchains.CE{Vcc: "9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100, Swap: true}, Reverse, "reverse",
 			func(q *Transistor) bool { return q.Vce < 0 }},
-		{"pnp saturated", ceChain{Vcc: "-9V", R1: "4k7", R2: "100k", RC: "4k7", RE: "100", Kind: "pnp", Beta: 100}, Saturated, "saturated",
+		{"pnp saturated", testchains.CE{Vcc: "-9V", R1: "4k7", R2: "100k", RC: "4k7", RE: "100", Kind: "pnp", Beta: 100}, Saturated, "saturated",
 			func(q *Transistor) bool { return q.Vce > -0.2 && q.Vce < 0 }},
-		{"near the supply rail", ceChain{Vcc: "9V", R1: "47k", R2: "10k", RC: "100", RE: "1k", Kind: "npn", Beta: 100}, Active, "from the supply rail",
+		{"near the supply rail", testchains.CE{Vcc: "9V", R1: "47k", R2: "10k", RC: "100", RE: "1k", Kind: "npn", Beta: 100}, Active, "from the supply rail",
 			func(q *Transistor) bool { return 9-q.Vc < RailMargin }},
-		{"near ground", ceChain{Vcc: "9V", R1: "33k", R2: "10k", RC: "12k", RE: "1k", Kind: "npn", Beta: 200}, Saturated, "from ground",
+		{"near ground", testchains.CE{Vcc: "9V", R1: "33k", R2: "10k", RC: "12k", RE: "1k", Kind: "npn", Beta: 200}, Saturated, "from ground",
 			func(q *Transistor) bool { return q.Vc < RailMargin }},
 	}
 	for _, tc := range cases {
-		b, err := Solve(tc.ce.parse(t))
+		b, err := Solve(tc.ce.Parse(t))
 		if err != nil {
 			t.Fatal(err)
 		}

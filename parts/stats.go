@@ -1,8 +1,10 @@
-package bench
+package parts
 
 import (
 	"math"
 	"sort"
+
+	"renderchain/report"
 )
 
 // Percentile returns the p-quantile (0 ≤ p ≤ 1) of sorted data by linear
@@ -28,20 +30,20 @@ func Percentile(sorted []float64, p float64) float64 {
 
 // Summary is the spread of one quantity over the trials.
 type Summary struct {
-	Name    string `json:"name"`
-	Unit    string `json:"unit"`
-	Nominal Number `json:"nominal"`
-	P5      Number `json:"p5"`
-	P50     Number `json:"p50"`
-	P95     Number `json:"p95"`
-	Min     Number `json:"min"`
-	Max     Number `json:"max"`
-	Mean    Number `json:"mean"`
-	N       int    `json:"n"`
+	Name    string        `json:"name"`
+	Unit    string        `json:"unit"`
+	Nominal report.Number `json:"nominal"`
+	P5      report.Number `json:"p5"`
+	P50     report.Number `json:"p50"`
+	P95     report.Number `json:"p95"`
+	Min     report.Number `json:"min"`
+	Max     report.Number `json:"max"`
+	Mean    report.Number `json:"mean"`
+	N       int           `json:"n"`
 }
 
 func summarise(name, unit string, nominal float64, x []float64) Summary {
-	s := Summary{Name: name, Unit: unit, Nominal: Number(nominal)}
+	s := Summary{Name: name, Unit: unit, Nominal: report.Number(nominal)}
 	var v []float64
 	for _, f := range x {
 		if !math.IsNaN(f) {
@@ -50,14 +52,14 @@ func summarise(name, unit string, nominal float64, x []float64) Summary {
 	}
 	sort.Float64s(v)
 	s.N = len(v)
-	s.P5, s.P50, s.P95 = Number(Percentile(v, 0.05)), Number(Percentile(v, 0.5)), Number(Percentile(v, 0.95))
-	s.Min, s.Max, s.Mean = Number(math.NaN()), Number(math.NaN()), Number(math.NaN())
+	s.P5, s.P50, s.P95 = report.Number(Percentile(v, 0.05)), report.Number(Percentile(v, 0.5)), report.Number(Percentile(v, 0.95))
+	s.Min, s.Max, s.Mean = report.Number(math.NaN()), report.Number(math.NaN()), report.Number(math.NaN())
 	if len(v) > 0 {
 		sum := 0.0
 		for _, f := range v {
 			sum += f
 		}
-		s.Min, s.Max, s.Mean = Number(v[0]), Number(v[len(v)-1]), Number(sum/float64(len(v)))
+		s.Min, s.Max, s.Mean = report.Number(v[0]), report.Number(v[len(v)-1]), report.Number(sum/float64(len(v)))
 	}
 	return s
 }

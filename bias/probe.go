@@ -1,6 +1,7 @@
-package bench
+package bias
 
 import (
+	"errors"
 	"fmt"
 	"sort"
 	"strings"
@@ -10,6 +11,23 @@ import (
 )
 
 var sprintf = fmt.Sprintf
+
+// keyErr is the error of a key a user wrote (a target, a spec, an
+// adjuster): a *models.FieldError on field.
+func keyErr(field, key, format string, a ...any) error {
+	return models.Fieldf(field, key, format, a...)
+}
+
+// relabel gives a *models.FieldError the field of its caller's option.
+func relabel(err error, field string) error {
+	var fe *models.FieldError
+	if errors.As(err, &fe) {
+		c := *fe
+		c.Field = field
+		return &c
+	}
+	return err
+}
 
 // Quantities a transistor key may name: STAGE.REF.Q. Voltages are signed
 // as measured (negative for a PNP's vbe, vce, ic in normal operation).
@@ -48,7 +66,8 @@ func (p *Probe) Unit() string {
 	return "V"
 }
 
-func (p *Probe) kind() models.Quantity {
+// Kind is the quantity of the probed value (a voltage or a current).
+func (p *Probe) Kind() models.Quantity {
 	if p.Quantity == "v" {
 		return models.Voltage
 	}
@@ -56,21 +75,23 @@ func (p *Probe) kind() models.Quantity {
 }
 
 // ParseProbe reads a probe key against a chain: STAGE.REF.Q for a
-// transistor quantity or a node name (STAGE.NODE, or out, in, v+).
+// transistor quantity or a node name (STAGE.NODE, or out, in, v+). A key
+// that names nothing is a *models.FieldError on the field "key" (callers
+// relabel it with their option's field).
 func ParseProbe(ch *chains.Chain, key string) (*Probe, error) {
 	key = strings.TrimSpace(key)
 	parts := strings.Split(key, ".")
 	switch {
 	case key == "":
-		return nil, keyErr(key, "empty key (want STAGE.REF.QUANTITY or a node name)")
+		return nil, keyErr("key", key, "empty key (want STAGE.REF.QUANTITY or a node name)")
 	case len(parts) == 3:
 		st := ch.Stage(parts[0])
 		if st == nil {
-			return nil, keyErr(key, "no stage %q (stages: %s)", parts[0], stageIDs(ch))
+			return nil, keyErr("key", key, "no stage %q (stages: %s)", parts[0], stageIDs(ch))
 		}
 		q := strings.ToLower(parts[2])
 		if _, ok := transistorQuantities[q]; !ok {
-			return nil, keyErr(key, "%q is not a transistor quantity (%s)", parts[2], quantityNames())
+			return nil, keyErr("key", key, "%q is not a transistor quantity (%s)", parts[2], quantityNames())
 		}
 		var found *chains.Part
 		var refs []string
@@ -83,7 +104,7 @@ func ParseProbe(ch *chains.Chain, key string) (*Probe, error) {
 			}
 		}
 		if found == nil {
-			return nil, keyErr(key, "stage %s has no transistor %q (transistors: %s)", st.ID, parts[1], listOrNone(refs))
+			return nil, keyErr("key", key, "stage %s has no transistor %q (transistors: %s)", st.ID, parts[1], listOrNone(refs))
 		}
 		return &Probe{Key: key, Ref: st.ID + "." + found.Ref, Stage: st.ID, Part: found.Ref, Quantity: q}, nil
 	case len(parts) <= 2:
@@ -91,12 +112,13 @@ func ParseProbe(ch *chains.Chain, key string) (*Probe, error) {
 		if err != nil {
 			return nil, err
 		}
-		if n := c.Lookup(key); n > 0 {
-			return &Probe{Key: key, Quantity: "v", Node: key, Stage: stageOfNode(key)}, nil
+		if n, err := ch.Wiring().Resolve(c, key); err == nil && n > 0 {
+			name := c.Nodes[n]
+			return &Probe{Key: key, Quantity: "v", Node: name, Stage: stageOfNode(name)}, nil
 		}
-		return nil, keyErr(key, "no node %q (want STAGE.REF.QUANTITY, e.g. fuzz.Q2.vc, or a node such as %s)", key, someNodes(c))
+		return nil, keyErr("key", key, "no node %q (want STAGE.REF.QUANTITY, e.g. fuzz.Q2.vc, or a node such as %s)", key, someNodes(c))
 	}
-	return nil, keyErr(key, "want STAGE.REF.QUANTITY (e.g. fuzz.Q2.vc) or a node name (e.g. fuzz.c2)")
+	return nil, keyErr("key", key, "want STAGE.REF.QUANTITY (e.g. fuzz.Q2.vc) or a node name (e.g. fuzz.c2)")
 }
 
 func stageOfNode(n string) string {
@@ -140,13 +162,13 @@ func (p *Probe) Read(b *Bias) (float64, error) {
 	if p.Quantity == "v" {
 		v, ok := b.Voltage(p.Node)
 		if !ok {
-			return 0, keyErr(p.Key, "no node %q in the circuit", p.Node)
+			return 0, keyErr("key", p.Key, "no node %q in the circuit", p.Node)
 		}
 		return v, nil
 	}
 	t := b.Transistor(p.Ref)
 	if t == nil {
-		return 0, keyErr(p.Key, "no transistor %s in the circuit", p.Ref)
+		return 0, keyErr("key", p.Key, "no transistor %s in the circuit", p.Ref)
 	}
 	switch p.Quantity {
 	case "vc":
@@ -168,7 +190,7 @@ func (p *Probe) Read(b *Bias) (float64, error) {
 	case "ie":
 		return t.Ie, nil
 	}
-	return 0, keyErr(p.Key, "unknown quantity %q", p.Quantity)
+	return 0, keyErr("key", p.Key, "unknown quantity %q", p.Quantity)
 }
 
 // format writes a value of the probe's quantity.

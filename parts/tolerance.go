@@ -1,4 +1,4 @@
-package bench
+package parts
 
 import (
 	"renderchain/chains"

@@ -1,4 +1,4 @@
-package bench
+package bias
 
 import (
 	"context"
@@ -7,7 +7,7 @@ import (
 
 	"renderchain/chains"
 	"renderchain/dsp/spectrum"
-	"renderchain/dsp/wdf"
+	"renderchain/engine"
 	"renderchain/models"
 )
 
@@ -17,9 +17,11 @@ type SymmetricOptions struct {
 	Level      float64 // test sine, V peak at the chain's source (default: the chain's input peak)
 	Freq       float64 // Hz (default 1 kHz)
 	Probe      string  // node watched (default: the adjusted transistor's collector)
-	SampleRate float64 // solver rate, Hz (default 192 kHz, the render's 48 kHz × 4)
-	Settle     float64 // s run before the record (default 0.1 s, with a 10 ms fade-in)
-	Cycles     int     // cycles recorded (default 20)
+	SampleRate float64 // base rate, Hz (default 48 kHz); the circuit runs at SampleRate × Oversample
+	Oversample int     // 0: the chain's own, else engine.DefaultOversample
+	Cycles     int     // shortest record, in cycles (default 20)
+	MaxSettle  float64 // the settle rule's limit, s (default 1 s)
+	Tolerance  float64 // the settle rule's tolerance (default 1e-4)
 	Scan       int     // rotations tried before refining (default 11)
 }
 
@@ -31,17 +33,37 @@ func (o *SymmetricOptions) defaults(ch *chains.Chain) {
 		o.Freq = 1000
 	}
 	if o.SampleRate == 0 {
-		o.SampleRate = 192000
-	}
-	if o.Settle == 0 {
-		o.Settle = 0.1
+		o.SampleRate = 48000
 	}
 	if o.Cycles == 0 {
 		o.Cycles = 20
 	}
+	if o.MaxSettle == 0 {
+		o.MaxSettle = 1
+	}
+	if o.Tolerance == 0 {
+		o.Tolerance = 1e-4
+	}
 	if o.Scan == 0 {
 		o.Scan = 11
 	}
+}
+
+// check refuses options out of range, as *models.FieldError.
+func (o *SymmetricOptions) check() error {
+	switch {
+	case !models.SignalRange.Contains(o.Level):
+		return models.Fieldf("level", models.FormatValue(o.Level, "V"), "must be %s", models.SignalRange.Describe())
+	case !(o.SampleRate >= engine.MinRate && o.SampleRate <= engine.MaxRate):
+		return models.Fieldf("sample_rate", fmt.Sprint(o.SampleRate), "must be between %d kHz and %d kHz", engine.MinRate/1000, engine.MaxRate/1000)
+	case !(o.Freq > 0 && o.Freq < o.SampleRate/4):
+		return models.Fieldf("frequency", models.FormatValue(o.Freq, "Hz"), "must lie between 0 Hz and a quarter of the %s rate", models.FormatValue(o.SampleRate, "Hz"))
+	case o.Scan < 3 || o.Scan > 1000:
+		return models.Fieldf("scan", fmt.Sprint(o.Scan), "must be between 3 and 1000")
+	case o.Cycles < 1 || float64(o.Cycles)/o.Freq > 10:
+		return models.Fieldf("cycles", fmt.Sprint(o.Cycles), "must be at least 1 and last at most 10 s")
+	}
+	return nil
 }
 
 // Swing is the response of the probe node to the test sine at one rotation.
@@ -88,8 +110,8 @@ const SymmetricTolerance = 1e-3
 // reported in Note with Reached false and the least asymmetric setting.
 func SolveSymmetric(ctx context.Context, ch *chains.Chain, adj *Adjuster, opt SymmetricOptions) (*SymmetricResult, error) {
 	opt.defaults(ch)
-	if !(opt.Level > 0) || !(opt.Freq > 0) || opt.Freq >= opt.SampleRate/4 {
-		return nil, keyErr("symmetric", "the test sine needs a level above 0 V and a frequency in (0, %g Hz)", opt.SampleRate/4)
+	if err := opt.check(); err != nil {
+		return nil, err
 	}
 	work := ch.Clone()
 	st := work.Stage(adj.Stage)
@@ -101,8 +123,8 @@ func SolveSymmetric(ctx context.Context, ch *chains.Chain, adj *Adjuster, opt Sy
 	if err != nil {
 		return nil, err
 	}
-	if c0.Lookup(probe) <= 0 {
-		return nil, keyErr(probe, "no node of that name to watch (e.g. %s)", someNodes(c0))
+	if _, err := work.Wiring().Resolve(c0, probe); err != nil {
+		return nil, keyErr("probe", probe, "no node of that name to watch (e.g. %s)", someNodes(c0))
 	}
 	res := &SymmetricResult{Adjust: adj, Probe: probe, Options: opt, Start: st.Knobs[adj.Knob]}
 	var firstErr error
@@ -195,57 +217,34 @@ func defaultProbe(ch *chains.Chain, adj *Adjuster) string {
 	return w.Node(st.ID, "out")
 }
 
-// measureSwing runs the test sine through the circuit at its present
-// settings and measures the probe's excursions about its idle voltage.
+// measureSwing runs the engine's test sine through the circuit at its
+// present settings, on the render's path (oversampled, at the base rate),
+// and measures the probe's excursions about its idle voltage on the
+// settled record.
 func measureSwing(ctx context.Context, ch *chains.Chain, probe string, opt SymmetricOptions) (Swing, error) {
 	nan := Swing{Asymmetry: math.NaN(), THD: math.NaN()}
-	b, err := Solve(ch)
+	p, err := engine.Prepare(ch, opt.Oversample)
 	if err != nil {
 		return nan, err
 	}
-	n := b.Circuit.Lookup(probe)
-	s, err := wdf.Compile(b.Circuit, b.DC, wdf.Options{SampleRate: opt.SampleRate, Probe: n})
+	n, err := p.Node(probe)
 	if err != nil {
 		return nan, err
 	}
-	idle := b.DC.Node[n]
-	fs, f0 := opt.SampleRate, opt.Freq
-	settle := int(math.Ceil(opt.Settle * fs))
-	record := int(math.Round(float64(opt.Cycles) * fs / f0))
-	rec := make([]float64, record)
-	const block = 1024
-	src := make([]float64, block)
-	dst := make([]float64, block)
-	fade := 0.01 * fs
-	w := 2 * math.Pi * f0 / fs
-	for start := 0; start < settle+record; start += block {
-		if ctx.Err() != nil {
-			return nan, ctx.Err()
-		}
-		m := min(block, settle+record-start)
-		for i := 0; i < m; i++ {
-			k := float64(start + i)
-			g := 1.0
-			if k < fade {
-				g = 0.5 - 0.5*math.Cos(math.Pi*k/fade)
-			}
-			src[i] = g * opt.Level * math.Sin(w*k)
-		}
-		s.Process(dst[:m], src[:m])
-		for i := 0; i < m; i++ {
-			if k := start + i - settle; k >= 0 {
-				rec[k] = dst[i]
-			}
-		}
+	rec, err := p.Sine(ctx, engine.SineOptions{Freq: opt.Freq, Amplitude: opt.Level, SampleRate: opt.SampleRate, Node: n,
+		MinRecord: float64(opt.Cycles) / opt.Freq, MaxSettle: opt.MaxSettle, Tolerance: opt.Tolerance})
+	if err != nil {
+		return nan, err
 	}
+	idle := p.DC.Node[n]
 	hi, lo := math.Inf(-1), math.Inf(1)
-	for _, v := range rec {
+	for _, v := range rec.Samples {
 		hi = math.Max(hi, v)
 		lo = math.Min(lo, v)
 	}
 	// A node of a circuit fed by the supply and a test sine cannot leave
 	// the rails by more than the sine; far beyond is a solver that ran away.
-	limit := 2*(math.Abs(b.Supply)+opt.Level) + 1
+	limit := 2*(math.Abs(ch.Supply)+opt.Level) + 1
 	if !(hi-lo < 2*limit) || math.Abs(hi) > limit || math.Abs(lo) > limit {
 		return nan, fmt.Errorf("the wave digital solver ran away (the probe reached %s)", models.FormatValue(math.Max(math.Abs(hi), math.Abs(lo)), "V"))
 	}
@@ -253,7 +252,7 @@ func measureSwing(ctx context.Context, ch *chains.Chain, probe string, opt Symme
 	if sw.Up+sw.Down > 0 {
 		sw.Asymmetry = (sw.Up - sw.Down) / (sw.Up + sw.Down)
 	}
-	if a, err := spectrum.Analyze(rec, fs, f0, nil); err == nil {
+	if a, err := spectrum.Analyze(rec.Samples, opt.SampleRate, rec.Sine.Frequency(), nil); err == nil {
 		sw.THD = a.THDF
 	}
 	return sw, nil

@@ -1,6 +1,11 @@
-package bench
+package bias
 
-import "renderchain/models"
+import (
+	"math"
+
+	"renderchain/models"
+	"renderchain/report"
+)
 
 // BiasReport is the JSON form of a Bias. The fields nodes, devices[].ref,
 // .vbe_v, .vce_v, .ic_a and .region are part of the project's stable
@@ -28,23 +33,23 @@ type BiasReport struct {
 
 // DeviceReport is one transistor in a BiasReport.
 type DeviceReport struct {
-	Ref       string  `json:"ref"`
-	Kind      string  `json:"kind"`
-	Collector string  `json:"collector"`
-	Base      string  `json:"base"`
-	Emitter   string  `json:"emitter"`
-	VcV       float64 `json:"vc_v"`
-	VbV       float64 `json:"vb_v"`
-	VeV       float64 `json:"ve_v"`
-	VbeV      float64 `json:"vbe_v"`
-	VceV      float64 `json:"vce_v"`
-	VbcV      float64 `json:"vbc_v"`
-	IcA       float64 `json:"ic_a"`
-	IbA       float64 `json:"ib_a"`
-	IeA       float64 `json:"ie_a"`
-	PowerW    float64 `json:"power_w"`
-	Beta      Number  `json:"beta_dc"`
-	Region    Region  `json:"region"`
+	Ref       string        `json:"ref"`
+	Kind      string        `json:"kind"`
+	Collector string        `json:"collector"`
+	Base      string        `json:"base"`
+	Emitter   string        `json:"emitter"`
+	VcV       float64       `json:"vc_v"`
+	VbV       float64       `json:"vb_v"`
+	VeV       float64       `json:"ve_v"`
+	VbeV      float64       `json:"vbe_v"`
+	VceV      float64       `json:"vce_v"`
+	VbcV      float64       `json:"vbc_v"`
+	IcA       float64       `json:"ic_a"`
+	IbA       float64       `json:"ib_a"`
+	IeA       float64       `json:"ie_a"`
+	PowerW    float64       `json:"power_w"`
+	Beta      report.Number `json:"beta_dc"`
+	Region    Region        `json:"region"`
 }
 
 // DiodeReport is one diode in a BiasReport.
@@ -82,12 +87,12 @@ type TargetReport struct {
 
 // SwingReport is one Swing in JSON.
 type SwingReport struct {
-	Rotation  float64 `json:"rotation"`
-	IdleV     float64 `json:"idle_v"`
-	UpV       float64 `json:"up_v"`
-	DownV     float64 `json:"down_v"`
-	Asymmetry Number  `json:"asymmetry"`
-	THDPct    Number  `json:"thd_percent"`
+	Rotation  float64       `json:"rotation"`
+	IdleV     float64       `json:"idle_v"`
+	UpV       float64       `json:"up_v"`
+	DownV     float64       `json:"down_v"`
+	Asymmetry report.Number `json:"asymmetry"`
+	THDPct    report.Number `json:"thd_percent"`
 }
 
 // SymmetricReport is the JSON form of a SymmetricResult.
@@ -158,9 +163,9 @@ func deviceReports(b *Bias) ([]DeviceReport, []DiodeReport) {
 		if t.PNP {
 			kind = "pnp"
 		}
-		beta := Number(t.Beta)
+		beta := report.Number(t.Beta)
 		if t.Ib == 0 {
-			beta = Number(nan())
+			beta = report.Number(math.NaN())
 		}
 		devs = append(devs, DeviceReport{Ref: t.Ref, Kind: kind, Collector: t.Collector, Base: t.Base, Emitter: t.Emitter,
 			VcV: t.Vc, VbV: t.Vb, VeV: t.Ve, VbeV: t.Vbe, VceV: t.Vce, VbcV: t.Vbc, IcA: t.Ic, IbA: t.Ib, IeA: t.Ie,
@@ -194,7 +199,7 @@ func (r *TargetResult) Report() *TargetReport {
 }
 
 func swingReport(s Swing) SwingReport {
-	return SwingReport{Rotation: s.Rotation, IdleV: s.Idle, UpV: s.Up, DownV: s.Down, Asymmetry: Number(s.Asymmetry), THDPct: Number(100 * s.THD)}
+	return SwingReport{Rotation: s.Rotation, IdleV: s.Idle, UpV: s.Up, DownV: s.Down, Asymmetry: report.Number(s.Asymmetry), THDPct: report.Number(100 * s.THD)}
 }
 
 // Report returns the JSON form of r.

@@ -1,4 +1,4 @@
-package bench
+package parts
 
 import (
 	"encoding/csv"
@@ -8,9 +8,11 @@ import (
 	"strconv"
 	"strings"
 
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/eseries"
 	"renderchain/models"
+	"renderchain/report"
 )
 
 // Capacitor voltage ratings offered (common practice: the usual steps of
@@ -36,25 +38,25 @@ const ElectrolyticFrom = 1e-6
 
 // BOMLine is one part of the parts list.
 type BOMLine struct {
-	Ref           string `json:"ref"`
-	Kind          string `json:"kind"`
-	Value         string `json:"value"`
-	ValueSI       Number `json:"value_si"`
-	Written       string `json:"written,omitempty"`
-	E12           string `json:"e12,omitempty"`
-	E24           string `json:"e24,omitempty"`
-	Series        string `json:"series,omitempty"`
-	Tolerance     Number `json:"tolerance_percent"`
-	ToleranceRule string `json:"tolerance_rule,omitempty"`
-	IdleVolts     Number `json:"idle_v"`
-	IdlePower     Number `json:"idle_power_w"`
+	Ref           string          `json:"ref"`
+	Kind          chains.PartKind `json:"kind"`
+	Value         string          `json:"value"`
+	ValueSI       report.Number   `json:"value_si"`
+	Written       string          `json:"written,omitempty"`
+	E12           string          `json:"e12,omitempty"`
+	E24           string          `json:"e24,omitempty"`
+	Series        string          `json:"series,omitempty"`
+	Tolerance     report.Number   `json:"tolerance_percent"`
+	ToleranceRule string          `json:"tolerance_rule,omitempty"`
+	IdleVolts     report.Number   `json:"idle_v"`
+	IdlePower     report.Number   `json:"idle_power_w"`
 	// MinVoltage is the least voltage rating to buy (capacitors, and
 	// transistors' Vceo, diodes' reverse rating); MinPower the least power
 	// rating (resistors, pots, transistors).
-	MinVoltage Number `json:"min_voltage_v,omitempty"`
-	MinPower   Number `json:"min_power_w,omitempty"`
-	Rating     string `json:"rating"`
-	Note       string `json:"note,omitempty"`
+	MinVoltage report.Number `json:"min_voltage_v,omitempty"`
+	MinPower   report.Number `json:"min_power_w,omitempty"`
+	Rating     string        `json:"rating"`
+	Note       string        `json:"note,omitempty"`
 
 	e12, e24 float64
 	order    string
@@ -62,11 +64,11 @@ type BOMLine struct {
 
 // OrderLine groups identical parts for ordering.
 type OrderLine struct {
-	Kind   string   `json:"kind"`
-	Value  string   `json:"value"`
-	Count  int      `json:"count"`
-	Rating string   `json:"rating"`
-	Refs   []string `json:"refs"`
+	Kind   chains.PartKind `json:"kind"`
+	Value  string          `json:"value"`
+	Count  int             `json:"count"`
+	Rating string          `json:"rating"`
+	Refs   []string        `json:"refs"`
 }
 
 // BOM is a chain's parts list.
@@ -84,7 +86,7 @@ type BOM struct {
 // E24 values, the tolerance rule's figure, its idle voltage and
 // dissipation from the DC operating point, and the rating hints.
 func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
-	b, err := Solve(ch)
+	b, err := bias.Solve(ch)
 	if err != nil {
 		return nil, err
 	}
@@ -108,10 +110,10 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 		}
 		for _, p := range st.Parts {
 			ref := st.ID + "." + p.Ref
-			l := BOMLine{Ref: ref, Kind: p.Kind.String(), Written: p.Text, ValueSI: Number(p.Value),
-				IdleVolts: Number(math.NaN()), IdlePower: Number(math.NaN()), Tolerance: Number(math.NaN())}
+			l := BOMLine{Ref: ref, Kind: p.Kind, Written: p.Text, ValueSI: report.Number(p.Value),
+				IdleVolts: report.Number(math.NaN()), IdlePower: report.Number(math.NaN()), Tolerance: report.Number(math.NaN())}
 			if tol, rule := Tolerance(p); tol > 0 {
-				l.Tolerance, l.ToleranceRule = Number(100*tol), rule
+				l.Tolerance, l.ToleranceRule = report.Number(100*tol), rule
 			}
 			switch p.Kind {
 			case chains.Resistor, chains.Capacitor, chains.Inductor, chains.Cable:
@@ -126,17 +128,17 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 					}
 				}
 				v, _ := across(ref)
-				l.IdleVolts = Number(v)
+				l.IdleVolts = report.Number(v)
 				switch p.Kind {
 				case chains.Resistor:
 					pw := v * v / p.Value
-					l.IdlePower = Number(pw)
-					l.MinPower = Number(pick(resistorRatings, PowerMargin*pw))
+					l.IdlePower = report.Number(pw)
+					l.MinPower = report.Number(pick(resistorRatings, PowerMargin*pw))
 					l.Rating = ratingW(float64(l.MinPower))
 				case chains.Capacitor:
 					l.IdlePower = 0
 					need := math.Max(vmin, CapacitorMargin*math.Abs(v))
-					l.MinVoltage = Number(pick(capacitorRatings, need))
+					l.MinVoltage = report.Number(pick(capacitorRatings, need))
 					l.Rating = sprintf("≥ %s", models.FormatValue(float64(l.MinVoltage), "V"))
 					if p.Value >= ElectrolyticFrom {
 						l.Note = polarity(ch, st, p, v)
@@ -154,8 +156,8 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 						pw += v * v / b.Circuit.Elements[i].Value
 					}
 				}
-				l.IdlePower = Number(pw)
-				l.MinPower = Number(PowerMargin * pw)
+				l.IdlePower = report.Number(pw)
+				l.MinPower = report.Number(PowerMargin * pw)
 				l.Rating = "no DC through it"
 				if pw > 1e-9 {
 					l.Rating = sprintf("track ≥ %s", models.FormatValue(float64(l.MinPower), "W"))
@@ -179,9 +181,9 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 				l.Value = sprintf("%s %s hFE %g", p.Kind, model, bp.BetaF)
 				l.order = p.Kind.String() + " " + model
 				if t := b.Transistor(ref); t != nil {
-					l.IdleVolts, l.IdlePower = Number(t.Vce), Number(t.Power)
-					l.MinPower = Number(PowerMargin * t.Power)
-					l.MinVoltage = Number(vmin)
+					l.IdleVolts, l.IdlePower = report.Number(t.Vce), report.Number(t.Power)
+					l.MinPower = report.Number(PowerMargin * t.Power)
+					l.MinVoltage = report.Number(vmin)
 					l.Rating = sprintf("Pd ≥ %s, Vceo ≥ %s", models.FormatValue(float64(l.MinPower), "W"), models.FormatValue(vmin, "V"))
 					l.Note = sprintf("idle Ic %s, %s", models.FormatValue(t.Ic, "A"), t.Region)
 				}
@@ -195,11 +197,11 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 				}
 				l.Value = "diode " + model
 				l.order = l.Value
-				l.MinVoltage = Number(vmin)
+				l.MinVoltage = report.Number(vmin)
 				l.Rating = sprintf("reverse ≥ %s", models.FormatValue(vmin, "V"))
 				for _, d := range b.Diodes {
 					if d.Ref == ref {
-						l.IdleVolts, l.IdlePower = Number(d.V), Number(d.Power)
+						l.IdleVolts, l.IdlePower = report.Number(d.V), report.Number(d.Power)
 						l.Note = sprintf("idle %s", models.FormatValue(d.I, "A"))
 					}
 				}
@@ -250,15 +252,21 @@ func polarity(ch *chains.Chain, st *chains.Stage, p *chains.Part, v float64) str
 	return sprintf("electrolytic: + to %s (%s across at idle)", ch.Wiring().Node(st.ID, plus), models.FormatValue(math.Abs(v), "V"))
 }
 
-var kindOrder = map[string]int{"resistor": 0, "pot": 1, "capacitor": 2, "inductor": 3, "cable": 4, "diode": 5, "npn": 6, "pnp": 7}
+// kindOrder is the order of kinds in the order list: resistors and pots,
+// then capacitors, inductors, cable, diodes and transistors.
+var kindOrder = map[chains.PartKind]int{chains.Resistor: 0, chains.Pot: 1, chains.Capacitor: 2, chains.Inductor: 3,
+	chains.Cable: 4, chains.Diode: 5, chains.NPN: 6, chains.PNP: 7}
 
 func group(lines []BOMLine) []OrderLine {
-	type key struct{ kind, value, rating string }
+	type key struct {
+		kind          chains.PartKind
+		value, rating string
+	}
 	m := map[key]*OrderLine{}
 	var keys []key
 	for _, l := range lines {
 		k := key{l.Kind, l.order, l.Rating}
-		if l.Kind == "npn" || l.Kind == "pnp" {
+		if l.Kind.Transistor() {
 			k.rating = ""
 		}
 		o, ok := m[k]
@@ -306,7 +314,7 @@ func (b *BOM) WriteCSV(w io.Writer) error {
 	if err := cw.Write(CSVHeader); err != nil {
 		return err
 	}
-	num := func(n Number, prec int) string {
+	num := func(n report.Number, prec int) string {
 		f := float64(n)
 		if math.IsNaN(f) || math.IsInf(f, 0) {
 			return ""
@@ -314,7 +322,7 @@ func (b *BOM) WriteCSV(w io.Writer) error {
 		return strconv.FormatFloat(f, 'g', prec, 64)
 	}
 	for _, l := range b.Lines {
-		rec := []string{l.Ref, l.Kind, l.Value, l.E12, l.E24, l.Series, num(l.Tolerance, 4), l.ToleranceRule,
+		rec := []string{l.Ref, l.Kind.String(), l.Value, l.E12, l.E24, l.Series, num(l.Tolerance, 4), l.ToleranceRule,
 			num(l.IdleVolts, 5), num(l.IdlePower, 4), l.Rating, l.Note}
 		if err := cw.Write(rec); err != nil {
 			return err

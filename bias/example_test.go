@@ -1,10 +1,10 @@
-package bench_test
+package bias_test
 
 import (
 	"fmt"
 	"log"
 
-	"renderchain/bench"
+	"renderchain/bias"
 	"renderchain/chains"
 )
 
@@ -31,7 +31,7 @@ func ExampleSolve() {
 	if err != nil {
 		log.Fatal(err)
 	}
-	b, err := bench.Solve(ch)
+	b, err := bias.Solve(ch)
 	if err != nil {
 		log.Fatal(err)
 	}
@@ -46,15 +46,15 @@ func ExampleSolveTarget() {
 	if err != nil {
 		log.Fatal(err)
 	}
-	t, err := bench.ParseTarget(ch, "ce.Q1.vc=4.5V")
+	t, err := bias.ParseTarget(ch, "ce.Q1.vc=4.5V")
 	if err != nil {
 		log.Fatal(err)
 	}
-	adj, err := bench.AdjusterFor(ch, t, "") // the trimmer marked adjusts = "Q1"
+	adj, err := bias.AdjusterFor(ch, t, "") // the trimmer marked adjusts = "Q1"
 	if err != nil {
 		log.Fatal(err)
 	}
-	r, err := bench.SolveTarget(ch, t, adj)
+	r, err := bias.SolveTarget(ch, t, adj)
 	if err != nil {
 		log.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package bench
+package parts
 
 import (
 	"bytes"
@@ -7,7 +7,9 @@ import (
 	"strings"
 	"testing"
 
+	"renderchain/bias"
 	"renderchain/chains"
+	"renderchain/internal/testchains"
 )
 
 func bomLine(t *testing.T, b *BOM, ref string) BOMLine {
@@ -27,7 +29,7 @@ func bomLine(t *testing.T, b *BOM, ref string) BOMLine {
 // least 1.5 × the supply (16 V on 9 V), resistors at least twice their
 // idle dissipation V²/R (Joule's law from the idle node voltages).
 func TestPartsList(t *testing.T) {
-	src := strings.Replace(ceChain{Vcc: "9V", R1: "49.9k", R2: "10k", RC: "5k1", RE: "1k", Kind: "npn", Beta: 100}.toml(),
+	src := strings.Replace(testchains.CE{Vcc: "9V", R1: "49.9k", R2: "10k", RC: "5k1", RE: "1k", Kind: "npn", Beta: 100}.TOML(),
 		`{ ref = "C2", kind = "capacitor", value = "100n"`, `{ ref = "C2", kind = "capacitor", value = "100n", tolerance = "2%"`, 1)
 	ch, err := chains.Parse("ce.toml", src)
 	if err != nil {
@@ -54,14 +56,14 @@ func TestPartsList(t *testing.T) {
 			t.Errorf("%s: E12 %s E24 %s series %s rule %s tol %v; want %s %s %s %s %v", c.ref, l.E12, l.E24, l.Series, l.ToleranceRule, l.Tolerance, c.e12, c.e24, c.series, c.rule, c.tol)
 		}
 	}
-	bias, _ := Solve(ch)
-	vb, _ := bias.Voltage("ce.b")
+	op, _ := bias.Solve(ch)
+	vb, _ := op.Voltage("ce.b")
 	r1 := bomLine(t, b, "ce.R1")
 	if want := (9 - vb) * (9 - vb) / 49.9e3; math.Abs(float64(r1.IdlePower)/want-1) > 1e-9 || r1.Rating != "1/4 W" {
 		t.Errorf("R1 idle power %g W (V²/R = %g W), rating %s", float64(r1.IdlePower), want, r1.Rating)
 	}
 	q := bomLine(t, b, "ce.Q1")
-	qt := bias.Transistor("ce.Q1")
+	qt := op.Transistor("ce.Q1")
 	if want := qt.Vce*qt.Ic + qt.Vbe*qt.Ib; math.Abs(float64(q.IdlePower)/want-1) > 1e-12 || float64(q.MinPower) != 2*want || float64(q.MinVoltage) != 13.5 {
 		t.Errorf("Q1 idle %g W (Vce·Ic + Vbe·Ib = %g W), min %g W, Vceo %g V", float64(q.IdlePower), want, float64(q.MinPower), float64(q.MinVoltage))
 	}
@@ -108,11 +110,11 @@ func TestCapacitorRatings(t *testing.T) {
 		supply string
 		want   float64
 	}{{"9V", 16}, {"-9V", 16}, {"12V", 25}, {"18V", 35}, {"24V", 50}, {"5V", 10}} {
-		ch := ceChain{Vcc: c.supply, R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100}
+		ch := testchains.CE{Vcc: c.supply, R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100}
 		if c.supply[0] == '-' {
 			ch.Kind = "pnp"
 		}
-		b, err := PartsList(ch.parse(t), false)
+		b, err := PartsList(ch.Parse(t), false)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -1,4 +1,4 @@
-package bench
+package parts
 
 import (
 	"bytes"
@@ -12,7 +12,10 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"renderchain/bias"
 	"renderchain/chains"
+	"renderchain/internal/testchains"
+	"renderchain/report"
 )
 
 const oneResistor = `
@@ -30,9 +33,9 @@ parts = [ { ref = "R1", kind = "resistor", value = "5k1", pins = ["in", "out"] }
 // The same seed gives the same result, byte for byte, whatever the number
 // of workers; another seed gives another.
 func TestSpreadReproducible(t *testing.T) {
-	ch := siPair().parse(t)
+	ch := testchains.SiPair().Parse(t)
 	run := func(seed uint64, workers int) []byte {
-		r, err := Spread(context.Background(), ch, SpreadOptions{Trials: 24, Seed: seed, Workers: workers, NoTHD: true, HFEBin: []float64{110, 140, 215, 393}})
+		r, err := Spread(context.Background(), ch, SpreadOptions{Trials: 24, Seed: seed, Workers: workers, NoTHD: true, HFEBin: []float64{126, 158, 231, 304}})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -93,7 +96,7 @@ func TestSpreadDrawsFollowDistribution(t *testing.T) {
 				dens = std.Prob(z) / (sigma * mass)
 			}
 			se := math.Sqrt(p*(1-p)/n) / dens
-			got := map[float64]Number{0.05: pd.P5, 0.5: pd.P50, 0.95: pd.P95}[p]
+			got := map[float64]report.Number{0.05: pd.P5, 0.5: pd.P50, 0.95: pd.P95}[p]
 			t.Logf("%s p%.0f: drawn %.2f Ω, distribution %.2f Ω, diff %.2f Ω (4 SE = %.2f Ω)", d, 100*p, float64(got), q, float64(got)-q, 4*se)
 			if math.Abs(float64(got)-q) > 4*se {
 				t.Errorf("%s p%.0f: %.2f Ω, want %.2f ± %.2f Ω", d, 100*p, float64(got), q, 4*se)
@@ -113,8 +116,8 @@ func TestSpreadDrawsFollowDistribution(t *testing.T) {
 // device about equally often (4 devices, 2 transistors: each appears in a
 // trial with probability 1/2; allowed 4 binomial standard deviations).
 func TestSpreadHFEBin(t *testing.T) {
-	ch := siPair().parse(t)
-	bin := []float64{110, 140, 215, 393}
+	ch := testchains.SiPair().Parse(t)
+	bin := []float64{126, 158, 231, 304}
 	const n = 400
 	res, err := Spread(context.Background(), ch, SpreadOptions{Trials: n, Seed: 3, NoTHD: true, HFEBin: bin})
 	if err != nil {
@@ -160,7 +163,7 @@ func TestSpreadHFEBin(t *testing.T) {
 // A spec no trial meets is a message and a zero yield, whose Wilson upper
 // bound for 0 of n is z²/(n + z²) in closed form (Wilson 1927).
 func TestSpreadSpecs(t *testing.T) {
-	ch := siPair().parse(t)
+	ch := testchains.SiPair().Parse(t)
 	never, err := ParseSpec(ch, "fz.Q2.vc=20..30V")
 	if err != nil {
 		t.Fatal(err)
@@ -199,10 +202,10 @@ func TestSpreadSpecs(t *testing.T) {
 // Re-trimmed trials all sit on the target (within 10 mV) whatever their
 // parts, and the trimmer settings spread instead.
 func TestSpreadRetrim(t *testing.T) {
-	ch := siPair().parse(t)
-	tg, _ := ParseTarget(ch, "fz.Q2.vc=4.5V")
-	adj, _ := AdjusterFor(ch, tg, "")
-	res, err := Spread(context.Background(), ch, SpreadOptions{Trials: 20, Seed: 5, NoTHD: true, Retrim: tg, RetrimAdjust: adj, HFEBin: []float64{110, 140, 215, 393}})
+	ch := testchains.SiPair().Parse(t)
+	tg, _ := bias.ParseTarget(ch, "fz.Q2.vc=4.5V")
+	adj, _ := bias.AdjusterFor(ch, tg, "")
+	res, err := Spread(context.Background(), ch, SpreadOptions{Trials: 20, Seed: 5, NoTHD: true, Retrim: tg, RetrimAdjust: adj, HFEBin: []float64{126, 158, 231, 304}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -227,7 +230,7 @@ func TestSpreadTHD(t *testing.T) {
 	if thd := res.Quantity("thd_percent"); !(float64(thd.Max) < 0.01) {
 		t.Errorf("THD of a resistor: %v %%", thd.Max)
 	}
-	res, err = Spread(context.Background(), siPair().parse(t), SpreadOptions{Trials: 2, Seed: 1, Amplitude: 0.1})
+	res, err = Spread(context.Background(), testchains.SiPair().Parse(t), SpreadOptions{Trials: 2, Seed: 1, Amplitude: 0.1})
 	if err != nil {
 		t.Fatal(err)
 	}

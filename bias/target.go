@@ -1,7 +1,9 @@
-package bench
+package bias
 
 import (
+	"maps"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 
@@ -41,19 +43,15 @@ func ResolveAdjuster(ch *chains.Chain, spec, device string) (*Adjuster, error) {
 		stage, name, ok := strings.Cut(spec, ".")
 		st := ch.Stage(stage)
 		if !ok || st == nil {
-			return nil, keyErr(spec, "want STAGE.KNOB or STAGE.POT (stages: %s)", stageIDs(ch))
+			return nil, keyErr("adjust", spec, "want STAGE.KNOB or STAGE.POT (stages: %s)", stageIDs(ch))
 		}
 		for _, p := range st.Parts {
 			if p.Kind == chains.Pot && (p.Knob == name || p.Ref == name) {
 				return &Adjuster{Stage: st.ID, Knob: p.Knob, Pot: p}, nil
 			}
 		}
-		var knobs []string
-		for k := range st.Knobs {
-			knobs = append(knobs, k)
-		}
-		sort.Strings(knobs)
-		return nil, keyErr(spec, "stage %s has no knob or pot %q (knobs: %s)", st.ID, name, listOrNone(knobs))
+		knobs := slices.Sorted(maps.Keys(st.Knobs))
+		return nil, keyErr("adjust", spec, "stage %s has no knob or pot %q (knobs: %s)", st.ID, name, listOrNone(knobs))
 	}
 	if device != "" {
 		stage, ref, _ := strings.Cut(device, ".")
@@ -65,7 +63,7 @@ func ResolveAdjuster(ch *chains.Chain, spec, device string) (*Adjuster, error) {
 				}
 			}
 		}
-		return nil, keyErr(device, "no trimmer in stage %s is marked adjusts = %q; name the knob to turn with --adjust STAGE.KNOB", stage, ref)
+		return nil, keyErr("adjust", device, "no trimmer in stage %s is marked adjusts = %q; name the knob to turn (STAGE.KNOB)", stage, ref)
 	}
 	var last *Adjuster
 	for _, st := range ch.Stages {
@@ -82,7 +80,7 @@ func ResolveAdjuster(ch *chains.Chain, spec, device string) (*Adjuster, error) {
 		}
 	}
 	if last == nil {
-		return nil, keyErr("adjust", "no trimmer in the chain is marked with adjusts; name the knob to turn with --adjust STAGE.KNOB")
+		return nil, keyErr("adjust", "", "no trimmer in the chain is marked with adjusts; name the knob to turn (STAGE.KNOB)")
 	}
 	return last, nil
 }
@@ -95,19 +93,20 @@ type Target struct {
 }
 
 // ParseTarget reads "KEY=VALUE" (fuzz.Q2.vc=4.5V, fuzz.Q2.ic=1mA,
-// fuzz.c2=4.5V) against a chain.
+// fuzz.c2=4.5V) against a chain. Errors are *models.FieldError on the
+// field "target".
 func ParseTarget(ch *chains.Chain, s string) (*Target, error) {
 	key, val, ok := strings.Cut(s, "=")
 	if !ok {
-		return nil, keyErr(s, "want KEY=VALUE, e.g. fuzz.Q2.vc=4.5V (or \"symmetric\")")
+		return nil, keyErr("target", s, "want KEY=VALUE, e.g. fuzz.Q2.vc=4.5V (or \"symmetric\")")
 	}
 	p, err := ParseProbe(ch, key)
 	if err != nil {
-		return nil, err
+		return nil, relabel(err, "target")
 	}
-	v, err := models.ParseValue(strings.TrimSpace(val), p.kind())
+	v, err := models.ParseValue(strings.TrimSpace(val), p.Kind())
 	if err != nil {
-		return nil, keyErr(s, "%v", err)
+		return nil, models.FieldOf("target", s, err)
 	}
 	return &Target{Probe: p, Value: v, Text: strings.TrimSpace(s)}, nil
 }
@@ -159,7 +158,7 @@ func SolveTarget(ch *chains.Chain, t *Target, adj *Adjuster) (*TargetResult, err
 	work := ch.Clone()
 	st := work.Stage(adj.Stage)
 	if st == nil {
-		return nil, keyErr(adj.Key(), "no stage %q", adj.Stage)
+		return nil, keyErr("adjust", adj.Key(), "no stage %q", adj.Stage)
 	}
 	res := &TargetResult{Target: t, Adjust: adj, Start: st.Knobs[adj.Knob]}
 	var firstErr error
@@ -270,7 +269,7 @@ func (r *TargetResult) Message() string {
 // marked for the target's transistor. A node target needs spec.
 func AdjusterFor(ch *chains.Chain, t *Target, spec string) (*Adjuster, error) {
 	if spec == "" && t.Probe.Ref == "" {
-		return nil, keyErr(t.Probe.Key, "a node target needs the knob to turn: add --adjust STAGE.KNOB")
+		return nil, keyErr("adjust", t.Probe.Key, "a node target needs the knob to turn (STAGE.KNOB)")
 	}
 	return ResolveAdjuster(ch, spec, t.Probe.Ref)
 }

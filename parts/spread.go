@@ -1,21 +1,26 @@
-package bench
+package parts
 
 import (
 	"context"
 	"encoding/csv"
 	"errors"
+	"fmt"
 	"io"
 	"math"
 	"math/rand/v2"
-	"runtime"
+	"slices"
 	"strconv"
 	"strings"
-	"sync"
 	"sync/atomic"
 
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/models"
+	"renderchain/parallel"
+	"renderchain/report"
 )
+
+var sprintf = fmt.Sprintf
 
 // Distribution is the shape of a part's deviation from its nominal value.
 type Distribution int
@@ -43,7 +48,8 @@ func (d Distribution) Describe() string {
 	return "normal with tolerance = 3σ, truncated at ±tolerance"
 }
 
-// ParseDistribution reads "normal" or "uniform".
+// ParseDistribution reads "normal" or "uniform"; another name is a
+// *models.FieldError on the field "distribution".
 func ParseDistribution(s string) (Distribution, error) {
 	switch strings.ToLower(strings.TrimSpace(s)) {
 	case "normal", "gaussian", "":
@@ -51,7 +57,7 @@ func ParseDistribution(s string) (Distribution, error) {
 	case "uniform":
 		return Uniform, nil
 	}
-	return 0, keyErr(s, "distribution is normal or uniform")
+	return 0, models.Fieldf("distribution", s, "is normal or uniform")
 }
 
 // deviation draws a relative deviation within ±tol.
@@ -72,66 +78,45 @@ func (d Distribution) deviation(r *rand.Rand, tol float64) float64 {
 // or THD ("thd", percent). Lo or Hi may be infinite.
 type Spec struct {
 	Text   string
-	Probe  *Probe
+	Probe  *bias.Probe
 	Metric string
 	Lo, Hi float64
 }
 
 // ParseSpec reads "KEY=LO..HI": fuzz.Q2.vc=4..5V, fuzz.Q2.ic=0.5m..1mA,
-// gain=30..40dB, thd=..20%. Either bound may be left out.
+// gain=30..40dB, thd=..20%. Either bound may be left out. Errors are
+// *models.FieldError on the field "spec".
 func ParseSpec(ch *chains.Chain, s string) (*Spec, error) {
-	key, rng, ok := strings.Cut(s, "=")
-	lo, hi, ok2 := strings.Cut(rng, "..")
-	if !ok || !ok2 {
-		return nil, keyErr(s, "want KEY=LO..HI, e.g. fuzz.Q2.vc=4..5V, gain=30..40dB, thd=..20%%")
+	key, span, ok := strings.Cut(s, "=")
+	if !ok {
+		return nil, models.Fieldf("spec", s, "want KEY=LO..HI, e.g. fuzz.Q2.vc=4..5V, gain=30..40dB, thd=..20%%")
 	}
 	key = strings.TrimSpace(key)
-	sp := &Spec{Text: strings.TrimSpace(s), Lo: math.Inf(-1), Hi: math.Inf(1)}
+	sp := &Spec{Text: strings.TrimSpace(s)}
 	var parse func(string) (float64, error)
 	switch strings.ToLower(key) {
 	case "gain":
-		sp.Metric = "gain_db"
-		parse = func(t string) (float64, error) { return strconv.ParseFloat(strings.TrimSuffix(t, "dB"), 64) }
+		sp.Metric, parse = "gain_db", models.ParseDecibels
 	case "thd":
-		sp.Metric = "thd_percent"
-		parse = func(t string) (float64, error) { return strconv.ParseFloat(strings.TrimSuffix(t, "%"), 64) }
+		sp.Metric, parse = "thd_percent", models.ParsePercent
 	default:
-		p, err := ParseProbe(ch, key)
+		p, err := bias.ParseProbe(ch, key)
 		if err != nil {
+			var fe *models.FieldError
+			if errors.As(err, &fe) {
+				return nil, models.Fieldf("spec", s, "%s", fe.Msg)
+			}
 			return nil, err
 		}
 		sp.Probe, sp.Metric = p, p.Key
-		parse = func(t string) (float64, error) { return models.ParseValue(t, p.kind()) }
+		parse = func(t string) (float64, error) { return models.ParseValue(t, p.Kind()) }
 	}
-	for _, b := range []struct {
-		text string
-		dst  *float64
-	}{{lo, &sp.Lo}, {hi, &sp.Hi}} {
-		t := strings.TrimSpace(b.text)
-		if t == "" {
-			continue
-		}
-		v, err := parse(t)
-		if err != nil {
-			return nil, keyErr(s, "bound %q: %v", t, unwrapNum(err))
-		}
-		*b.dst = v
+	lo, hi, err := models.ParseSpan(span, parse, true)
+	if err != nil {
+		return nil, models.FieldOf("spec", s, err)
 	}
-	if math.IsInf(sp.Lo, -1) && math.IsInf(sp.Hi, 1) {
-		return nil, keyErr(s, "give at least one bound")
-	}
-	if sp.Lo > sp.Hi {
-		return nil, keyErr(s, "the lower bound is above the upper")
-	}
+	sp.Lo, sp.Hi = lo, hi
 	return sp, nil
-}
-
-func unwrapNum(err error) error {
-	var ne *strconv.NumError
-	if errors.As(err, &ne) {
-		return ne.Err
-	}
-	return err
 }
 
 func (s *Spec) pass(v float64) bool { return v >= s.Lo && v <= s.Hi }
@@ -140,7 +125,7 @@ func (s *Spec) pass(v float64) bool { return v >= s.Lo && v <= s.Hi }
 type SpreadOptions struct {
 	Trials  int    // default 200
 	Seed    uint64 // trial k draws from generators seeded by SplitMix64 hashes of (Seed, k)
-	Workers int    // default GOMAXPROCS
+	Workers int    // default GOMAXPROCS (package parallel)
 	// Distribution of resistor, capacitor and pot values.
 	Distribution Distribution
 	// HFEBin is a list of measured hFE values: each trial picks distinct
@@ -159,8 +144,8 @@ type SpreadOptions struct {
 	// Retrim, if set, re-trims every trial (and the nominal run) with
 	// RetrimAdjust to this target before measuring, as a builder would on
 	// the bench; a trial that cannot reach it fails the yield.
-	Retrim       *Target
-	RetrimAdjust *Adjuster
+	Retrim       *bias.Target
+	RetrimAdjust *bias.Adjuster
 	// AllStages varies the environment stages (pickup, amplifier input)
 	// too.
 	AllStages bool
@@ -175,6 +160,48 @@ const DefaultLeakSpread = 2.0
 
 // MaxTrials bounds SpreadOptions.Trials.
 const MaxTrials = 100000
+
+// resolve fills in the defaults and refuses options out of range, as
+// *models.FieldError naming the field.
+func (o *SpreadOptions) resolve() error {
+	if o.Trials == 0 {
+		o.Trials = 200
+	}
+	if o.LeakSpread == 0 {
+		o.LeakSpread = DefaultLeakSpread
+	}
+	if o.Freq == 0 {
+		o.Freq = 1000
+	}
+	if o.Amplitude == 0 {
+		o.Amplitude = 0.1
+	}
+	switch {
+	case o.Trials < 1 || o.Trials > MaxTrials:
+		return models.Fieldf("trials", strconv.Itoa(o.Trials), "is outside 1…%d", MaxTrials)
+	case o.Workers < 0:
+		return models.Fieldf("workers", strconv.Itoa(o.Workers), "must be at least 1 (0: one per core)")
+	case o.HFEHigh > 0 && !(models.GainRange.Contains(o.HFELow) && o.HFELow <= o.HFEHigh && models.GainRange.Contains(o.HFEHigh)):
+		return models.Fieldf("hfe_range", sprintf("%g..%g", o.HFELow, o.HFEHigh), "want 0 < LO ≤ HI ≤ %g", models.GainRange.Hi)
+	case !(o.LeakSpread >= 1) || math.IsInf(o.LeakSpread, 0):
+		return models.Fieldf("leak_spread", sprintf("%g", o.LeakSpread), "must be a factor of at least 1 (1: no spread)")
+	case !(o.Freq > 0 && o.Freq < thdRate/2):
+		return models.Fieldf("frequency", models.FormatValue(o.Freq, "Hz"), "is outside (0, %s)", models.FormatValue(thdRate/2, "Hz"))
+	case !models.SignalRange.Contains(o.Amplitude):
+		return models.Fieldf("amplitude", models.FormatValue(o.Amplitude, "V"), "must be %s", models.SignalRange.Describe())
+	}
+	for _, h := range o.HFEBin {
+		if !models.GainRange.Contains(h) {
+			return models.Fieldf("hfe_bin", sprintf("%g", h), "an hFE must be %s", models.GainRange.Describe())
+		}
+	}
+	for _, sp := range o.Specs {
+		if sp.Metric == "thd_percent" && o.NoTHD {
+			return models.Fieldf("spec", sp.Text, "a THD spec needs the THD measurement (the THD render is turned off)")
+		}
+	}
+	return nil
+}
 
 // SpecResult is how many trials met one spec.
 type SpecResult struct {
@@ -195,28 +222,30 @@ type PartDraw struct {
 
 // SpreadResult is the outcome of Spread.
 type SpreadResult struct {
-	Chain        string       `json:"chain"`
-	Trials       int          `json:"trials"`
-	Seed         uint64       `json:"seed"`
-	Distribution string       `json:"distribution"`
-	HFE          string       `json:"hfe"`
-	Freq         float64      `json:"freq_hz"`
-	Amplitude    float64      `json:"thd_amplitude_v,omitempty"`
-	Failed       int          `json:"failed_trials"`
-	FirstFailure string       `json:"first_failure,omitempty"`
-	Untrimmable  int          `json:"untrimmable_trials,omitempty"`
-	Retrim       string       `json:"retrim,omitempty"`
-	Quantities   []Summary    `json:"quantities"`
-	Parts        []PartDraw   `json:"parts"`
-	Specs        []SpecResult `json:"specs,omitempty"`
-	Yield        *Number      `json:"yield,omitempty"`
-	YieldLow     *Number      `json:"yield_low,omitempty"`
-	YieldHigh    *Number      `json:"yield_high,omitempty"`
-	Messages     []string     `json:"messages,omitempty"`
+	Chain        string         `json:"chain"`
+	SupplyV      float64        `json:"supply_v"`
+	Trials       int            `json:"trials"`
+	Seed         uint64         `json:"seed"`
+	Distribution string         `json:"distribution"`
+	HFE          string         `json:"hfe"`
+	Freq         float64        `json:"freq_hz"`
+	Amplitude    float64        `json:"thd_amplitude_v,omitempty"`
+	Failed       int            `json:"failed_trials"`
+	FirstFailure string         `json:"first_failure,omitempty"`
+	Untrimmable  int            `json:"untrimmable_trials,omitempty"`
+	Retrim       string         `json:"retrim,omitempty"`
+	Quantities   []Summary      `json:"quantities"`
+	Parts        []PartDraw     `json:"parts"`
+	Specs        []SpecResult   `json:"specs,omitempty"`
+	Yield        *report.Number `json:"yield,omitempty"`
+	YieldLow     *report.Number `json:"yield_low,omitempty"`
+	YieldHigh    *report.Number `json:"yield_high,omitempty"`
+	Messages     []string       `json:"messages,omitempty"`
 
 	columns, drawCols []string
 	rows, draws       [][]float64 // per trial
-	ok                []bool
+	ok, trimmed       []bool
+	errs              []string
 }
 
 // Quantity returns the summary of the named quantity ("fuzz.Q2.vce",
@@ -283,7 +312,8 @@ func trialRand(seed uint64, k int) *rand.Rand {
 // varied is one part parameter a trial draws.
 type varied struct {
 	stage, ref, param string // param "" for the value
-	kind, rule        string
+	kind              chains.PartKind
+	rule              string
 	tol               float64
 }
 
@@ -306,16 +336,16 @@ func plan(ch *chains.Chain, opt *SpreadOptions) []varied {
 			switch p.Kind {
 			case chains.Resistor, chains.Capacitor, chains.Pot:
 				if tol, rule := Tolerance(p); tol > 0 {
-					out = append(out, varied{stage: st.ID, ref: p.Ref, kind: p.Kind.String(), rule: rule, tol: tol})
+					out = append(out, varied{stage: st.ID, ref: p.Ref, kind: p.Kind, rule: rule, tol: tol})
 				}
 			case chains.NPN, chains.PNP:
 				if len(opt.HFEBin) > 0 {
-					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "hfe", kind: p.Kind.String(), rule: "hFE bin"})
+					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "hfe", kind: p.Kind, rule: "hFE bin"})
 				} else if opt.HFEHigh > 0 {
-					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "hfe", kind: p.Kind.String(), rule: "hFE range"})
+					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "hfe", kind: p.Kind, rule: "hFE range"})
 				}
 				if p.BJTParams().Icbo > 0 && opt.LeakSpread > 1 {
-					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "icbo", kind: p.Kind.String(), rule: "leakage spread"})
+					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "icbo", kind: p.Kind, rule: "leakage spread"})
 				}
 			}
 		}
@@ -375,57 +405,35 @@ func findPart(ch *chains.Chain, stage, ref string) *chains.Part {
 }
 
 // Spread runs a Monte Carlo over the chain's part tolerances, transistor
-// gains and leakage: opt.Trials trials on opt.Workers goroutines, each a
-// clone of the chain with values drawn and set on its parts, built and
-// solved. It reports percentiles of every transistor's Vce, Ic and Vc, the
-// small-signal gain at opt.Freq and (unless NoTHD) the THD of a sine at
-// opt.Amplitude, the values drawn, and the yield against opt.Specs. The
-// result depends only on the chain, the options and the seed.
+// gains and leakage: opt.Trials trials on a bounded pool of opt.Workers
+// goroutines, each a clone of the chain with values drawn and set on its
+// parts, prepared and measured like the nominal build. It reports
+// percentiles of every transistor's Vce, Ic and Vc, the small-signal gain
+// at opt.Freq and (unless NoTHD) the THD of a sine at opt.Amplitude, the
+// values drawn, and the yield against opt.Specs. The result depends only
+// on the chain, the options and the seed.
 func Spread(ctx context.Context, ch *chains.Chain, opt SpreadOptions) (*SpreadResult, error) {
-	if opt.Trials == 0 {
-		opt.Trials = 200
+	if err := opt.resolve(); err != nil {
+		return nil, err
 	}
-	if opt.Trials < 1 || opt.Trials > MaxTrials {
-		return nil, keyErr("trials", "%d is outside 1…%d", opt.Trials, MaxTrials)
-	}
-	if opt.Workers <= 0 {
-		opt.Workers = runtime.GOMAXPROCS(0)
-	}
-	if opt.LeakSpread == 0 {
-		opt.LeakSpread = DefaultLeakSpread
-	}
-	if opt.Freq == 0 {
-		opt.Freq = 1000
-	}
-	if opt.Amplitude == 0 {
-		opt.Amplitude = 0.1
-	}
-	for _, h := range opt.HFEBin {
-		if !(h > 0) {
-			return nil, keyErr("hfe-bin", "hFE %g must be positive", h)
-		}
-	}
-	if opt.HFEHigh > 0 && !(opt.HFELow > 0 && opt.HFELow <= opt.HFEHigh) {
-		return nil, keyErr("hfe-range", "want 0 < LO ≤ HI")
-	}
-	if opt.LeakSpread < 1 {
-		return nil, keyErr("leak-spread", "%g: a factor of at least 1", opt.LeakSpread)
-	}
-	if !(opt.Freq > 0 && opt.Freq < thdRate/2) {
-		return nil, keyErr("freq", "%g Hz is outside (0, %g Hz)", opt.Freq, thdRate/2)
-	}
-	for _, sp := range opt.Specs {
-		if sp.Metric == "thd_percent" && opt.NoTHD {
-			return nil, keyErr("spec "+sp.Text, "a THD spec needs the THD measurement (drop --no-thd)")
-		}
-	}
-	// The nominal run fixes the columns.
-	nominal, err := measureTrial(ctx, ch.Clone(), &opt, nil)
+	nominal, err := measureTrial(ctx, ch.Clone(), &opt, nil) // fixes the columns
 	if err != nil {
 		return nil, err
 	}
 	pl := plan(ch, &opt)
-	res := &SpreadResult{Chain: ch.Name, Trials: opt.Trials, Seed: opt.Seed, Distribution: opt.Distribution.Describe(), Freq: opt.Freq}
+	res := newSpreadResult(ch, &opt, nominal, pl)
+	if err := res.runTrials(ctx, ch, &opt, pl, nominal.names); err != nil {
+		return nil, err
+	}
+	res.summarise(ch, pl, nominal)
+	res.judge(&opt)
+	return res, nil
+}
+
+// newSpreadResult sets up the result: its description and one row of
+// measurements and draws per trial.
+func newSpreadResult(ch *chains.Chain, opt *SpreadOptions, nominal *trialMeasure, pl []varied) *SpreadResult {
+	res := &SpreadResult{Chain: ch.Name, SupplyV: ch.Supply, Trials: opt.Trials, Seed: opt.Seed, Distribution: opt.Distribution.Describe(), Freq: opt.Freq}
 	switch {
 	case len(opt.HFEBin) > 0:
 		res.HFE = "drawn from the bin " + joinFloats(opt.HFEBin)
@@ -444,91 +452,81 @@ func Spread(ctx context.Context, ch *chains.Chain, opt SpreadOptions) (*SpreadRe
 	for _, v := range pl {
 		res.drawCols = append(res.drawCols, v.name())
 	}
-	res.rows = make([][]float64, opt.Trials)
-	res.draws = make([][]float64, opt.Trials)
-	res.ok = make([]bool, opt.Trials)
-	errs := make([]string, opt.Trials)
-	trimmed := make([]bool, opt.Trials)
+	n := opt.Trials
+	res.rows, res.draws = make([][]float64, n), make([][]float64, n)
+	res.ok, res.trimmed, res.errs = make([]bool, n), make([]bool, n), make([]string, n)
+	return res
+}
 
-	jobs := make(chan int)
-	var wg sync.WaitGroup
+// runTrials draws and measures every trial on the worker pool. A trial
+// that finds no operating point is recorded as failed, not an error; only
+// the caller's cancellation stops the run.
+func (res *SpreadResult) runTrials(ctx context.Context, ch *chains.Chain, opt *SpreadOptions, pl []varied, names []string) error {
 	var done atomic.Int64
-	for w := 0; w < min(opt.Workers, opt.Trials); w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for k := range jobs {
-				trial := ch.Clone()
-				res.draws[k] = draw(trial, pl, &opt, trialRand(opt.Seed, k))
-				m, err := measureTrial(ctx, trial, &opt, nominal.names)
-				if err != nil {
-					res.rows[k] = nanRow(len(res.columns))
-					errs[k] = err.Error()
-				} else {
-					res.rows[k], res.ok[k], trimmed[k] = m.values, true, m.trimmed
-				}
-				n := int(done.Add(1))
-				if opt.Progress != nil {
-					opt.Progress(n, opt.Trials)
-				}
-			}
-		}()
-	}
-feed:
-	for k := 0; k < opt.Trials; k++ {
-		select {
-		case jobs <- k:
-		case <-ctx.Done():
-			break feed
+	return parallel.For(ctx, opt.Trials, opt.Workers, func(ctx context.Context, k int) error {
+		trial := ch.Clone()
+		res.draws[k] = draw(trial, pl, opt, trialRand(opt.Seed, k))
+		m, err := measureTrial(ctx, trial, opt, names)
+		if err := ctx.Err(); err != nil {
+			return err
 		}
-	}
-	close(jobs)
-	wg.Wait()
-	if err := ctx.Err(); err != nil {
-		return nil, err
-	}
-	for k := range res.ok {
-		if !res.ok[k] {
+		if err != nil {
+			res.rows[k] = nanRow(len(res.columns))
+			res.errs[k] = err.Error()
+		} else {
+			res.rows[k], res.ok[k], res.trimmed[k] = m.values, true, m.trimmed
+		}
+		if opt.Progress != nil {
+			opt.Progress(int(done.Add(1)), opt.Trials)
+		}
+		return nil
+	})
+}
+
+// summarise counts the failures and writes the percentiles of every
+// measured quantity and every drawn value.
+func (res *SpreadResult) summarise(ch *chains.Chain, pl []varied, nominal *trialMeasure) {
+	for k, ok := range res.ok {
+		switch {
+		case !ok:
 			res.Failed++
 			if res.FirstFailure == "" {
-				res.FirstFailure = sprintf("trial %d: %s", k, errs[k])
+				res.FirstFailure = sprintf("trial %d: %s", k, res.errs[k])
 			}
-		} else if opt.Retrim != nil && !trimmed[k] {
+		case res.Retrim != "" && !res.trimmed[k]:
 			res.Untrimmable++
 		}
 	}
-	col := func(j int) []float64 {
-		x := make([]float64, len(res.rows))
-		for k, row := range res.rows {
+	column := func(rows [][]float64, j int) []float64 {
+		x := make([]float64, len(rows))
+		for k, row := range rows {
 			x[k] = row[j]
 		}
 		return x
 	}
 	for j, name := range res.columns {
-		res.Quantities = append(res.Quantities, summarise(name, nominal.units[j], nominal.values[j], col(j)))
+		res.Quantities = append(res.Quantities, summarise(name, nominal.units[j], nominal.values[j], column(res.rows, j)))
 	}
 	for j, v := range pl {
-		x := make([]float64, len(res.draws))
-		for k := range res.draws {
-			x[k] = res.draws[k][j]
-		}
-		nom := 0.0
 		p := findPart(ch, v.stage, v.ref)
-		unit := unitOf(v.kind)
+		nom, unit := p.Value, v.kind.Unit()
 		switch v.param {
-		case "":
-			nom = p.Value
 		case "hfe":
 			nom, unit = p.BJTParams().BetaF, ""
 		case "icbo":
 			nom, unit = p.BJTParams().Icbo, "A"
 		}
-		res.Parts = append(res.Parts, PartDraw{Kind: v.kind, Rule: v.rule, Tolerance: 100 * v.tol, Summary: summarise(v.name(), unit, nom, x)})
+		res.Parts = append(res.Parts, PartDraw{Kind: v.kind.String(), Rule: v.rule, Tolerance: 100 * v.tol, Summary: summarise(v.name(), unit, nom, column(res.draws, j))})
 	}
+}
+
+// judge counts the trials that meet each spec and all of them (the yield,
+// with its Wilson interval), and words what a reader must know.
+func (res *SpreadResult) judge(opt *SpreadOptions) {
 	if len(opt.Specs) > 0 {
 		all := 0
 		for k := range res.rows {
-			ok := res.ok[k] && (opt.Retrim == nil || trimmed[k])
+			ok := res.ok[k] && (opt.Retrim == nil || res.trimmed[k])
 			for _, sp := range opt.Specs {
 				ok = ok && sp.pass(res.rows[k][indexOf(res.columns, sp.Metric)])
 			}
@@ -553,9 +551,9 @@ feed:
 			}
 			res.Specs = append(res.Specs, sr)
 		}
-		y := Number(float64(all) / float64(opt.Trials))
+		y := report.Number(float64(all) / float64(opt.Trials))
 		lo, hi := Wilson(all, opt.Trials)
-		l, h := Number(lo), Number(hi)
+		l, h := report.Number(lo), report.Number(hi)
 		res.Yield, res.YieldLow, res.YieldHigh = &y, &l, &h
 		if all == 0 && len(res.Messages) == 0 {
 			res.Messages = append(res.Messages, "no trial meets all the specs at once")
@@ -567,7 +565,6 @@ feed:
 	if res.Untrimmable > 0 {
 		res.Messages = append(res.Messages, sprintf("%d of %d trials could not be trimmed to %s and count as failing", res.Untrimmable, opt.Trials, opt.Retrim.Text))
 	}
-	return res, nil
 }
 
 func nanRow(n int) []float64 {
@@ -578,24 +575,7 @@ func nanRow(n int) []float64 {
 	return r
 }
 
-func indexOf(s []string, x string) int {
-	for i, v := range s {
-		if v == x {
-			return i
-		}
-	}
-	return -1
-}
-
-func unitOf(kind string) string {
-	switch kind {
-	case "resistor", "pot":
-		return "Ω"
-	case "capacitor":
-		return "F"
-	}
-	return ""
-}
+func indexOf(s []string, x string) int { return slices.Index(s, x) }
 
 // FormatQuantity writes a value with its unit: engineering notation for
 // SI units, two decimals for dB and %, four figures for plain numbers.
@@ -619,85 +599,4 @@ func joinFloats(x []float64) string {
 		s[i] = strconv.FormatFloat(v, 'g', -1, 64)
 	}
 	return strings.Join(s, ",")
-}
-
-// trialMeasure is what one trial measured.
-type trialMeasure struct {
-	names, units []string
-	values       []float64
-	trimmed      bool
-}
-
-// measureTrial solves and measures one (already drawn) chain. names, when
-// given, fixes the column order (that of the nominal run).
-func measureTrial(ctx context.Context, ch *chains.Chain, opt *SpreadOptions, names []string) (*trialMeasure, error) {
-	if err := ctx.Err(); err != nil {
-		return nil, err
-	}
-	m := &trialMeasure{trimmed: true}
-	var b *Bias
-	rotation := math.NaN()
-	if opt.Retrim != nil {
-		tr, err := SolveTarget(ch, opt.Retrim, opt.RetrimAdjust)
-		if err != nil {
-			return nil, err
-		}
-		ch.Stage(opt.RetrimAdjust.Stage).Knobs[opt.RetrimAdjust.Knob] = tr.Rotation
-		b, m.trimmed, rotation = tr.Bias, tr.Reached, tr.Rotation
-	} else {
-		var err error
-		if b, err = Solve(ch); err != nil {
-			return nil, err
-		}
-	}
-	add := func(name, unit string, v float64) {
-		m.names = append(m.names, name)
-		m.units = append(m.units, unit)
-		m.values = append(m.values, v)
-	}
-	for _, t := range b.Transistors {
-		add(t.Ref+".vce", "V", t.Vce)
-		add(t.Ref+".ic", "A", t.Ic)
-		add(t.Ref+".vc", "V", t.Vc)
-	}
-	g, err := GainAt(b.Circuit, b.DC, opt.Freq)
-	if err != nil {
-		return nil, err
-	}
-	add("gain_db", "dB", g)
-	if !opt.NoTHD {
-		thd, err := THDAt(ch, b.Circuit, b.DC, opt.Freq, opt.Amplitude)
-		if err != nil {
-			return nil, err
-		}
-		add("thd_percent", "%", 100*thd)
-	}
-	if opt.Retrim != nil {
-		add(opt.RetrimAdjust.Key(), "", rotation)
-	}
-	for _, sp := range opt.Specs {
-		if sp.Probe != nil && indexOf(m.names, sp.Metric) < 0 {
-			v, err := sp.Probe.Read(b)
-			if err != nil {
-				return nil, err
-			}
-			add(sp.Metric, sp.Probe.Unit(), v)
-		}
-	}
-	if names != nil && !equalStrings(names, m.names) {
-		return nil, errors.New("trial measured different quantities from the nominal run")
-	}
-	return m, nil
-}
-
-func equalStrings(a, b []string) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i := range a {
-		if a[i] != b[i] {
-			return false
-		}
-	}
-	return true
 }

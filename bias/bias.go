@@ -1,4 +1,4 @@
-package bench
+package bias
 
 import (
 	"fmt"
@@ -6,7 +6,9 @@ import (
 
 	"renderchain/chains"
 	"renderchain/dsp/mna"
+	"renderchain/engine"
 	"renderchain/models"
+	"renderchain/report"
 )
 
 // Region is where a bipolar transistor sits on its characteristics.
@@ -88,28 +90,34 @@ type Bias struct {
 	// SupplyCurrent is the current the supply delivers, A (its magnitude),
 	// and SupplyPower the power, W.
 	SupplyCurrent, SupplyPower float64
-	Warnings                   []string
+	Warnings                   report.Warnings
 	// Method and Iterations report how the DC solve finished.
 	Method     string
 	Iterations int
 
 	Circuit *models.Circuit
 	DC      *mna.OperatingPoint
+	// Prepared is the chain this was read from (nil for Analyse of a bare
+	// circuit), ready to run signals through.
+	Prepared *engine.Prepared
 }
 
-// Solve builds the chain, finds its DC operating point and reads it.
+// Solve prepares the chain (engine.Prepare: build, DC operating point)
+// and reads its operating point.
 func Solve(ch *chains.Chain) (*Bias, error) {
-	c, err := ch.Build()
+	p, err := engine.Prepare(ch, 0)
 	if err != nil {
 		return nil, err
 	}
-	op, err := mna.SolveDC(c, mna.DCOptions{})
-	if err != nil {
-		return nil, fmt.Errorf("%s: at %s, %.1f °C: %w", ch.File, models.FormatValue(ch.Supply, "V"), ch.Temperature-models.ZeroCelsius, err)
-	}
-	b := Analyse(c, op)
-	b.Chain, b.File = ch.Name, ch.File
-	return b, nil
+	return Of(p), nil
+}
+
+// Of reads the operating point of a prepared chain.
+func Of(p *engine.Prepared) *Bias {
+	b := Analyse(p.Circuit, p.DC)
+	b.Chain, b.File = p.Chain.Name, p.Chain.File
+	b.Prepared = p
+	return b
 }
 
 // Analyse reads an operating point of circuit c: node voltages, the
@@ -144,8 +152,9 @@ func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
 				V: v, Vj: d.V[0], I: d.I[0], Power: v * d.I[0]})
 		}
 	}
+	b.Warnings = report.Warnings{}
 	for _, t := range b.Transistors {
-		b.Warnings = append(b.Warnings, transistorWarnings(t, c, vplus, b.Supply)...)
+		b.Warnings.Merge(transistorWarnings(t, c, vplus, b.Supply))
 	}
 	return b
 }

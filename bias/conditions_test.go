@@ -1,4 +1,4 @@
-package bench
+package bias
 
 import (
 	"errors"
@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/internal/testchains"
 	"renderchain/models"
 )
 
@@ -44,7 +45,7 @@ func TestGermaniumLeakageDoubles(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	temps, err := ParseTemperatures("5,15,25,35,45")
+	temps, err := models.ParseTemperatures("5,15,25,35,45")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -90,9 +91,9 @@ func TestGermaniumLeakageDoubles(t *testing.T) {
 // (Vbe from the diode equation, Rl the collector loads). Tolerance 10 %:
 // the estimate drops Vc1's own small shift.
 func TestFreshBatteryShift(t *testing.T) {
-	p := siPair()
-	ch := p.parse(t)
-	sup, err := ParseSupplies("9,9.3V", ch.Supply)
+	p := testchains.SiPair()
+	ch := p.Parse(t)
+	sup, err := models.ParseSupplies("9,9.3V", ch.Supply)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -119,23 +120,22 @@ func TestFreshBatteryShift(t *testing.T) {
 }
 
 func TestConditionLists(t *testing.T) {
-	v, err := ParseSupplies("9.6, 9V,8,7", -9)
+	v, err := models.ParseSupplies("9.6, 9V,8,7", -9)
 	if err != nil || len(v) != 4 || v[0] != -9.6 || v[1] != -9 || v[3] != -7 {
 		t.Errorf("supplies for a positive-ground build: %v %v", v, err)
 	}
-	k, err := ParseTemperatures("0,25C,298.15K")
+	k, err := models.ParseTemperatures("0,25C,298.15K")
 	if err != nil || len(k) != 3 || k[0] != models.ZeroCelsius || math.Abs(k[1]-k[2]) > 1e-9 {
 		t.Errorf("temperatures: %v %v", k, err)
 	}
 	for _, bad := range []string{"x", "", "0", "100"} {
-		_, err := ParseSupplies(bad, 9)
-		var ke *KeyError
-		if !errors.As(err, &ke) {
-			t.Errorf("supply list %q: %v, want a *KeyError", bad, err)
+		_, err := models.ParseSupplies(bad, 9)
+		if !errors.Is(err, models.ErrInvalid) {
+			t.Errorf("supply list %q: %v, want an error wrapping models.ErrInvalid", bad, err)
 		}
 	}
 	for _, bad := range []string{"-100", "200", "hot", ","} {
-		if _, err := ParseTemperatures(bad); err == nil {
+		if _, err := models.ParseTemperatures(bad); err == nil {
 			t.Errorf("temperature list %q accepted", bad)
 		}
 	}
