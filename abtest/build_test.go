@@ -14,6 +14,7 @@ import (
 
 	"renderchain/chains"
 	"renderchain/engine"
+	"renderchain/models"
 	"renderchain/render"
 )
 
@@ -385,8 +386,8 @@ func TestForceReplaces(t *testing.T) {
 	opt.Sequence = SequenceOptions{Off: true}
 	_, err := Build(context.Background(), opt)
 	var ee *ExistsError
-	if !errors.As(err, &ee) || !strings.Contains(err.Error(), "--force") {
-		t.Fatalf("second set without Force: %v, want an *ExistsError asking for --force", err)
+	if !errors.As(err, &ee) || !strings.Contains(err.Error(), "force option") {
+		t.Fatalf("second set without Force: %v, want an *ExistsError asking for the force option", err)
 	}
 	if got := entries(t, out); !slices.Equal(got, before) {
 		t.Errorf("refused set changed the folder: %q → %q", before, got)
@@ -423,7 +424,7 @@ func TestBadInput(t *testing.T) {
 	var (
 		ve *VariantError
 		le *LabelError
-		pe *ParamError
+		pe *models.FieldError
 		ee *ExistsError
 		se *ShortTakeError
 		ce *chains.SetError
@@ -444,16 +445,18 @@ func TestBadInput(t *testing.T) {
 			o.Variants = append(o.Variants, Variant{Label: "As Built", Settings: []string{"fuzz.fuzz=1"}})
 		}, &le, "As Built"},
 		{"label of the bypass", func(o *Options) { o.Variants = append(o.Variants, Variant{Label: "bypass"}) }, &le, "bypass"},
-		{"older clips without force", func(o *Options) { o.OutDir = older }, &ee, "--force"},
+		{"older clips without force", func(o *Options) { o.OutDir = older }, &ee, "force option"},
 		{"take shorter than a segment", func(o *Options) { o.Sequence.Segment = 1.0 }, &se, "1.010 s"},
 		{"segment start past the take", func(o *Options) { o.Sequence.Start = 0.6 }, &se, "dry.wav"},
 		{"take shorter than a loudness block", func(o *Options) { o.Dry = short }, &se, "400 ms"},
-		{"crossfade over half a segment", func(o *Options) { o.Sequence.Crossfade = 0.3 }, &pe, "--crossfade"},
-		{"ceiling above full scale", func(o *Options) { o.CeilingDBTP = 0.5 }, &pe, "--ceiling"},
+		// Library errors name the option's field; the command maps it to
+		// its flag.
+		{"crossfade over half a segment", func(o *Options) { o.Sequence.Crossfade = 0.3 }, &pe, `crossfade "0.3s"`},
+		{"ceiling above full scale", func(o *Options) { o.CeilingDBTP = 0.5 }, &pe, `ceiling "0.5"`},
 		{"unknown label in the order", func(o *Options) { o.Sequence.Order = []string{"as built", "nobody"} }, &pe, "nobody"},
 		{"key inside the set", func(o *Options) {
 			o.Blind, o.Seed, o.KeyPath = true, 1, filepath.Join(o.OutDir, "key.json")
-		}, &pe, "--key"},
+		}, &pe, `key "`},
 		{"missing chain file", func(o *Options) {
 			o.Variants = []Variant{{Label: "other", ChainFile: "nowhere.toml"}}
 		}, &ve, "nowhere.toml"},

@@ -1,4 +1,4 @@
-package abtest
+package analyze
 
 import (
 	"context"
@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"renderchain/dsp/wavio"
 )
 
 // sine returns frames of a stereo (both channels equal) or mono sine.
@@ -37,7 +39,7 @@ func TestAnalyzeSine(t *testing.T) {
 	p := filepath.Join(dir, "sine.wav")
 	amp := math.Pow(10, -23.0/20)
 	writeWAV(t, p, sine(amp, 1000, 48000, 20*48000, 2), 2, 48000)
-	r, err := AnalyzeFile(context.Background(), p)
+	r, err := File(context.Background(), p)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -93,7 +95,7 @@ func TestAnalyzeSilence(t *testing.T) {
 	} {
 		p := filepath.Join(dir, tc.name+".wav")
 		writeWAV(t, p, tc.x, 1, 48000)
-		r, err := AnalyzeFile(context.Background(), p)
+		r, err := File(context.Background(), p)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -116,5 +118,12 @@ func TestAnalyzeSilence(t *testing.T) {
 		if len(r.Notes) == 0 || strings.Contains(string(b), "Inf") || strings.Contains(string(b), "NaN") {
 			t.Errorf("%s: notes %q, JSON %s", tc.name, r.Notes, b)
 		}
+	}
+}
+
+func writeWAV(t testing.TB, path string, x []float64, channels, rate int) {
+	t.Helper()
+	if err := wavio.WriteFile(path, wavio.Format{SampleRate: rate, Channels: channels, BitDepth: 24}, x); err != nil {
+		t.Fatal(err)
 	}
 }
