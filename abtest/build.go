@@ -454,7 +454,7 @@ func makeJobs(o Options) ([]*job, error) {
 		}
 		settings := append([]string{}, v.Settings...)
 		j := &job{label: v.Label, ch: ch,
-			clip: Clip{Label: v.Label, Settings: settings, Plots: []Plot{}}}
+			clip: Clip{Label: v.Label, Settings: settings, Plots: []Plot{}, SupplyV: ch.Supply}}
 		if v.ChainFile != "" {
 			j.clip.ChainFile = file
 		}

@@ -100,6 +100,7 @@ type Clip struct {
 	Before       analyze.Levels `json:"before_gain"`
 	Bypass       bool           `json:"bypass"`
 	ChainFile    string         `json:"chain_file,omitempty"` // another chain file the variant starts from
+	SupplyV      float64        `json:"supply_v,omitempty"`   // the variant's supply (its chain file's polarity kept)
 	Settings     []string       `json:"settings"`             // --set overrides; empty: the chain as written
 	Solver       *report.Solver `json:"solver,omitempty"`
 	Plots        []Plot         `json:"plots"`
