@@ -3,6 +3,7 @@ package chains
 import (
 	"errors"
 	"fmt"
+	"slices"
 	"strings"
 
 	"renderchain/models"
@@ -163,6 +164,27 @@ func (w *Wiring) Resolve(c *models.Circuit, name string) (int, error) {
 		return n, nil
 	}
 	return 0, &NodeError{Name: name, Msg: "no such node (nodes: " + NodeList(c) + ")"}
+}
+
+// Names lists every node name a user can write for the circuit c built
+// from the chain, each once: in, out and v+, the circuit's own nodes (but
+// ground and the nodes inside parts), and every stage's STAGE.in and
+// STAGE.out.
+func (w *Wiring) Names(c *models.Circuit) []string {
+	names := []string{"in", "out", "v+"}
+	for i, n := range c.Nodes {
+		if i != models.Ground && !InternalNode(n) && !slices.Contains(names, n) {
+			names = append(names, n)
+		}
+	}
+	for _, e := range w.Stages {
+		for _, n := range []string{e.Stage + ".in", e.Stage + ".out"} {
+			if !slices.Contains(names, n) {
+				names = append(names, n)
+			}
+		}
+	}
+	return names
 }
 
 // NodeName is the name a report uses for node n of c: "out" for the

@@ -26,14 +26,9 @@ func TestEveryNodeResolves(t *testing.T) {
 			t.Fatal(err)
 		}
 		w := ch.Wiring()
-		names := []string{"in", "out", "v+", ""}
-		for i, n := range c.Nodes {
-			if i > 0 && !chains.InternalNode(n) {
-				names = append(names, n)
-			}
-		}
-		for _, st := range ch.Stages {
-			names = append(names, st.ID+".in", st.ID+".out")
+		names := append(w.Names(c), "")
+		if len(names) < len(ch.Stages)*2 {
+			t.Fatalf("%s: names %v", name, names)
 		}
 		for _, n := range names {
 			got, err := w.Resolve(c, n)

@@ -11,38 +11,14 @@ import (
 
 	"renderchain/chains"
 	"renderchain/dsp/resample"
+	"renderchain/internal/testchains"
 	"renderchain/models"
 )
 
-// A resistive divider: the output is exactly half the source.
-const dividerChain = `name = "divider"
-[input]
-peak = "1V"
-[output]
-load = "none"
-full_scale = "1V"
-[[stage]]
-id = "div"
-parts = [
-  { ref = "R1", kind = "resistor", value = "10k", pins = ["in", "out"] },
-  { ref = "R2", kind = "resistor", value = "10k", pins = ["out", "gnd"] },
-]
-`
-
-// An RC low-pass, 10 kΩ and 22 nF (corner 723 Hz), into no load.
-const rcChain = `name = "rc"
-[input]
-peak = "1V"
-[output]
-load = "none"
-full_scale = "1V"
-[[stage]]
-id = "rc"
-parts = [
-  { ref = "R1", kind = "resistor", value = "10k", pins = ["in", "out"] },
-  { ref = "C1", kind = "capacitor", value = "22n", pins = ["out", "gnd"] },
-]
-`
+const (
+	dividerChain = testchains.Divider
+	rcChain      = testchains.RCLowpass // 10 kΩ, 22 nF
+)
 
 func engine(t testing.TB, src string, oversample int) *Prepared {
 	t.Helper()

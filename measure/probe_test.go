@@ -23,16 +23,7 @@ func TestEveryNodeCanBeProbed(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		var probes []string
-		for i, n := range c.Nodes {
-			if i > 0 && !chains.InternalNode(n) {
-				probes = append(probes, n)
-			}
-		}
-		for _, st := range ch.Stages {
-			probes = append(probes, st.ID+".in", st.ID+".out")
-		}
-		for _, probe := range probes {
+		for _, probe := range ch.Wiring().Names(c) {
 			if _, err := SmallSignal(ch, []float64{1000}, ResponseOptions{Probe: probe}); err != nil {
 				t.Errorf("%s: response --probe %s: %v", name, probe, err)
 			}

@@ -13,22 +13,10 @@ import (
 	"renderchain/chains"
 	"renderchain/dsp/wavio"
 	"renderchain/engine"
+	"renderchain/internal/testchains"
 )
 
-// A resistive divider: the output is exactly half the source.
-const dividerChain = `name = "divider"
-[input]
-peak = "1V"
-[output]
-load = "none"
-full_scale = "1V"
-[[stage]]
-id = "div"
-parts = [
-  { ref = "R1", kind = "resistor", value = "10k", pins = ["in", "out"] },
-  { ref = "R2", kind = "resistor", value = "10k", pins = ["out", "gnd"] },
-]
-`
+const dividerChain = testchains.Divider // the output is exactly half the source
 
 func prepared(t testing.TB, src string, oversample int) *engine.Prepared {
 	t.Helper()

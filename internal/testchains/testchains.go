@@ -12,6 +12,40 @@ import (
 	"renderchain/chains"
 )
 
+// Divider is a resistive divider, 10 kΩ over 10 kΩ, behind an ideal
+// source of 1 V at full scale into no load: the output is exactly half the
+// source.
+const Divider = `name = "divider"
+[input]
+peak = "1V"
+[output]
+load = "none"
+full_scale = "1V"
+[[stage]]
+id = "div"
+parts = [
+  { ref = "R1", kind = "resistor", value = "10k", pins = ["in", "out"] },
+  { ref = "R2", kind = "resistor", value = "10k", pins = ["out", "gnd"] },
+]
+`
+
+// RCLowpass is a first-order RC low-pass, 10 kΩ and 22 nF (corner
+// 1/(2π·R·C) = 723 Hz), behind an ideal source of 1 V at full scale into
+// no load.
+const RCLowpass = `name = "rc"
+[input]
+peak = "1V"
+[output]
+load = "none"
+full_scale = "1V"
+[[stage]]
+id = "rc"
+parts = [
+  { ref = "R1", kind = "resistor", value = "10k", pins = ["in", "out"] },
+  { ref = "C1", kind = "capacitor", value = "22n", pins = ["out", "gnd"] },
+]
+`
+
 // CE is a voltage-divider-biased common-emitter stage written out
 // part by part (no template, so the test controls every value).
 type CE struct {
