@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/internal/testchains"
 )
 
 // The wiring rule, written once: every stage's ends as Build names them,
@@ -16,15 +17,8 @@ import (
 // amplifier-input stage is a shunt behind the volume pot: the wiring
 // rule), and fuzz.out is tone.in.
 func TestEveryNodeResolves(t *testing.T) {
-	for _, name := range []string{"demo", "germanium", "fuzz-only"} {
-		ch, err := chains.Example(name)
-		if err != nil {
-			t.Fatal(err)
-		}
-		c, err := ch.Build()
-		if err != nil {
-			t.Fatal(err)
-		}
+	for _, ex := range testchains.Examples(t) {
+		name, ch, c := ex.Name, ex.Chain, ex.Circuit
 		w := ch.Wiring()
 		names := append(w.Names(c), "")
 		if len(names) < len(ch.Stages)*2 {

@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/internal/testchains"
 )
 
 // Regression (probes "volume.out" and "amp.in" of the demo were refused):
@@ -14,15 +15,8 @@ import (
 // The sine runs are short (no oversampling, 10 ms records, 50 ms of
 // settling): this checks the resolution of names, not the figures.
 func TestEveryNodeCanBeProbed(t *testing.T) {
-	for _, name := range []string{"demo", "germanium", "fuzz-only"} {
-		ch, err := chains.Example(name)
-		if err != nil {
-			t.Fatal(err)
-		}
-		c, err := ch.Build()
-		if err != nil {
-			t.Fatal(err)
-		}
+	for _, ex := range testchains.Examples(t) {
+		name, ch, c := ex.Name, ex.Chain, ex.Circuit
 		for _, probe := range ch.Wiring().Names(c) {
 			if _, err := SmallSignal(ch, []float64{1000}, ResponseOptions{Probe: probe}); err != nil {
 				t.Errorf("%s: response --probe %s: %v", name, probe, err)

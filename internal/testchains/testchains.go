@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/models"
 )
 
 // Divider is a resistive divider, 10 kΩ over 10 kΩ, behind an ideal
@@ -161,4 +162,30 @@ func (p Pair) Parse(t testing.TB) *chains.Chain {
 		t.Fatal(err)
 	}
 	return ch
+}
+
+// Example is one of the example chains shipped in chains/, built.
+type Example struct {
+	Name    string
+	Chain   *chains.Chain
+	Circuit *models.Circuit
+}
+
+// Examples parses and builds every example chain (demo, germanium,
+// fuzz-only).
+func Examples(t testing.TB) []Example {
+	t.Helper()
+	var out []Example
+	for _, name := range []string{"demo", "germanium", "fuzz-only"} {
+		ch, err := chains.Example(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		c, err := ch.Build()
+		if err != nil {
+			t.Fatal(err)
+		}
+		out = append(out, Example{name, ch, c})
+	}
+	return out
 }
