@@ -462,7 +462,7 @@ func makeJobs(o Options) ([]*job, error) {
 	}
 	if !o.NoBypass {
 		if seen[strings.ToLower(o.BypassLabel)] {
-			return nil, &LabelError{Label: o.BypassLabel, Msg: "is the bypass clip's label too: rename the variant, or use --bypass-label or --no-bypass"}
+			return nil, &LabelError{Label: o.BypassLabel, Msg: "is the bypass clip's label too: rename the variant or the bypass clip, or leave the bypass out"}
 		}
 		jobs = append(jobs, &job{label: o.BypassLabel, bypass: true,
 			clip: Clip{Label: o.BypassLabel, Bypass: true, Settings: []string{}, Plots: []Plot{}}})

@@ -169,7 +169,7 @@ func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
 					l.Note += sprintf(", %s wiper–cw", models.FormatValue(hi, "Ω"))
 				}
 				if p.Adjusts != "" {
-					l.Note += sprintf("; trimmer for %s (set with bias --target)", p.Adjusts)
+					l.Note += sprintf("; trimmer for %s (set it with a bias target)", p.Adjusts)
 				}
 				l.order = l.Value
 			case chains.NPN, chains.PNP:
