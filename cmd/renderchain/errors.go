@@ -101,6 +101,10 @@ func onUsageError(_ *cli.Context, err error, _ bool) error {
 	return &usageError{msg: err.Error(), err: err}
 }
 
+// libraryUsage is the exit status the CLI library gives its own usage
+// errors (an unknown help topic); this command's is exitUsage.
+const libraryUsage = 3
+
 // exitStatus returns the exit status of a command's error: the
 // cli.ExitCoder's own, else exitFailure.
 func exitStatus(err error) int {
@@ -109,6 +113,9 @@ func exitStatus(err error) int {
 	}
 	var ec cli.ExitCoder
 	if errors.As(err, &ec) && ec.ExitCode() != 0 {
+		if ec.ExitCode() == libraryUsage {
+			return exitUsage
+		}
 		return ec.ExitCode()
 	}
 	return exitFailure
@@ -130,4 +137,27 @@ func requireFlags(names ...string) cli.BeforeFunc {
 		}
 		return nil
 	}
+}
+
+// unknownCommand is the application's action: a word that is no command is
+// a usage error; no word, or "help", shows the help ("help COMMAND" that
+// command's).
+func unknownCommand(c *cli.Context) error {
+	if c.Args().First() == "help" {
+		if topic := c.Args().Get(1); topic != "" {
+			if c.App.Command(topic) == nil {
+				return usagef("no command %q to help with", topic)
+			}
+			return cli.ShowCommandHelp(c, topic)
+		}
+		return cli.ShowAppHelp(c)
+	}
+	if c.NArg() > 0 {
+		var names []string
+		for _, cmd := range c.App.VisibleCommands() {
+			names = append(names, cmd.Name)
+		}
+		return usagef("no command %q (commands: %s)", c.Args().First(), strings.Join(names, ", "))
+	}
+	return cli.ShowAppHelp(c)
 }

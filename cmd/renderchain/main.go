@@ -38,6 +38,7 @@ func newApp() *cli.App {
 		HideHelpCommand:           true,
 		ExitErrHandler:            func(*cli.Context, error) {},
 		OnUsageError:              onUsageError,
+		Action:                    unknownCommand,
 		Commands: []*cli.Command{
 			renderCommand(),
 			demoCommand(),
