@@ -225,6 +225,14 @@ func transistorWarnings(t Transistor, c *models.Circuit, vplus int, supply float
 	return w
 }
 
+// Kind is the transistor's part kind, npn or pnp.
+func (t *Transistor) Kind() chains.PartKind {
+	if t.PNP {
+		return chains.PNP
+	}
+	return chains.NPN
+}
+
 // Transistor returns the transistor of the given ref, or nil.
 func (b *Bias) Transistor(ref string) *Transistor {
 	for i := range b.Transistors {

@@ -3,6 +3,7 @@ package bias
 import (
 	"math"
 
+	"renderchain/chains"
 	"renderchain/models"
 	"renderchain/report"
 )
@@ -33,23 +34,23 @@ type BiasReport struct {
 
 // DeviceReport is one transistor in a BiasReport.
 type DeviceReport struct {
-	Ref       string        `json:"ref"`
-	Kind      string        `json:"kind"`
-	Collector string        `json:"collector"`
-	Base      string        `json:"base"`
-	Emitter   string        `json:"emitter"`
-	VcV       float64       `json:"vc_v"`
-	VbV       float64       `json:"vb_v"`
-	VeV       float64       `json:"ve_v"`
-	VbeV      float64       `json:"vbe_v"`
-	VceV      float64       `json:"vce_v"`
-	VbcV      float64       `json:"vbc_v"`
-	IcA       float64       `json:"ic_a"`
-	IbA       float64       `json:"ib_a"`
-	IeA       float64       `json:"ie_a"`
-	PowerW    float64       `json:"power_w"`
-	Beta      report.Number `json:"beta_dc"`
-	Region    Region        `json:"region"`
+	Ref       string          `json:"ref"`
+	Kind      chains.PartKind `json:"kind"`
+	Collector string          `json:"collector"`
+	Base      string          `json:"base"`
+	Emitter   string          `json:"emitter"`
+	VcV       float64         `json:"vc_v"`
+	VbV       float64         `json:"vb_v"`
+	VeV       float64         `json:"ve_v"`
+	VbeV      float64         `json:"vbe_v"`
+	VceV      float64         `json:"vce_v"`
+	VbcV      float64         `json:"vbc_v"`
+	IcA       float64         `json:"ic_a"`
+	IbA       float64         `json:"ib_a"`
+	IeA       float64         `json:"ie_a"`
+	PowerW    float64         `json:"power_w"`
+	Beta      report.Number   `json:"beta_dc"`
+	Region    Region          `json:"region"`
 }
 
 // DiodeReport is one diode in a BiasReport.
@@ -159,15 +160,11 @@ func nonNil(s []string) []string {
 func deviceReports(b *Bias) ([]DeviceReport, []DiodeReport) {
 	devs := []DeviceReport{}
 	for _, t := range b.Transistors {
-		kind := "npn"
-		if t.PNP {
-			kind = "pnp"
-		}
 		beta := report.Number(t.Beta)
 		if t.Ib == 0 {
 			beta = report.Number(math.NaN())
 		}
-		devs = append(devs, DeviceReport{Ref: t.Ref, Kind: kind, Collector: t.Collector, Base: t.Base, Emitter: t.Emitter,
+		devs = append(devs, DeviceReport{Ref: t.Ref, Kind: t.Kind(), Collector: t.Collector, Base: t.Base, Emitter: t.Emitter,
 			VcV: t.Vc, VbV: t.Vb, VeV: t.Ve, VbeV: t.Vbe, VceV: t.Vce, VbcV: t.Vbc, IcA: t.Ic, IbA: t.Ib, IeA: t.Ie,
 			PowerW: t.Power, Beta: beta, Region: t.Region})
 	}

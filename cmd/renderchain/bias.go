@@ -180,11 +180,7 @@ func biasPrint(w io.Writer, b *bias.Bias, internal bool) {
 		tw = tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
 		fmt.Fprintln(tw, "transistor\tkind\tVc\tVb\tVe\tVbe\tVce\tIc\tIb\tP\tIc/Ib\tregion\t")
 		for _, t := range b.Transistors {
-			kind := "npn"
-			if t.PNP {
-				kind = "pnp"
-			}
-			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%.0f\t%s\t\n", t.Ref, kind, biasVolts(t.Vc), biasVolts(t.Vb), biasVolts(t.Ve),
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%.0f\t%s\t\n", t.Ref, t.Kind(), biasVolts(t.Vc), biasVolts(t.Vb), biasVolts(t.Ve),
 				biasVolts(t.Vbe), biasVolts(t.Vce), models.FormatValue(t.Ic, "A"), models.FormatValue(t.Ib, "A"),
 				models.FormatValue(t.Power, "W"), t.Beta, t.Region)
 		}
