@@ -3,6 +3,7 @@ package render
 import (
 	"context"
 	"encoding/binary"
+	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
@@ -247,5 +248,37 @@ func TestRenderMemoryIsFlat(t *testing.T) {
 	t.Logf("1 s: %d B, 8 s: %d B", short, long)
 	if long > short+64<<10 {
 		t.Errorf("an 8 s render allocates %d B, a 1 s render %d B", long, short)
+	}
+}
+
+// Silence renders (issue: "json: unsupported value: NaN" and no WAV): the
+// levels that do not exist — the dry take's peak, RMS, crest factor and
+// spectrum — are null in the report (JSON has no NaN or infinities, RFC
+// 8259 section 6), and the file is written.
+func TestSilenceRenders(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "silence.wav")
+	writeTestWAV(t, in, wavio.Format{SampleRate: 48000, Channels: 1, BitDepth: 16}, make([]float64, 9600))
+	rep, err := RenderFile(context.Background(), prepared(t, dividerChain, 1), in, filepath.Join(dir, "out.wav"), FileOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := json.Marshal(rep)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m struct {
+		Input map[string]any `json:"input"`
+	}
+	if err := json.Unmarshal(b, &m); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"peak_dbfs", "rms_dbfs", "crest_db", "centroid_hz"} {
+		if v, ok := m.Input[k]; !ok || v != nil {
+			t.Errorf("input.%s = %v, want null", k, v)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, "out.wav")); err != nil {
+		t.Error(err)
 	}
 }

@@ -35,12 +35,12 @@ type Report struct {
 // relative to digital full scale (a full-scale sine has RMS −3.01 dBFS).
 type SignalReport struct {
 	report.WAV
-	PeakDBFS       report.Level `json:"peak_dbfs"`
-	RMSDBFS        report.Level `json:"rms_dbfs"`
-	CrestDB        report.Level `json:"crest_db"`
-	ClippedSamples int64        `json:"clipped_samples"`
-	PeakVolts      float64      `json:"peak_volts"`
-	CentroidHz     float64      `json:"centroid_hz"`
+	PeakDBFS       report.Level  `json:"peak_dbfs"`
+	RMSDBFS        report.Level  `json:"rms_dbfs"`
+	CrestDB        report.Level  `json:"crest_db"`
+	ClippedSamples int64         `json:"clipped_samples"`
+	PeakVolts      float64       `json:"peak_volts"`
+	CentroidHz     report.Number `json:"centroid_hz"` // null for silence
 }
 
 // BandReport is one third-octave band (IEC 61260-1 nominal centre) of the
@@ -79,8 +79,9 @@ func (s *SignalReport) fill(l *levels, voltsFS float64) {
 	s.RMSDBFS = report.Level(report.DB(l.RMS()))
 	s.CrestDB = report.Level(l.CrestDB())
 	s.PeakVolts = l.Peak() * voltsFS
+	s.CentroidHz = report.Number(math.NaN())
 	if l.ltas != nil && l.ltas.Frames() > 0 {
-		s.CentroidHz = math.Round(l.ltas.Centroid()*10) / 10
+		s.CentroidHz = report.Number(math.Round(l.ltas.Centroid()*10) / 10)
 	}
 }
 

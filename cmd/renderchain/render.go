@@ -62,8 +62,8 @@ func renderCommand() *cli.Command {
 // printSummary writes the short human summary of a render.
 func printSummary(w io.Writer, r *render.Report) {
 	fmt.Fprintf(w, "%s → %s (%.1f s, %d ch, %d Hz; %dx oversampled)\n", r.Input.File, r.Output.File, r.Input.Seconds, r.Input.Channels, r.Input.SampleRate, r.Solver.Oversample)
-	fmt.Fprintf(w, "  dry  peak %7.2f dBFS  RMS %7.2f dBFS  crest %5.2f dB\n", float64(r.Input.PeakDBFS), float64(r.Input.RMSDBFS), float64(r.Input.CrestDB))
-	fmt.Fprintf(w, "  wet  peak %7.2f dBFS  RMS %7.2f dBFS  crest %5.2f dB  clipped %d\n", float64(r.Output.PeakDBFS), float64(r.Output.RMSDBFS), float64(r.Output.CrestDB), r.Output.ClippedSamples)
+	fmt.Fprintf(w, "  dry  peak %12s  RMS %12s  crest %8s\n", level(r.Input.PeakDBFS, 2, "dBFS"), level(r.Input.RMSDBFS, 2, "dBFS"), level(r.Input.CrestDB, 2, "dB"))
+	fmt.Fprintf(w, "  wet  peak %12s  RMS %12s  crest %8s  clipped %d\n", level(r.Output.PeakDBFS, 2, "dBFS"), level(r.Output.RMSDBFS, 2, "dBFS"), level(r.Output.CrestDB, 2, "dB"), r.Output.ClippedSamples)
 	fmt.Fprintf(w, "  solver  mean %.2f / max %d Newton iterations, %d fallbacks, %d not converged; %.1fx realtime\n",
 		r.Solver.MeanIterations, r.Solver.MaxIterations, r.Solver.Fallbacks, r.Solver.NonConverged, r.RealtimeFactor)
 	for _, warn := range r.Warnings {
