@@ -153,6 +153,12 @@ func (j *JFET) Limit(vnew, vold []float64) {
 	vnew[0], vnew[1] = s*gs, s*(gs-gd)
 }
 
+// EmissionVoltage returns n·Vt of the gate junctions, the voltage scale of
+// the device's stiffest nonlinearity (the square law's own scale, its
+// overdrive, is larger but near pinch-off): solvers use it to estimate
+// the Newton error Δ²/(2·scale) of a step Δ.
+func (j *JFET) EmissionVoltage() float64 { return j.nvt }
+
 // HasCharges reports whether gate capacitances are given.
 func (j *JFET) HasCharges() bool { return j.charged }
 
@@ -253,6 +259,12 @@ func (m *MOSFET) Limit(vnew, vold []float64) {
 	}
 	vnew[0], vnew[1] = s*gs, s*ds
 }
+
+// EmissionVoltage returns n·Vt of the body diode (Vt without one): a
+// voltage scale for solvers' Newton error estimate Δ²/(2·scale). The
+// square law's own scale is its overdrive Vgs − Vth, which only falls
+// below this within a few tens of millivolts of the threshold.
+func (m *MOSFET) EmissionVoltage() float64 { return m.nvt }
 
 // HasCharges reports whether gate capacitances are given.
 func (m *MOSFET) HasCharges() bool { return m.cgs != 0 || m.cgd != 0 }

@@ -40,6 +40,10 @@ func (l *Limiter) Current(v float64) (i, g float64) {
 // Eval implements Nonlinear.
 func (l *Limiter) Eval(v, i, jac []float64) { i[0], jac[0] = l.Current(v[0]) }
 
+// EmissionVoltage returns the knee width s, the voltage scale of the
+// curvature (solvers estimate the Newton error of a step Δ as Δ²/(2·s)).
+func (l *Limiter) EmissionVoltage() float64 { return l.s }
+
 // Limit implements Nonlinear: none is needed.
 func (l *Limiter) Limit(vnew, vold []float64) {}
 
