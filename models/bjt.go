@@ -281,13 +281,7 @@ func (p BJTParams) check() string {
 	if r := s.BC.check(); r != "" {
 		return "base–collector capacitance: " + r
 	}
-	if s.TransitTime < 0 || s.TransitTime > 1e-3 {
-		return "transit time must be between 0 and 1 ms"
-	}
-	if !checkFraction(s.ForwardFraction) {
-		return "forward-bias fraction must be 0 (default) or between 0 and 1"
-	}
-	return ""
+	return checkStorage(s.TransitTime, s.ForwardFraction)
 }
 
 var _ Charged = (*BJT)(nil)

@@ -107,6 +107,18 @@ func (d Depletion) check() string {
 // default) or inside (0, 1).
 func checkFraction(fc float64) bool { return fc == 0 || (fc > 0 && fc < 1) }
 
+// checkStorage reports what is wrong with a junction's transit time and
+// forward-bias fraction, or "".
+func checkStorage(tt, fc float64) string {
+	if tt < 0 || tt > 1e-3 {
+		return "transit time must be between 0 and 1 ms"
+	}
+	if !checkFraction(fc) {
+		return "forward-bias fraction must be 0 (default) or between 0 and 1"
+	}
+	return ""
+}
+
 // softplus returns ln(1 + e^u) and its derivative, the logistic function
 // 1/(1 + e^−u), without overflow for any u.
 func softplus(u float64) (f, df float64) {

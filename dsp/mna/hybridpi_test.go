@@ -122,14 +122,7 @@ func TestCommonEmitterMiller(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	worst := 0.0
-	for i, f := range freqs {
-		e := cRelErr(h[i][0], ref(f))
-		worst = math.Max(worst, e)
-		if e > 1e-8 {
-			t.Errorf("%g Hz: H = %v, hybrid-π %v (rel err %.2g)", f, h[i][0], ref(f), e)
-		}
-	}
+	worst := compareResponse(t, "against the hybrid-π", freqs, h, ref, 1e-8)
 	// −3 dB frequencies by bisection on |H|² = |H(100 Hz)|²/2.
 	f3 := func(hf func(float64) complex128) float64 {
 		h0 := cmplx.Abs(hf(100))

@@ -104,14 +104,7 @@ func TestOpAmpClosedLoop(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		worst := 0.0
-		for i, f := range freqs {
-			e := cRelErr(got[i][0], h(f))
-			worst = math.Max(worst, e)
-			if e > 1e-9 {
-				t.Errorf("%s at %g Hz: H = %v, closed form %v (rel err %.2g)", tc.name, f, got[i][0], h(f), e)
-			}
-		}
+		worst := compareResponse(t, tc.name, freqs, got, h, 1e-9)
 		r := cmplx.Abs(got[1][0]) / cmplx.Abs(got[0][0])
 		if math.Abs(r*r-0.5) > 1e-9 {
 			t.Errorf("%s: |H(f3dB)/H(0)|² = %.12g, want 1/2", tc.name, r*r)
