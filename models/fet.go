@@ -46,7 +46,7 @@ type MOSFETParams struct {
 // squareLaw is the Shichman–Hodges drain current of a symmetric
 // square-law channel in n polarity (H. Shichman & D. A. Hodges, "Modeling
 // and simulation of insulated-gate field-effect transistor switching
-// circuits", IEEE J. Solid-State Circuits 3(3), 1968, eqs. 1–2; with the
+// circuits", IEEE J. Solid-State Circuits 3(3), 1968, from memory; with the
 // channel-length factor 1 + λ·Vds in both regions, so that the current is
 // continuous in value and slope at Vds = Vov):
 //
