@@ -38,9 +38,19 @@
 // matrices, (G + jωC)·x = B: G the conductances (with each device's
 // Jacobian), C the capacitances (capacitors, −L in each inductor's branch
 // row, each charge-storing device's capacitance matrix), B the unit
-// signal source; a pole analysis can take it from there. AC solves it per
-// frequency and returns the complex voltage of each probe node: a
-// transfer function in V/V.
+// signal source. AC solves it per frequency and returns the complex
+// voltage of each probe node: a transfer function in V/V.
+//
+// # Poles
+//
+// Poles returns the natural frequencies of the linearised circuit, the
+// finite generalised eigenvalues of the pencil (G, C): s = −1/μ for the
+// nonzero eigenvalues μ of G⁻¹·C (G is the DC system, regular wherever a
+// DC operating point exists), up to MaxPoleHz. A pole with a positive
+// real part (Unstable) means the built circuit does not rest at its
+// operating point: it oscillates near |Im s|/2π, or latches when the
+// pole is real. The slowest stable pole tells how long the circuit takes
+// to forget its start.
 //
 // # Transient
 //
@@ -63,7 +73,8 @@
 //   - J. Vlach and K. Singhal, "Computer Methods for Circuit Analysis and
 //     Design", 2nd ed., 1994, sec. 11.3.
 //   - G. H. Golub and C. F. Van Loan, "Matrix Computations", 4th ed.,
-//     2013, alg. 3.4.1 (LU with partial pivoting).
+//     2013, alg. 3.4.1 (LU with partial pivoting), sec. 7.7 (the
+//     generalised eigenvalue problem).
 //
 // # Non-goals
 //

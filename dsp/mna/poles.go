@@ -52,57 +52,16 @@ func Unstable(s complex128) bool {
 	return real(s) > unstableMarginAbs && real(s) > unstableMarginRel*cmplx.Abs(s)
 }
 
-// Linearised returns the small-signal system of circuit c at operating
-// point op in modified nodal form, (G + s·C)·x = 0 with every source off:
-// G holds the conductances, the device Jacobians and the branch equations
-// of sources, buffers and inductors; C the capacitances and each inductor
-// as −L in its branch row. Both are row-major lay.Dim × lay.Dim.
-func Linearised(c *models.Circuit, op *OperatingPoint) (lay *Layout, g, cm []float64) {
-	lay = NewLayout(c, true)
-	sys := NewReal(lay)
-	n := lay.Dim
-	cm = make([]float64, n*n)
-	addC := func(r, col int, v float64) {
-		if r >= 0 && col >= 0 {
-			cm[r*n+col] += v
-		}
-	}
-	for i, e := range c.Elements {
-		switch e.Kind {
-		case models.ResistorKind:
-			sys.Conductance(e.Nodes[0], e.Nodes[1], 1/e.Value)
-		case models.CapacitorKind:
-			ra, rb := lay.Row(e.Nodes[0]), lay.Row(e.Nodes[1])
-			addC(ra, ra, e.Value)
-			addC(rb, rb, e.Value)
-			addC(ra, rb, -e.Value)
-			addC(rb, ra, -e.Value)
-		case models.InductorKind:
-			sys.Branch(i, e.Nodes[0], e.Nodes[1], 0, 0)
-			k := lay.BranchRow(i)
-			addC(k, k, -e.Value)
-		case models.VoltageSourceKind:
-			sys.Branch(i, e.Nodes[0], e.Nodes[1], 0, 0)
-		case models.BufferKind:
-			sys.Buffer(i, e.Nodes[0], e.Nodes[1])
-		}
-	}
-	for _, d := range op.Devices {
-		sys.Device(d.Ports, d.V, d.I, d.Jac)
-	}
-	return lay, sys.A, cm
-}
-
 // Poles finds the natural frequencies of circuit c linearised at its
 // operating point op: the finite generalised eigenvalues of the pencil
-// (G, C) of Linearised, G·x = −s·C·x. G is the DC system and is regular
+// (G, C) of Linearize, G·x = −s·C·x. G is the DC system and is regular
 // wherever a DC operating point exists, so they are s = −1/μ for the
 // nonzero eigenvalues μ of G⁻¹·C (a shift-and-invert form of the pencil;
 // Golub & Van Loan, "Matrix Computations", 4th ed., 2013, sec. 7.7), found
 // with gonum's dense nonsymmetric eigensolver (LAPACK's Hessenberg QR).
 func Poles(c *models.Circuit, op *OperatingPoint) (*Stability, error) {
-	lay, g, cm := Linearised(c, op)
-	n := lay.Dim
+	ss := Linearize(c, op)
+	n, g, cm := ss.Layout.Dim, append([]float64(nil), ss.G...), ss.C
 	lu := NewLU(n)
 	if err := lu.Factor(g); err != nil {
 		return nil, &models.CircuitError{What: "circuit", Reason: "small-signal equations are singular at the operating point"}

@@ -137,3 +137,36 @@ func poles(t *testing.T, c *models.Circuit) *mna.Stability {
 	}
 	return st
 }
+
+// TestPolesOfNegativeConductanceTank checks the parallel RLC tank with a
+// voltage-controlled current source wired as a negative conductance −gm
+// against the roots of C·s² + (1/R − gm)·s + 1/L = 0 (the characteristic
+// equation of a parallel RLC, any circuits textbook). gm below 1/R damps
+// the tank; gm above it makes the pair grow: the circuit oscillates at
+// close to 1/(2π·sqrt(LC)).
+func TestPolesOfNegativeConductanceTank(t *testing.T) {
+	const r, l, c = 10e3, 100e-3, 100e-9
+	for _, tc := range []struct {
+		gm       float64
+		unstable bool
+	}{{0.5 / r, false}, {0.9 / r, false}, {1.1 / r, true}, {2 / r, true}} {
+		n := newNet()
+		n.Sig("src", "in", 0)
+		n.R("Rin", "in", "a", 1e9)
+		n.R("R", "a", "gnd", r)
+		n.L("L", "a", "gnd", l)
+		n.C("C", "a", "gnd", c)
+		// out+ = gnd, out− = a, controlled by V(a): gm·V(a) flows from
+		// ground into node a.
+		n.add(models.ControlledCurrentKind, "G", tc.gm, "gnd", "a", "a", "gnd")
+		st := poles(t, n.c)
+		want, _ := rlcPoles(1/r+1/1e9-tc.gm, c, l)
+		// 1e-9 relative, as for the passive networks.
+		if len(st.Poles) != 1 || cmplx.Abs(st.Poles[0]-want) > 1e-9*cmplx.Abs(want) {
+			t.Fatalf("gm %.3g S: poles %v, want [%v]", tc.gm, st.Poles, want)
+		}
+		if got := len(st.Unstable) == 1; got != tc.unstable {
+			t.Fatalf("gm %.3g S: unstable %v, want %v", tc.gm, got, tc.unstable)
+		}
+	}
+}
