@@ -153,8 +153,8 @@ func TestHarmonicsFigureData(t *testing.T) {
 	}
 }
 
-// Waveforms: one panel per variant on one symmetric scale holding the
-// largest peak (0.5 + 0.2·… closed form below 0.8), time from Start.
+// Waveforms: one panel per variant on one symmetric scale that holds the
+// largest peak of any wave, time from Start in steps of 1/SampleRate.
 func TestWaveformFigureData(t *testing.T) {
 	s := waveSpec(false)
 	f, err := WaveformFigure(s)
@@ -302,3 +302,25 @@ func TestBuilderErrors(t *testing.T) {
 }
 
 func errOf(_ *Figure, err error) error { return err }
+
+// The automatic legend goes where it hides no curve: with lines along
+// the top of the axes it moves to the bottom half.
+func TestLegendAvoidsCurves(t *testing.T) {
+	x := []float64{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10}
+	top := []float64{10, 10, 9.8, 9.9, 10, 9.7, 10, 9.9, 10, 9.8, 10}
+	low := []float64{6, 6.5, 7, 7.5, 8, 8.5, 9, 9.2, 9.4, 9.6, 9.8}
+	f := &Figure{Panels: []Panel{{X: Axis{Label: "x"}, Y: Axis{Label: "y", Min: 0, Max: 10.5},
+		Lines: []Line{{Label: "top", X: x, Y: top}, {Label: "rising", X: x, Y: low, Style: 2}}}}}
+	var buf bytes.Buffer
+	d, err := f.render(&buf, PNG)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(d.legends) != 1 {
+		t.Fatalf("%d legends", len(d.legends))
+	}
+	lg, da := d.legends[0], d.data[0]
+	if lg.Max.Y > (da.Min.Y+da.Max.Y)/2 {
+		t.Errorf("legend %v is not in the bottom half of the data area %v", lg, da)
+	}
+}

@@ -236,7 +236,11 @@ func (pn *Panel) emptiestCorner(da draw.Canvas, p *plot.Plot, size vg.Point) Cor
 	order := []Corner{TopRight, TopLeft, BottomRight, BottomLeft}
 	var cost [5]float64
 	for _, c := range order {
+		// The box and a margin round it: a curve grazing its edge hides
+		// behind it as well as one running through it.
 		box := cornerBox(da.Rectangle, c, size)
+		m := vg.Points(5)
+		box.Min, box.Max = vg.Point{X: box.Min.X - m, Y: box.Min.Y - m}, vg.Point{X: box.Max.X + m, Y: box.Max.Y + m}
 		inside := func(pt vg.Point) bool {
 			return pt.X >= box.Min.X && pt.X <= box.Max.X && pt.Y >= box.Min.Y && pt.Y <= box.Max.Y
 		}
@@ -247,10 +251,16 @@ func (pn *Panel) emptiestCorner(da draw.Canvas, p *plot.Plot, size vg.Point) Cor
 					if inside(pt) {
 						cost[c]++
 					}
-					if i > 0 {
-						// The midpoint catches steep segments crossing the box.
-						prev := vg.Point{X: trX(xy[i-1].X), Y: trY(xy[i-1].Y)}
-						if inside(vg.Point{X: (pt.X + prev.X) / 2, Y: (pt.Y + prev.Y) / 2}) {
+					if i == 0 {
+						continue
+					}
+					// Points along the segment, every 3 points of length,
+					// catch a long segment crossing the box.
+					prev := vg.Point{X: trX(xy[i-1].X), Y: trY(xy[i-1].Y)}
+					n := min(int(math.Hypot(float64(pt.X-prev.X), float64(pt.Y-prev.Y))/3), 200)
+					for k := 1; k < n; k++ {
+						a := vg.Length(float64(k) / float64(n))
+						if inside(vg.Point{X: prev.X + a*(pt.X-prev.X), Y: prev.Y + a*(pt.Y-prev.Y)}) {
 							cost[c]++
 						}
 					}

@@ -30,7 +30,9 @@ const maxPNGBytes = 200 << 10
 //     radius and a pixel of antialiasing;
 //   - every style the figure uses has curve pixels inside the data
 //     areas (at least 40: a curve that vanished would fail);
-//   - the SVG is well-formed XML with an svg root.
+//   - the SVG is well-formed XML with an svg root, its embedded images
+//     labelled PNG and stretched to their boxes, its text with a
+//     sans-serif fallback.
 func TestPictures(t *testing.T) {
 	figs, err := allFigures()
 	if err != nil {
@@ -240,5 +242,14 @@ func checkSVG(t *testing.T, b []byte) {
 	}
 	if root != "svg" {
 		t.Errorf("SVG root element %q, want svg", root)
+	}
+	// Embedded rasters are declared as what they are, fill their boxes,
+	// and text falls back to a sans-serif face (see svgFixups).
+	if bytes.Contains(b, []byte("image/jpg")) ||
+		bytes.Count(b, []byte("<image ")) != bytes.Count(b, []byte(`<image preserveAspectRatio="none" `)) {
+		t.Error("an embedded image is mislabelled or keeps its aspect ratio")
+	}
+	if bytes.Contains(b, []byte("font-family:Liberation Sans;")) {
+		t.Error("text without a sans-serif fallback")
 	}
 }

@@ -273,7 +273,7 @@ func (f *Figure) render(w io.Writer, format string) (*drawn, error) {
 	// Title and key sizes decide the height.
 	titleSty := textStyle(FigureTitleSize, true)
 	titleSty.XAlign, titleSty.YAlign = draw.XCenter, draw.YTop
-	title := wrapText(f.Title, titleSty, inner)
+	title := wrapText(f.Title, titleSty, inner*0.92)
 	var titleH vg.Length
 	if title != "" {
 		titleH = titleSty.Height(title) + vg.Length(titleGapCm)*cm
@@ -344,7 +344,10 @@ func (f *Figure) render(w io.Writer, format string) (*drawn, error) {
 		enc := png.Encoder{CompressionLevel: png.BestCompression}
 		err = enc.Encode(w, quantize(raster.Image()))
 	} else {
-		_, err = svg.WriteTo(w)
+		var b bytes.Buffer
+		if _, err = svg.WriteTo(&b); err == nil {
+			_, err = w.Write(svgFixups(b.Bytes()))
+		}
 	}
 	if err != nil {
 		return nil, err
@@ -398,6 +401,21 @@ func (f *Figure) drawColumn(c draw.Canvas, col []Panel, ci int, out *drawn) erro
 		}
 	}
 	return nil
+}
+
+// svgFixups mends two things in gonum's SVG output: it adds the generic
+// sans-serif family after the figure's face, so a viewer without that
+// face uses a sans-serif one (on most systems metric-compatible with it)
+// rather than its default serif; and it labels embedded raster images
+// (heat maps, colour bars) with their true type, PNG, where gonum writes
+// "image/jpg", which strict viewers refuse to draw, and lets them fill
+// their boxes (SVG keeps an image's aspect ratio unless told not to,
+// which would shrink a heat map to a strip). Fonts are not
+// embedded: that would add about a megabyte to every file.
+func svgFixups(b []byte) []byte {
+	b = bytes.ReplaceAll(b, []byte("font-family:Liberation Sans;"), []byte("font-family:Liberation Sans,sans-serif;"))
+	b = bytes.ReplaceAll(b, []byte(`xlink:href="data:image/jpg;base64,`), []byte(`xlink:href="data:image/png;base64,`))
+	return bytes.ReplaceAll(b, []byte("<image "), []byte(`<image preserveAspectRatio="none" `))
 }
 
 // wrapText breaks s at spaces so that no line is wider than width;
