@@ -628,8 +628,20 @@ func setAxis(a *plot.Axis, spec Axis, nominal bool, length vg.Length, horizontal
 		// Round out to the minor ticks: the frame ends on a tick, with
 		// at most a minor step of room beyond the data.
 		m := c.step / float64(c.minor)
+		lo, hi := a.Min, a.Max
 		a.Min = m * math.Floor(a.Min/m+1e-9)
 		a.Max = m * math.Ceil(a.Max/m-1e-9)
+		// Data within 2 % of the frame get one more minor step, so a
+		// glyph or a thick line is not cut by the frame; zero, the
+		// natural end of many quantities, stays the end.
+		if hi > lo {
+			if a.Max-hi < 0.02*(hi-lo) && hi != 0 {
+				a.Max += m
+			}
+			if lo-a.Min < 0.02*(hi-lo) && lo != 0 {
+				a.Min -= m
+			}
+		}
 	}
 	scale := 1.0
 	if spec.Unit != "" {

@@ -163,8 +163,10 @@ func WaveformFigure(s WaveSpec) (*Figure, error) {
 		return f, nil
 	}
 	for _, w := range s.Waves {
+		// Alone in its panel a wave needs no dash pattern to be told
+		// apart (its title names it), and a dashed waveform reads badly.
 		ln := line(w)
-		ln.Label = ""
+		ln.Label, ln.Style, ln.Colour = "", 0, Colour(w.Style)
 		f.Panels = append(f.Panels, Panel{Title: w.Label, X: x, Y: y, Lines: []Line{ln}, Legend: NoLegend})
 	}
 	f.PanelHeight = 4.5

@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/dsp/loudness"
 	"renderchain/dsp/spectrum"
 	"renderchain/dsp/synth"
 	"renderchain/measure"
@@ -20,16 +21,17 @@ var out = flag.String("out", "", "folder to write the documentation's example fi
 
 const fs = 48000.0
 
-// TestDocFigures writes the documentation's figures from real renders of
-// chains/demo.toml:
+// TestWriteDocFigures is a generator, not a check: it writes the
+// documentation's figures from real renders of chains/demo.toml,
 //
-//	go test ./plotting/internal/docfigs -run DocFigures -out docs/figures
+//	go test ./plotting/internal/docfigs -run WriteDocFigures -out docs/figures
 //
-// Without -out it only builds them (the same code path, no files). Each
-// figure must come out under 150 KiB.
-func TestDocFigures(t *testing.T) {
-	if testing.Short() {
-		t.Skip("renders the demo chain; skipped with -short")
+// and stops if one comes out at 150 KiB or more. Without -out it does
+// nothing (the renders take a while on a shared machine); the figures'
+// own tests are package plotting's.
+func TestWriteDocFigures(t *testing.T) {
+	if *out == "" {
+		t.Skip("generator: give -out DIR to write the figures")
 	}
 	ch, err := chains.Load(filepath.Join("..", "..", "..", "chains", "demo.toml"))
 	if err != nil {
@@ -39,6 +41,8 @@ func TestDocFigures(t *testing.T) {
 		"response-tone": responseFigure,
 		"scope-fuzz-c2": scopeFigure,
 		"set-harmonics": harmonicsFigure,
+		"set-waveform":  waveformFigure,
+		"set-bands":     bandsFigure,
 		"spectrogram":   spectrogramFigure,
 	}
 	for name, build := range figs {
@@ -49,9 +53,6 @@ func TestDocFigures(t *testing.T) {
 				}
 			}()
 			f := build(t, ch)
-			if *out == "" {
-				return
-			}
 			path := filepath.Join(*out, name+".png")
 			if err := plotting.Save(path, f); err != nil {
 				t.Fatal(err)
@@ -142,8 +143,8 @@ func scopeFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
 
 var variants = []struct{ label, set string }{
 	{"A: as written", ""},
-	{"B: fuzz.fuzz=1", "fuzz.fuzz=1"},
-	{"C: fuzz.trim2=0.3", "fuzz.trim2=0.3"},
+	{"B: fuzz.fuzz=0.2", "fuzz.fuzz=0.2"},
+	{"C: tone.tone=1", "tone.tone=1"},
 }
 
 func variant(t *testing.T, ch *chains.Chain, set string) *chains.Chain {
@@ -155,11 +156,12 @@ func variant(t *testing.T, ch *chains.Chain, set string) *chains.Chain {
 	return must(v.Apply(ch))
 }
 
-// harmonicsFigure: each variant's harmonics at 220 Hz, 100 mV peak.
+// harmonicsFigure: each variant's harmonics at 220 Hz, 10 mV peak (a
+// light touch, where the variants differ; harder playing saturates all).
 func harmonicsFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
-	spec := plotting.HarmonicsSpec{Stimulus: "220 Hz sine, 100 mV peak at the source", Chain: ch.Name}
+	spec := plotting.HarmonicsSpec{Stimulus: "220 Hz sine, 10 mV peak at the source", Chain: ch.Name}
 	for i, v := range variants {
-		r := must(measure.Sine(context.Background(), variant(t, ch, v.set), 220, 0.1, measure.Options{}))
+		r := must(measure.Sine(context.Background(), variant(t, ch, v.set), 220, 0.01, measure.Options{}))
 		hs := plotting.HarmonicSet{Label: v.label, Style: i, THDPercent: r.THDPercent}
 		for _, h := range r.Harmonics {
 			for len(hs.DBc) < h.Order-2 {
@@ -175,8 +177,7 @@ func harmonicsFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
 // spectrogramFigure: the first four seconds of the demo phrase, dry and
 // through the chain as written.
 func spectrogramFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
-	dry := must(synth.DemoPhrase(fs, 1))
-	dry = dry[:int(4*fs)]
+	dry := phrase()[:int(4*fs)]
 	eng := must(render.Prepare(ch, 0))
 	c := must(eng.NewChannel(fs))
 	wet := run(t, c, dry)
@@ -186,4 +187,72 @@ func spectrogramFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
 		Title:  "Spectrogram — the demo phrase, dry against wet (" + ch.Name + ")",
 		Panels: []plotting.SpectrogramPanel{{Title: "dry: synthesized phrase", S: sd}, {Title: "wet: through the chain as written", S: sw}},
 	}))
+}
+
+// phrase is the first eight seconds of the demo phrase, dry (the last
+// note starts at 7.5 s).
+func phrase() []float64 {
+	dry := must(synth.DemoPhrase(fs, 1))
+	return dry[:int(8*fs)]
+}
+
+// setRenders renders the phrase through each variant and brings each to
+// −23 LUFS (ITU-R BS.1770 integrated, dsp/loudness), as the listening
+// page's clips are brought to one loudness.
+func setRenders(t *testing.T, ch *chains.Chain) [][]float64 {
+	dry := phrase()
+	var outs [][]float64
+	for _, v := range variants {
+		eng := must(render.Prepare(variant(t, ch, v.set), 0))
+		wet := run(t, must(eng.NewChannel(fs)), dry)
+		m := must(loudness.NewMeter(fs, 1))
+		m.Write(wet)
+		g := math.Pow(10, (-23-m.Integrated())/20)
+		for i := range wet {
+			wet[i] *= g
+		}
+		outs = append(outs, wet)
+	}
+	return outs
+}
+
+var setCache [][]float64
+
+func renders(t *testing.T, ch *chains.Chain) [][]float64 {
+	if setCache == nil {
+		setCache = setRenders(t, ch)
+	}
+	return setCache
+}
+
+// waveformFigure: 30 ms of the held A3 near the phrase's end (string 2,
+// fret 7 of the demo phrase: 220 Hz, so six and a half cycles), in every
+// variant, stacked.
+func waveformFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
+	const start, dur = 7.6, 0.03
+	spec := plotting.WaveSpec{Title: "One note: the held A3, 30 ms from 7.6 s, loudness-matched", Chain: ch.Name,
+		SampleRate: fs, Start: start}
+	for i, w := range renders(t, ch) {
+		spec.Waves = append(spec.Waves, plotting.Wave{Label: variants[i].label, Style: i,
+			Samples: w[int(start*fs):int((start+dur)*fs)]})
+	}
+	return must(plotting.WaveformFigure(spec))
+}
+
+// bandsFigure: the long-term third-octave spectrum of each variant.
+func bandsFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
+	spec := plotting.BandsSpec{Title: "Long-term third-octave spectrum, loudness-matched", Chain: ch.Name,
+		Reference: "dB re full-scale sine"}
+	for i, w := range renders(t, ch) {
+		l := must(spectrum.NewLTAS(fs, 0))
+		if err := l.Write(w); err != nil {
+			t.Fatal(err)
+		}
+		b := plotting.BandSet{Label: variants[i].label, Style: i}
+		for _, band := range l.Bands() {
+			b.Hz, b.DB = append(b.Hz, band.Nominal), append(b.DB, band.Level)
+		}
+		spec.Sets = append(spec.Sets, b)
+	}
+	return must(plotting.ThirdOctaveFigure(spec))
 }
