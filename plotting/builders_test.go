@@ -62,6 +62,17 @@ func TestResponseFigureData(t *testing.T) {
 			t.Errorf("curve %d: style %d label %q", i, ph.Style, f.Panels[0].Lines[i].Label)
 		}
 	}
+	// A harmonic response drawn with its own dash keeps its variant's
+	// colour and glyph (Group) instead of its style's dash.
+	spec.Curves[2].Dash = 2
+	f2, err := ResponseFigure(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ln := f2.Panels[0].Lines[2]; ln.Style != 0 || ln.Group != 3 || ln.Dash != 2 {
+		t.Errorf("dashed curve: style %d group %d dash %d, want 0, 3, 2", ln.Style, ln.Group, ln.Dash)
+	}
+	spec.Curves[2].Dash = 0
 	r := ranges(t, f)
 	top := math.Inf(-1)
 	for _, c := range spec.Curves {
@@ -294,6 +305,7 @@ func TestBuilderErrors(t *testing.T) {
 		{"wave NaN", errOf(WaveformFigure(WaveSpec{SampleRate: 48000, Waves: []Wave{{Label: "x", Samples: []float64{0, math.Inf(1)}}}})), `wave "x" sample 1`},
 		{"bands mismatched", errOf(ThirdOctaveFigure(BandsSpec{Sets: []BandSet{{Label: "x", Hz: []float64{100}}}})), `variant "x"`},
 		{"spectrogram above Nyquist", errOf(SpectrogramFigure(spg)), "Nyquist"},
+		{"size not a number", errOf(nil, (&Figure{Width: math.NaN(), Panels: []Panel{{}}}).Render(&bytes.Buffer{}, PNG)), "size NaN"},
 		{"heat rows ragged", errOf(nil, (&Figure{Panels: []Panel{{Heat: &Heat{Values: [][]float64{{1, 2}, {1}}, X1: 1, Y1: 1, Hi: 1}}}}).Render(&bytes.Buffer{}, PNG)), "row 1 has 1 cells"},
 	} {
 		if !errors.Is(tc.err, ErrFigure) || !strings.Contains(tc.err.Error(), tc.want) {
@@ -363,5 +375,15 @@ func TestSpectrogramPoolsFrames(t *testing.T) {
 	colTime := h.X0 + (float64(hotCol)+0.5)*(h.X1-h.X0)/float64(cols)
 	if math.Abs(colTime-12.3) > (h.X1-h.X0)/float64(cols)+float64(sg.FrameLen)/fs {
 		t.Errorf("burst drawn at %.3f s, want 12.3 s", colTime)
+	}
+}
+
+// A figure far too small for its labels is an error, not a panic.
+func TestTinyFigure(t *testing.T) {
+	f := testFigure()
+	f.Width, f.PanelHeight = 0.5, 0.3
+	err := f.Render(&bytes.Buffer{}, PNG)
+	if err != nil && !errors.Is(err, ErrFigure) {
+		t.Errorf("tiny figure: %v, want nil or ErrFigure", err)
 	}
 }

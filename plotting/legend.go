@@ -13,12 +13,11 @@ import (
 // entry is one legend or key entry: a line sample or a bar swatch and
 // its text.
 type entry struct {
-	label  string
-	bar    bool
-	style  int // bar swatch style
-	line   *draw.LineStyle
-	glyph  *draw.GlyphStyle
-	points int // drawable points of a line (for the legend corner)
+	label string
+	bar   bool
+	style int // bar swatch style
+	line  *draw.LineStyle
+	glyph *draw.GlyphStyle
 }
 
 // entries returns the panel's legend entries: labelled lines that have
@@ -38,7 +37,7 @@ func (pn *Panel) entries() []entry {
 			continue
 		}
 		col, dash, g, width, _ := ln.style(i)
-		e := entry{label: ln.Label, points: n}
+		e := entry{label: ln.Label}
 		if !ln.NoLine {
 			e.line = &draw.LineStyle{Color: col, Width: width, Dashes: dash}
 		}
@@ -95,6 +94,15 @@ func (e *entry) thumb(c draw.Canvas, r vg.Rectangle) {
 	if e.glyph != nil {
 		c.DrawGlyphNoClip(*e.glyph, vg.Point{X: (r.Min.X + r.Max.X) / 2, Y: y})
 	}
+}
+
+// draw draws the entry's sample and text in a row of height rh whose
+// left end is x and whose middle is y.
+func (e *entry) draw(c draw.Canvas, sty text.Style, x, y, rh vg.Length) {
+	th := vg.Rectangle{Min: vg.Point{X: x, Y: y - rh/2 + vg.Points(2.5)},
+		Max: vg.Point{X: x + vg.Points(thumbWidthPt), Y: y + rh/2 - vg.Points(2.5)}}
+	e.thumb(c, th)
+	c.FillText(sty, vg.Point{X: x + vg.Points(thumbWidthPt+4), Y: y}, e.label)
 }
 
 func legendText() text.Style {
@@ -163,9 +171,7 @@ func (k keyLayout) draw(c draw.Canvas, r vg.Rectangle) {
 		}
 		x := r.Min.X + (r.Max.X-r.Min.X-total)/2
 		for j, e := range row {
-			th := vg.Rectangle{Min: vg.Point{X: x, Y: y - rh/2 + vg.Points(2.5)}, Max: vg.Point{X: x + vg.Points(thumbWidthPt), Y: y + rh/2 - vg.Points(2.5)}}
-			e.thumb(c, th)
-			c.FillText(sty, vg.Point{X: x + vg.Points(thumbWidthPt+4), Y: y}, e.label)
+			e.draw(c, sty, x, y, rh)
 			x += k.widths[i][j] + gap
 		}
 		y -= rh
@@ -198,10 +204,7 @@ func (pn *Panel) drawLegend(da draw.Canvas, p *plot.Plot) (vg.Rectangle, bool) {
 	sty := legendText()
 	y := box.Max.Y - pad/2 - rh/2
 	for _, e := range es {
-		x := box.Min.X + pad
-		th := vg.Rectangle{Min: vg.Point{X: x, Y: y - rh/2 + vg.Points(2.5)}, Max: vg.Point{X: x + vg.Points(thumbWidthPt), Y: y + rh/2 - vg.Points(2.5)}}
-		e.thumb(da, th)
-		da.FillText(sty, vg.Point{X: x + vg.Points(thumbWidthPt+4), Y: y}, e.label)
+		e.draw(da, sty, box.Min.X+pad, y, rh)
 		y -= rh
 	}
 	return box, true

@@ -252,7 +252,14 @@ const (
 	thumbWidthPt = 24
 )
 
-func (f *Figure) render(w io.Writer, format string) (*drawn, error) {
+func (f *Figure) render(w io.Writer, format string) (d *drawn, err error) {
+	// The drawing library panics on a few impossible layouts (a figure
+	// too small for its labels, say); report them as errors.
+	defer func() {
+		if r := recover(); r != nil {
+			d, err = nil, figErr("figure", "cannot be laid out: %v", r)
+		}
+	}()
 	if len(f.Panels) == 0 {
 		return nil, figErr("figure", "it has no panels")
 	}
@@ -260,6 +267,9 @@ func (f *Figure) render(w io.Writer, format string) (*drawn, error) {
 		return nil, fmt.Errorf("%w (got format %q)", ErrFormat, format)
 	}
 	width, ph := f.Width, f.PanelHeight
+	if math.IsNaN(width) || math.IsInf(width, 0) || math.IsNaN(ph) || math.IsInf(ph, 0) || width > 500 || ph > 500 {
+		return nil, figErr("figure", "size %g × %g cm: want finite sizes up to 500 cm", width, ph)
+	}
 	if width <= 0 {
 		width = DefaultWidth
 	}
@@ -336,7 +346,6 @@ func (f *Figure) render(w io.Writer, format string) (*drawn, error) {
 			return nil, err
 		}
 	}
-	var err error
 	if raster != nil {
 		// A palette (see quantize) and best compression: figures are
 		// mostly flat colour, and the files go into pages and folders
@@ -403,12 +412,12 @@ func (f *Figure) drawColumn(c draw.Canvas, col []Panel, ci int, out *drawn) erro
 	return nil
 }
 
-// svgFixups mends two things in gonum's SVG output: it adds the generic
+// svgFixups mends three things in gonum's SVG output: it adds the generic
 // sans-serif family after the figure's face, so a viewer without that
 // face uses a sans-serif one (on most systems metric-compatible with it)
-// rather than its default serif; and it labels embedded raster images
-// (heat maps, colour bars) with their true type, PNG, where gonum writes
-// "image/jpg", which strict viewers refuse to draw, and lets them fill
+// rather than its default serif; it labels embedded raster images (heat
+// maps, colour bars) with their true type, PNG, where gonum writes
+// "image/jpg", which strict viewers refuse to draw; and it lets them fill
 // their boxes (SVG keeps an image's aspect ratio unless told not to,
 // which would shrink a heat map to a strip). Fonts are not
 // embedded: that would add about a megabyte to every file.
