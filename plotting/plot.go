@@ -554,6 +554,10 @@ func (pn *Panel) build(where string, colWidth, rowH vg.Length) (*plot.Plot, erro
 	if err := setAxis(&p.Y, pn.Y, false, rowH, false); err != nil {
 		return nil, figErr(where, "%v", err)
 	}
+	if nominal && !(pn.Y.Min < pn.Y.Max) {
+		// Bars stand on the bottom of the axes.
+		p.Y.Min = pn.Floor
+	}
 	// gonum places the room for an axis label at the arithmetic middle
 	// of the range, near one end of a logarithmic axis, which pads that
 	// end; a blank label keeps the label's room and drawLogLabels writes
