@@ -14,6 +14,23 @@
 // quantity, a doubled prefix or trailing text is a *ValueError. FormatValue
 // writes engineering notation with four significant digits.
 //
+// # Quantities
+//
+// One parser per quantity, used wherever a value enters (chain files,
+// --set keys, command-line options), each checking that the value is
+// finite and in its Range: ParseAmplitude (volts peak of a test sine;
+// V, mV, Vp, Vpp, Vrms, dBV), ParseFrequency(ies), ParseSupply(ies),
+// ParseTemperature(s) (a plain number is °C), ParseRotation (a knob, 0…1),
+// ParseTolerance (0.05 or 5 %), ParseDecibels, ParsePercent, ParseSeconds,
+// ParseGain(s) (hFE), ParseWhole and ParseSpan ("FROM..TO"). The supply
+// rule: the chain file's supply sign is the build's polarity; a supply
+// given elsewhere sets the magnitude and keeps that sign, and a written
+// sign that contradicts it is a *PolarityError saying how to write it.
+// Every error wraps ErrInvalid: *ValueError (does not parse), *RangeError
+// (outside its range or not finite), *PolarityError, and *FieldError, by
+// which libraries name the option field they refuse (never a command-line
+// flag; commands map fields to their flags).
+//
 // # Pots
 //
 // A Taper maps rotation to the fraction of the track below the wiper:

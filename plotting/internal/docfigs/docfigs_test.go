@@ -12,9 +12,9 @@ import (
 	"renderchain/dsp/loudness"
 	"renderchain/dsp/spectrum"
 	"renderchain/dsp/synth"
+	"renderchain/engine"
 	"renderchain/measure"
 	"renderchain/plotting"
-	"renderchain/render"
 )
 
 var out = flag.String("out", "", "folder to write the documentation's example figures into")
@@ -95,12 +95,12 @@ func responseFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
 }
 
 // run passes src through a channel and returns the aligned output.
-func run(t *testing.T, c *render.Channel, src []float64) []float64 {
+func run(t *testing.T, c *engine.Channel, src []float64) []float64 {
 	t.Helper()
 	out := make([]float64, 0, len(src))
-	buf := make([]float64, render.MaxBlock)
+	buf := make([]float64, engine.MaxBlock)
 	for len(src) > 0 {
-		n := min(len(src), render.MaxBlock)
+		n := min(len(src), engine.MaxBlock)
 		k := c.Process(buf, src[:n])
 		out = append(out, buf[:k]...)
 		src = src[n:]
@@ -119,9 +119,9 @@ func run(t *testing.T, c *render.Channel, src []float64) []float64 {
 // half a second, then three cycles at the source and at Q2's collector.
 func scopeFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
 	const f0, amp = 220.0, 0.1
-	eng := must(render.Prepare(ch, 0))
-	node := must(measure.ResolveNode(ch, eng.Circuit, "fuzz.c2"))
-	probe := must(eng.NewProbeChannel(fs, node))
+	eng := must(engine.Prepare(ch, 0))
+	node := must(eng.Node("fuzz.c2"))
+	probe := must(eng.Channel(fs, node))
 	n := int(0.5*fs) + int(math.Ceil(3*fs/f0))
 	src := make([]float64, n)
 	for i := range src {
@@ -178,7 +178,7 @@ func harmonicsFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
 // through the chain as written.
 func spectrogramFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
 	dry := phrase()[:int(4*fs)]
-	eng := must(render.Prepare(ch, 0))
+	eng := must(engine.Prepare(ch, 0))
 	c := must(eng.NewChannel(fs))
 	wet := run(t, c, dry)
 	sd := must(spectrum.NewSpectrogram(dry, fs, 0, 0))
@@ -203,7 +203,7 @@ func setRenders(t *testing.T, ch *chains.Chain) [][]float64 {
 	dry := phrase()
 	var outs [][]float64
 	for _, v := range variants {
-		eng := must(render.Prepare(variant(t, ch, v.set), 0))
+		eng := must(engine.Prepare(variant(t, ch, v.set), 0))
 		wet := run(t, must(eng.NewChannel(fs)), dry)
 		m := must(loudness.NewMeter(fs, 1))
 		m.Write(wet)
