@@ -139,8 +139,8 @@ func (ch *Chain) capacitorNote(node string, uses []pinUse) Finding {
 			}
 		}
 	}
-	msg := fmt.Sprintf("node %s is reached only through capacitors (%s): it gets a %s leak to ground, the minimum conductance junction-only nodes get, so it idles at 0 V (in a build the capacitors' own leakage sets it)",
-		node, strings.Join(refs, ", "), models.FormatValue(models.LeakResistance, "Ω"))
+	msg := fmt.Sprintf("node %s is reached only through capacitors (%s): it gets a %g TΩ leak to ground, the minimum conductance junction-only nodes get, so it idles at 0 V (in a build the capacitors' own leakage sets it)",
+		node, strings.Join(refs, ", "), models.LeakResistance/1e12)
 	fd := Finding{File: ch.File, Msg: msg, Severity: Note}
 	if first != nil {
 		fd.Line, fd.Where = ch.partLine(first.st, first.part), first.st.where()

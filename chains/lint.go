@@ -417,17 +417,17 @@ func (l *wiringLint) signalEnds(st *Stage) {
 	if !(slip != "" || active && st.usesPin("in")) {
 		return
 	}
-	msg := fmt.Sprintf("its parts never name %s, so the chain would pass its in straight through and the stage would not be heard", quote("out"))
+	why := "so the chain would pass its in straight through and the stage would not be heard"
 	if slip != "" {
 		for _, u := range l.stageUses(st) {
 			if u.name == slip {
-				l.add(l.ch.partFinding(Fault, st, u.part, "%s is on node %s; did you mean %s? (%s names no %s: %s)",
-					u.pinLabel(), quote(slip), quote("out"), st.where(), quote("out"), msg))
+				l.add(l.ch.partFinding(Fault, st, u.part, "%s is on node %s: did you mean %s? No part of the stage names %s, %s",
+					u.pinLabel(), quote(slip), quote("out"), quote("out"), why))
 				return
 			}
 		}
 	}
-	l.add(l.ch.stageFinding(Fault, st, "%s; name its output node %s", msg, quote("out")))
+	l.add(l.ch.stageFinding(Fault, st, "no part names %s, %s; name its output node %s", quote("out"), why, quote("out")))
 }
 
 // dangling refuses a node only one part touches: a pin connected to
@@ -451,9 +451,11 @@ func (l *wiringLint) dangling(st *Stage) {
 				cands = append(cands, n)
 			}
 		}
-		hint := didYouMean(u.name, cands)
-		if syn, ok := railSynonyms[strings.ToLower(u.name)]; ok && hint == "" {
-			hint = "; did you mean " + quote(syn) + "?"
+		hint := ""
+		if c := closest(u.name, cands); c != "" {
+			hint = " (did you mean " + quote(c) + "?)"
+		} else if syn, ok := railSynonyms[strings.ToLower(u.name)]; ok {
+			hint = " (did you mean " + quote(syn) + "?)"
 		}
 		fix := "connect it or remove the part"
 		if u.part.Kind == Pot && u.role == "cw" {
@@ -463,7 +465,7 @@ func (l *wiringLint) dangling(st *Stage) {
 		if l.ch.isNet(u.name) {
 			where = "a net no other part touches"
 		}
-		l.add(l.ch.partFinding(Fault, st, u.part, "%s is on node %s, %s%s; %s", u.pinLabel(), quote(u.name), where, hint, fix))
+		l.add(l.ch.partFinding(Fault, st, u.part, "%s is on node %s, %s%s: %s", u.pinLabel(), quote(u.name), where, hint, fix))
 	}
 }
 
@@ -486,8 +488,12 @@ func (l *wiringLint) shorts(st *Stage) {
 		if strings.HasSuffix(strings.TrimSpace(p.Text), "m") || strings.Contains(p.Text, "m") && !strings.Contains(p.Text, "M") {
 			hint = fmt.Sprintf(" (%q is in milliohms: m is milli; write %q for megohms)", p.Text, strings.Replace(p.Text, "m", "M", 1))
 		}
-		l.add(ch.partFinding(Fault, st, p, "%s straight across the supply (%s to gnd) is a short: it would draw %s from %s; check its pins and its value%s",
-			models.FormatValue(p.Value, "Ω"), quote(p.Pins["1"]+"/"+p.Pins["2"]), models.FormatValue(math.Abs(ch.Supply)/p.Value, "A"),
+		railPin := p.Pins["1"]
+		if b != "gnd" {
+			railPin = p.Pins["2"]
+		}
+		l.add(ch.partFinding(Fault, st, p, "%s from %s to gnd is a short across the supply: it would draw %s from %s; check its pins and its value%s",
+			models.FormatValue(p.Value, "Ω"), railPin, models.FormatValue(math.Abs(ch.Supply)/p.Value, "A"),
 			models.FormatValue(ch.Supply, "V"), hint))
 	}
 }
@@ -526,7 +532,7 @@ func (l *wiringLint) nets() {
 		}
 		for _, u := range l.uses {
 			if !strings.Contains(u.name, ".") && !l.shared(u.name) && closest(u.name, []string{n}) == n {
-				l.add(ch.partFinding(Fault, u.st, u.part, "%s is on node %s; did you mean the net %s? (no part names it)", u.pinLabel(), quote(u.name), quote(n)))
+				l.add(ch.partFinding(Fault, u.st, u.part, "%s is on node %s: did you mean the net %s? No part names that net", u.pinLabel(), quote(u.name), quote(n)))
 				return
 			}
 		}

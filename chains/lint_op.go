@@ -135,7 +135,7 @@ func (f *Flat) CheckOperatingPoint(op *mna.OperatingPoint) Findings {
 				top = l
 			}
 		}
-		msg := fmt.Sprintf("the supply delivers %s at idle, above the %s a pedal draws (a few mA to a few tens of mA, common practice): look for a short or a wrong value between v+ and gnd",
+		msg := fmt.Sprintf("the supply delivers %s at idle, above the %s bound for a pedal (which draws a few mA to a few tens of mA, common practice): look for a short or a wrong value between v+ and gnd",
 			models.FormatValue(amps, "A"), models.FormatValue(MaxIdleCurrent, "A"))
 		if top != nil {
 			msg += fmt.Sprintf("; the most current, %s, flows through %s.%s", models.FormatValue(top.amps, "A"), top.st.ID, top.p.Ref)

@@ -39,9 +39,9 @@ func editDistance(a, b string) int {
 // slipDistance is how far a written name may be from a known one to be
 // taken for a slip of the hand: names differing only in case always are;
 // otherwise one edit for names of up to four characters and two for longer
-// ones. The bound is this project's own: short node names ("c1", "b2")
-// are one edit from many others, so a second edit would flag deliberate
-// names.
+// ones (a one-letter name only towards a longer name that starts with it).
+// The bound is this project's own: short node names ("c1", "b2") are one
+// edit from many others, so a second edit would flag deliberate names.
 func slipDistance(written string) int {
 	if len([]rune(written)) <= 4 {
 		return 1
@@ -65,6 +65,9 @@ func closest(written string, candidates []string) string {
 	for _, c := range cs {
 		if c == written {
 			continue
+		}
+		if len([]rune(written)) == 1 && !strings.HasPrefix(strings.ToLower(c), strings.ToLower(written)) {
+			continue // one letter is one edit from every other letter: only a longer name that starts with it
 		}
 		if d := editDistance(strings.ToLower(written), strings.ToLower(c)); d < bestD {
 			best, bestD = c, d
