@@ -2,6 +2,7 @@ package chains
 
 import (
 	"errors"
+	"fmt"
 	"math/rand"
 	"strings"
 	"testing"
@@ -270,53 +271,56 @@ parts = [
 	}
 }
 
-// A complementary build, a PNP stage working on a positive supply (emitter
-// towards the rail, collector load to ground), is not flagged: the
-// polarity warning is for a transistor that disagrees with the supply
-// and does not work.
+// stageAt writes a one-transistor common-emitter stage: the emitter
+// resistor to the rail and the collector load to ground when
+// emitterToRail, else the other way round, with the base divider set for
+// that orientation.
+func stageAt(supply, kind string, emitterToRail bool) string {
+	rb1, rb2, re, rc := `"v+", "b"`, `"b", "gnd"`, `"e", "gnd"`, `"v+", "c"`
+	upper, lower := "470k", "68k"
+	if emitterToRail {
+		upper, lower = lower, upper
+		re, rc = `"v+", "e"`, `"c", "gnd"`
+	}
+	return fmt.Sprintf(`name = "one transistor"
+supply = %q
+[[stage]]
+id = "a"
+parts = [
+  { ref = "CIN", kind = "capacitor", value = "100n", pins = ["in", "b"] },
+  { ref = "RB1", kind = "resistor", value = %q, pins = [%s] },
+  { ref = "RB2", kind = "resistor", value = %q, pins = [%s] },
+  { ref = "RE",  kind = "resistor", value = "1k",  pins = [%s] },
+  { ref = "RC",  kind = "resistor", value = "10k", pins = [%s] },
+  { ref = "Q1",  kind = %q, model = "si-%s", pins = { c = "c", b = "b", e = "e" } },
+  { ref = "COUT", kind = "capacitor", value = "100n", pins = ["c", "out"] },
+]
+`, supply, upper, rb1, lower, rb2, re, rc, kind, kind)
+}
+
+// The polarity warning is for a transistor that disagrees with the
+// supply's sign and does not work: a PNP stage with its emitter towards
+// the rail of a positive supply (a complementary stage) and its mirror
+// image, an NPN so on a negative supply, work and are not flagged; an
+// NPN common-emitter stage drawn for negative ground on a negative supply
+// works in reverse, and the warning names the sign.
 func TestPolarityLeavesWorkingStagesAlone(t *testing.T) {
-	src := `name = "pnp stage on a positive rail"
-supply = "9V"
-[[stage]]
-id = "a"
-parts = [
-  { ref = "CIN", kind = "capacitor", value = "100n", pins = ["in", "b"] },
-  { ref = "RB1", kind = "resistor", value = "68k",  pins = ["v+", "b"] },
-  { ref = "RB2", kind = "resistor", value = "470k", pins = ["b", "gnd"] },
-  { ref = "RE",  kind = "resistor", value = "1k",   pins = ["v+", "e"] },
-  { ref = "RC",  kind = "resistor", value = "10k",  pins = ["c", "gnd"] },
-  { ref = "Q1",  kind = "pnp", model = "si-pnp", pins = { c = "c", b = "b", e = "e" } },
-  { ref = "COUT", kind = "capacitor", value = "100n", pins = ["c", "out"] },
-]
-`
-	if got := opFindings(t, src); len(got) != 0 {
-		t.Errorf("a working PNP stage on +9 V: %v", got)
+	cases := []struct {
+		supply, kind  string
+		emitterToRail bool
+		want          string
+	}{
+		{"9V", "pnp", true, ""},
+		{"-9V", "npn", true, ""},
+		{"9V", "npn", false, ""},
+		{"-9V", "npn", false, "this build has a positive-ground supply (-9 V) but Q1 is NPN and"},
+		{"9V", "pnp", false, "this build has a negative-ground supply (9 V) but Q1 is PNP and"},
 	}
-	// Its mirror image, an NPN with its emitter towards the rail of a
-	// negative supply, works too and is not flagged either.
-	mirror := strings.Replace(strings.Replace(src, `"pnp", model = "si-pnp"`, `"npn", model = "si-npn"`, 1), `supply = "9V"`, `supply = "-9V"`, 1)
-	if got := opFindings(t, mirror); len(got) != 0 {
-		t.Errorf("a working NPN stage on −9 V: %v", got)
-	}
-	// An NPN with its emitter to ground and its collector load to the rail
-	// of a negative supply does not work, and the warning names the sign.
-	wrong := `name = "npn common-emitter stage on a negative rail"
-supply = "-9V"
-[[stage]]
-id = "a"
-parts = [
-  { ref = "CIN", kind = "capacitor", value = "100n", pins = ["in", "b"] },
-  { ref = "RB1", kind = "resistor", value = "470k", pins = ["v+", "b"] },
-  { ref = "RB2", kind = "resistor", value = "68k",  pins = ["b", "gnd"] },
-  { ref = "RC",  kind = "resistor", value = "10k",  pins = ["v+", "c"] },
-  { ref = "RE",  kind = "resistor", value = "1k",   pins = ["e", "gnd"] },
-  { ref = "Q1",  kind = "npn", model = "si-npn", pins = { c = "c", b = "b", e = "e" } },
-  { ref = "COUT", kind = "capacitor", value = "100n", pins = ["c", "out"] },
-]
-`
-	got := opFindings(t, wrong)
-	if len(got) != 1 || !strings.Contains(got[0].Msg, "this build has a positive-ground supply (-9 V) but Q1 is NPN and") {
-		t.Errorf("an NPN common-emitter stage on −9 V: %v", got)
+	for _, c := range cases {
+		got := opFindings(t, stageAt(c.supply, c.kind, c.emitterToRail))
+		if c.want == "" && len(got) != 0 || c.want != "" && (len(got) != 1 || !strings.Contains(got[0].Msg, c.want)) {
+			t.Errorf("%s on %s (emitter to the rail: %v): %v, want %q", c.kind, c.supply, c.emitterToRail, got, c.want)
+		}
 	}
 }
 
