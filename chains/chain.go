@@ -346,7 +346,14 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 		if len(rs.Parts) > 0 {
 			return nil, fail(ch.loc.find(k, "parts"), "a stage takes either template or parts, not both")
 		}
-		st, err := expandTemplate(rs.Template, rs.ID, knobs, rs.Values, func(needles ...string) int { return ch.loc.find(k, needles...) })
+		st, err := expandTemplate(rs.Template, rs.ID, knobs, rs.Values, func(needles ...string) int {
+			if len(needles) == 1 { // a knob or part name: the line that assigns it
+				if line := ch.loc.findAssign(k, needles[0]); line > 0 {
+					return line
+				}
+			}
+			return ch.loc.find(k, needles...)
+		})
 		if err != nil {
 			var ce *Error
 			if errors.As(err, &ce) && ce.File == "" {
@@ -354,7 +361,7 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 				if ce.Line == 0 {
 					ce.Line = ch.loc.find(k, "template")
 				}
-				ce.Where = strings.TrimPrefix(where+": "+ce.Where, ": ")
+				ce.Where = strings.TrimSuffix(where+": "+ce.Where, ": ")
 			}
 			return nil, err
 		}

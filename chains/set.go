@@ -118,7 +118,8 @@ func (ch *Chain) Set(kv string) error {
 	}
 	p := st.part(parts[1])
 	if p == nil {
-		return fail("stage %s has no knob or part %q (knobs: %s; parts: %s)", st.ID, parts[1], listOr(keys(st.Knobs)), strings.Join(st.refs(), ", "))
+		return fail("stage %s has no knob or part %q (knobs: %s; parts: %s)%s", st.ID, parts[1], listOr(keys(st.Knobs)), strings.Join(st.refs(), ", "),
+			didYouMean(parts[1], append(keys(st.Knobs), st.refs()...)))
 	}
 	field := "value"
 	if len(parts) == 3 {

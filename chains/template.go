@@ -85,7 +85,7 @@ func LoadTemplate(name string) (*Template, error) {
 	file := "template " + name
 	b, err := templateFS.ReadFile(path.Join("templates", name+".toml"))
 	if err != nil {
-		return nil, &Error{Msg: fmt.Sprintf("unknown template %q (built-in: %s)", name, strings.Join(TemplateNames(), ", "))}
+		return nil, &Error{Msg: fmt.Sprintf("unknown template %q (built-in: %s)%s", name, strings.Join(TemplateNames(), ", "), didYouMean(name, TemplateNames()))}
 	}
 	var raw rawTemplate
 	md, err := toml.Decode(string(b), &raw)
@@ -150,7 +150,7 @@ func expandTemplate(name, id string, knobs map[string]float64, values map[string
 	}
 	for k, v := range knobs {
 		if _, ok := st.Knobs[k]; !ok {
-			return nil, &Error{Line: at(k), Msg: fmt.Sprintf("template %s has no knob %q (knobs: %s)", name, k, listOr(keys(st.Knobs)))}
+			return nil, &Error{Line: at(k), Msg: fmt.Sprintf("template %s has no knob %q (knobs: %s)%s", name, k, listOr(keys(st.Knobs)), didYouMean(k, keys(st.Knobs)))}
 		}
 		st.Knobs[k] = v
 	}
@@ -160,7 +160,7 @@ func expandTemplate(name, id string, knobs map[string]float64, values map[string
 	for _, ref := range keys(values) {
 		p := st.part(ref)
 		if p == nil {
-			return nil, &Error{Line: at(ref), Msg: fmt.Sprintf("template %s has no part %q (parts: %s)", name, ref, strings.Join(st.refs(), ", "))}
+			return nil, &Error{Line: at(ref), Msg: fmt.Sprintf("template %s has no part %q (parts: %s)%s", name, ref, strings.Join(st.refs(), ", "), didYouMean(ref, st.refs()))}
 		}
 		v := values[ref]
 		tbl, isTable := v.(map[string]any)
