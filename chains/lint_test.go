@@ -347,9 +347,9 @@ func opFindings(t *testing.T, src string) Findings {
 	return got
 }
 
-// FuzzParse: whatever the text, Parse and Flatten return a circuit or a
+// FuzzLint: whatever the text, Parse and Flatten (the lint) return a circuit or a
 // one-line error; they never panic.
-func FuzzParse(f *testing.F) {
+func FuzzLint(f *testing.F) {
 	for _, s := range []string{powerChain, netsChain, `name = "x"
 nets = ["vf"]
 [[stage]]
