@@ -117,7 +117,11 @@ func (e *SampleError) Error() string {
 	b.WriteString(": ")
 	b.WriteString(e.kind().Error())
 	b.WriteString(" (")
-	b.WriteString(strconv.FormatFloat(e.Value, 'g', -1, 64))
+	bits := 64
+	if float64(float32(e.Value)) == e.Value {
+		bits = 32 // the shortest form that reads back as this binary32 value: 1e+30, not 1.0000000150474662e+30
+	}
+	b.WriteString(strconv.FormatFloat(e.Value, 'g', -1, bits))
 	b.WriteString(")")
 	if e.Reason != "" {
 		b.WriteString(": ")
