@@ -70,6 +70,13 @@ func (s *Set) Commit() error {
 	}
 	var made []string // folders created for folder outputs
 	for _, o := range s.outs {
+		if o.dir && !o.merge {
+			// os.MkdirTemp made the work folder private (0700); the
+			// installed folder gets the usual 0755.
+			if err := os.Chmod(o.work, 0o755); err != nil {
+				return fail(&PathError{Role: o.role, Path: o.path, Kind: ErrCommit, Err: err})
+			}
+		}
 		for _, d := range o.mkdirs {
 			if err := os.Mkdir(d, 0o755); err == nil {
 				made = append(made, d)

@@ -36,6 +36,9 @@ func TestDirCreate(t *testing.T) {
 	if want := []string{"a"}; !equal(names(t, root), want) {
 		t.Errorf("root holds %v, want %v", names(t, root), want)
 	}
+	if st, err := os.Stat(target); err != nil || st.Mode().Perm() != 0o755 {
+		t.Errorf("installed folder: %v, %v; want mode 0755", st.Mode(), err)
+	}
 }
 
 // A folder output that exists: new files go in, same-named files are
