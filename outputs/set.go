@@ -113,9 +113,9 @@ func (s *Set) Dir(role, path string) *Dir {
 // Writability is proven by creating the temporary file (or folder) beside
 // the target, so Check has side effects: on success the set holds one
 // temporary file per regular target, registered for Cleanup; on failure it
-// holds none and cannot be used again. A character device or FIFO target is checked with access(2)
-// and opened later, on the first Write, because opening a FIFO blocks until
-// a reader comes.
+// holds none and cannot be used again. A character device or FIFO target
+// is checked with access(2) and opened later, on the first Write, because
+// opening a FIFO blocks until a reader comes.
 func (s *Set) Check() error {
 	s.mu.Lock()
 	defer s.mu.Unlock()
