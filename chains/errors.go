@@ -26,7 +26,8 @@ func (e *Error) Error() string {
 		b.WriteString(": ")
 	}
 	b.WriteString(e.Msg)
-	return b.String()
+	// One line even when a name quoted from the file holds a line break.
+	return strings.NewReplacer("\r", `\r`, "\n", `\n`).Replace(b.String())
 }
 
 // locator finds the line a key or part sits on in the source text, for
