@@ -13,7 +13,7 @@ type SetError struct {
 	Key, Msg string
 }
 
-func (e *SetError) Error() string { return fmt.Sprintf("--set %s: %s", e.Key, e.Msg) }
+func (e *SetError) Error() string { return oneLine(fmt.Sprintf("--set %s: %s", e.Key, e.Msg)) }
 
 // Set applies one override "KEY=VALUE" to the chain. Keys:
 //
