@@ -1,9 +1,14 @@
 package chains
 
 import (
+	"errors"
 	"fmt"
 	"strings"
 )
+
+// ErrChain is the sentinel every *Error wraps when it has no underlying
+// error of its own.
+var ErrChain = errors.New("chain file error")
 
 // Error is a fault in a chain file or template: the file, the line where
 // there is one, what it concerns (a key, a stage, a part) and why.
@@ -12,6 +17,15 @@ type Error struct {
 	Line  int
 	Where string
 	Msg   string
+	Err   error // the underlying error (a models value error), if any
+}
+
+// Unwrap returns the underlying error, else ErrChain.
+func (e *Error) Unwrap() error {
+	if e.Err != nil {
+		return e.Err
+	}
+	return ErrChain
 }
 
 func (e *Error) Error() string {

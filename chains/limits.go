@@ -272,13 +272,13 @@ func (ch *Chain) sizes() (stages, parts, nodes, branches, ports int) {
 				}
 			}
 			switch p.Kind {
-			case "inductor":
+			case Inductor:
 				branches++ // a branch row in AC and transient analysis
 				ports++
-			case "diode":
+			case Diode:
 				nodes++ // the junction behind a series resistance
 				ports += 2
-			case "pot", "npn", "pnp":
+			case Pot, NPN, PNP:
 				ports += 2
 			default:
 				ports++

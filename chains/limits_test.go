@@ -190,7 +190,7 @@ func resistorChain(n int) *Chain {
 		if i == n-1 {
 			b = "out"
 		}
-		st.Parts = append(st.Parts, &Part{Ref: fmt.Sprintf("R%d", i+1), Kind: "resistor", Value: 1e3,
+		st.Parts = append(st.Parts, &Part{Ref: fmt.Sprintf("R%d", i+1), Kind: Resistor, Value: 1e3,
 			Pins: map[string]string{"1": a, "2": b}})
 	}
 	return &Chain{Name: "series", File: "series.toml", Supply: 9, Temperature: models.ZeroCelsius + 25,
@@ -243,7 +243,7 @@ func TestCheckSizeBounds(t *testing.T) {
 	st := ch.Stages[0]
 	st.Knobs["k"] = 0.5
 	for i := range 1900 {
-		st.Parts = append(st.Parts, &Part{Ref: fmt.Sprint("VR", i), Kind: "pot", Value: 1e4, Knob: "k",
+		st.Parts = append(st.Parts, &Part{Ref: fmt.Sprint("VR", i), Kind: Pot, Value: 1e4, Knob: "k",
 			Pins: map[string]string{"ccw": "in", "wiper": fmt.Sprint("w", i), "cw": "gnd"}})
 	}
 	err := ch.CheckSize()

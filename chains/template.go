@@ -9,6 +9,8 @@ import (
 	"strings"
 
 	"github.com/BurntSushi/toml"
+
+	"renderchain/models"
 )
 
 //go:embed templates/*.toml
@@ -17,6 +19,9 @@ var templateFS embed.FS
 // Template is a built-in stage: a parts list with default knob settings.
 type Template struct {
 	Name, About string
+	// Environment marks a template that models what a build plugs into
+	// (environment = true in its file): the pickup, the amplifier input.
+	Environment bool
 	Knobs       []KnobInfo
 	Parts       []*Part
 	src         string
@@ -31,6 +36,7 @@ type KnobInfo struct {
 
 type rawTemplate struct {
 	About string                     `toml:"about"`
+	Env   bool                       `toml:"environment"`
 	Knobs map[string]rawTemplateKnob `toml:"knobs"`
 	Parts []map[string]any           `toml:"parts"`
 }
@@ -85,8 +91,11 @@ func LoadTemplate(name string) (*Template, error) {
 		return nil, &Error{File: file, Msg: fmt.Sprintf("unknown key %q", und[0].String())}
 	}
 	loc := newLocator(string(b))
-	t := &Template{Name: name, About: raw.About, src: string(b)}
+	t := &Template{Name: name, About: raw.About, Environment: raw.Env, src: string(b)}
 	for k, v := range raw.Knobs {
+		if err := models.RotationRange.Check(v.Default); err != nil {
+			return nil, &Error{File: file, Line: loc.find(-1, k), Msg: fmt.Sprintf("knob %s default %g is outside 0…1", k, v.Default)}
+		}
 		t.Knobs = append(t.Knobs, KnobInfo{Name: k, Default: v.Default, About: v.About})
 	}
 	sort.Slice(t.Knobs, func(i, j int) bool { return t.Knobs[i].Name < t.Knobs[j].Name })
@@ -129,7 +138,7 @@ func expandTemplate(name, id string, knobs map[string]float64, values map[string
 		}
 		return line(needles...)
 	}
-	st := &Stage{ID: id, Template: name, About: t.About, Knobs: map[string]float64{}, KnobAbout: map[string]string{}, index: -1}
+	st := &Stage{ID: id, Template: name, About: t.About, Environment: t.Environment, Knobs: map[string]float64{}, KnobAbout: map[string]string{}, index: -1}
 	for _, k := range t.Knobs {
 		st.Knobs[k.Name] = k.Default
 		st.KnobAbout[k.Name] = k.About

@@ -24,6 +24,12 @@ const (
 	Temperature // parsed to kelvin; "25C", "25°C", "298.15K"
 	Frequency
 	Length
+	Time      // seconds; "4s", "20ms"
+	Amplitude // volts peak of a test sine; ParseAmplitude
+	Rotation  // a knob's rotation, 0…1
+	Fraction  // a tolerance or share: 0.05 or "5%"
+	Decibels  // a level or gain in dB
+	Percent   // a percentage: "20%" or 20
 )
 
 var quantityNames = [...]string{
@@ -36,6 +42,12 @@ var quantityNames = [...]string{
 	Temperature:   "temperature",
 	Frequency:     "frequency",
 	Length:        "length",
+	Time:          "time",
+	Amplitude:     "amplitude",
+	Rotation:      "rotation",
+	Fraction:      "fraction",
+	Decibels:      "level in dB",
+	Percent:       "percentage",
 }
 
 func (q Quantity) String() string {
@@ -64,6 +76,7 @@ var units = map[Quantity][]string{
 	Temperature: {"°C", "C", "K"},
 	Frequency:   {"Hz"},
 	Length:      {"m"},
+	Time:        {"s"},
 }
 
 // prefixes are the SI prefixes (BIPM SI Brochure, 9th ed., table 7) that a
