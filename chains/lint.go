@@ -192,7 +192,7 @@ func (ch *Chain) partLine(st *Stage, p *Part) int {
 	return ch.loc.find(st.index, "template")
 }
 
-// finding builds a finding about a part.
+// partFinding builds a finding about a part, on the line it is written.
 func (ch *Chain) partFinding(sev Severity, st *Stage, p *Part, format string, a ...any) Finding {
 	return Finding{File: ch.File, Line: ch.partLine(st, p), Where: st.where(),
 		Msg: "part " + p.Ref + ": " + fmt.Sprintf(format, a...), Severity: sev}
