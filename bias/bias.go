@@ -91,6 +91,10 @@ type Bias struct {
 	// and SupplyPower the power, W.
 	SupplyCurrent, SupplyPower float64
 	Warnings                   report.Warnings
+	// Notes are the chain lint's notes: choices the tool made that the
+	// user should know about (a node reached only through capacitors
+	// given a leak to ground).
+	Notes []string
 	// Method and Iterations report how the DC solve finished.
 	Method     string
 	Iterations int
@@ -117,6 +121,8 @@ func Of(p *engine.Prepared) *Bias {
 	b := Analyse(p.Circuit, p.DC)
 	b.Chain, b.File = p.Chain.Name, p.Chain.File
 	b.Prepared = p
+	b.Warnings.Merge(p.Findings.Warnings())
+	b.Notes = p.Findings.Notes()
 	return b
 }
 

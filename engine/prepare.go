@@ -51,25 +51,32 @@ type Prepared struct {
 	DC         *mna.OperatingPoint
 	Wiring     *chains.Wiring
 	Oversample int
+	// Findings are the chain's lint findings: the wiring's (Flatten) and
+	// the operating point's (CheckOperatingPoint). Reports carry
+	// Findings.Warnings() among their warnings.
+	Findings chains.Findings
 }
 
-// Prepare flattens the chain, solves its operating point and resolves the
-// oversampling factor (see Oversample; 0 takes the chain's or the
-// default).
+// Prepare flattens and lints the chain (chains.Chain.Flatten), solves its
+// operating point, lints that (chains.Flat.CheckOperatingPoint) and
+// resolves the oversampling factor (see Oversample; 0 takes the chain's
+// or the default).
 func Prepare(ch *chains.Chain, oversample int) (*Prepared, error) {
 	os, err := Oversample(ch, oversample)
 	if err != nil {
 		return nil, err
 	}
-	c, err := ch.Build()
+	flat, err := ch.Flatten()
 	if err != nil {
 		return nil, err
 	}
+	c := flat.Circuit
 	op, err := mna.SolveDC(c, mna.DCOptions{})
 	if err != nil {
 		return nil, fmt.Errorf("%s: at %s, %.1f °C: %w", ch.File, models.FormatValue(ch.Supply, "V"), ch.Temperature-models.ZeroCelsius, err)
 	}
-	return &Prepared{Chain: ch, Circuit: c, DC: op, Wiring: ch.Wiring(), Oversample: os}, nil
+	flat.CheckOperatingPoint(op)
+	return &Prepared{Chain: ch, Circuit: c, DC: op, Wiring: flat.Wiring, Oversample: os, Findings: flat.Findings}, nil
 }
 
 // Node resolves a node name as a user writes it (chains.Wiring.Resolve):

@@ -199,6 +199,9 @@ func biasPrint(w io.Writer, b *bias.Bias, internal bool) {
 	for _, s := range b.Warnings {
 		fmt.Fprintln(w, "warning: "+s)
 	}
+	for _, s := range b.Notes {
+		fmt.Fprintln(w, "note: "+s)
+	}
 }
 
 func biasPrintTarget(w io.Writer, r *bias.TargetResult) {
