@@ -199,14 +199,16 @@ func resistorChain(n int) *Chain {
 
 // A chain of 100 000 parts fails fast with a clear message instead of
 // asking for an 80 GB matrix (the figure: (10^5)² unknowns × 8
-// bytes). Guard: 100 ms and no allocation to speak of (1 MiB).
+// bytes). Guard: no allocation to speak of (1 MiB); the 2 s bound only
+// catches a hang (the check is a count, microseconds on an idle machine),
+// it is not a speed claim.
 func TestCheckSizeHuge(t *testing.T) {
 	ch := resistorChain(100000)
 	var err error
 	start := time.Now()
 	bytes := allocated(func() { err = ch.CheckSize() })
-	if d := time.Since(start); d > 100*time.Millisecond || bytes > 1<<20 {
-		t.Errorf("took %v and %d bytes, want under 100 ms and 1 MiB", d, bytes)
+	if d := time.Since(start); d > 2*time.Second || bytes > 1<<20 {
+		t.Errorf("took %v and %d bytes, want under 2 s and 1 MiB", d, bytes)
 	}
 	var le *LimitError
 	if !errors.As(err, &le) || le.What != "number of parts" || le.Value != 100000 {
