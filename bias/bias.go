@@ -1,6 +1,7 @@
 package bias
 
 import (
+	"context"
 	"fmt"
 	"math"
 
@@ -112,12 +113,44 @@ func Solve(ch *chains.Chain) (*Bias, error) {
 	return Of(p), nil
 }
 
-// Of reads the operating point of a prepared chain.
+// Of reads the operating point of a prepared chain. Its warnings are the
+// prepared chain's (the build's and the stability check's) followed by the
+// operating point's.
 func Of(p *engine.Prepared) *Bias {
 	b := Analyse(p.Circuit, p.DC)
 	b.Chain, b.File = p.Chain.Name, p.Chain.File
 	b.Prepared = p
+	b.Warnings = append(append(report.Warnings{}, p.Warnings...), b.Warnings...)
 	return b
+}
+
+// Check backs a stability warning with the rendered check: for an unstable
+// chain it runs engine.Prepared.IdleWarning (a second or two of render)
+// and puts its line right after the stability warning. A stable chain, or
+// a Bias read without a prepared chain, is left as it is.
+func (b *Bias) Check(ctx context.Context) error {
+	if b.Prepared == nil {
+		return nil
+	}
+	w, err := b.Prepared.CheckedWarnings(ctx)
+	if err != nil {
+		return err
+	}
+	w.Merge(b.Warnings)
+	b.Warnings = w
+	return nil
+}
+
+// Warnings returns every warning a report on the prepared chain p
+// carries, in order: the build's, the stability check's with its rendered
+// check (Check), and the operating point's (transistors saturated, cut
+// off, reversed or near a rail).
+func Warnings(ctx context.Context, p *engine.Prepared) (report.Warnings, error) {
+	b := Of(p)
+	if err := b.Check(ctx); err != nil {
+		return nil, err
+	}
+	return b.Warnings, nil
 }
 
 // Analyse reads an operating point of circuit c: node voltages, the

@@ -278,3 +278,22 @@ func (p *Prepared) ModeNode() int {
 	}
 	return best
 }
+
+// CheckedWarnings returns the prepared chain's warnings with the rendered
+// check's line (IdleWarning) right after the stability warning when the
+// circuit is unstable; for a stable one, a copy of Warnings.
+func (p *Prepared) CheckedWarnings(ctx context.Context) (report.Warnings, error) {
+	w := report.Warnings{}
+	line, err := p.IdleWarning(ctx)
+	if err != nil {
+		return nil, err
+	}
+	pole := StabilityWarning(p.Stability)
+	for _, s := range p.Warnings {
+		w.Add("%s", s)
+		if s == pole && line != "" {
+			w.Add("%s", line)
+		}
+	}
+	return w, nil
+}

@@ -67,8 +67,8 @@ func StabilityWarning(st *mna.Stability) string {
 		if f < Motorboating {
 			name = "motorboating"
 		}
-		return fmt.Sprintf("self-oscillates near %s (%s): linearised at its idle point the circuit has a pole pair growing e-fold every %s%s; "+
-			"every figure taken with a signal includes the oscillation", formatHz(f), name, grow, more)
+		return fmt.Sprintf("self-oscillates near %s (%s): linearised at its idle point the circuit has a pole pair growing e-fold every %s%s, "+
+			"so it never rests there; every figure taken with a signal includes the oscillation", formatHz(f), name, grow, more)
 	}
 	return fmt.Sprintf("latches: the idle point found is unstable (a real pole growing e-fold every %s%s), so the circuit runs "+
 		"away from it to another state; figures taken at this idle point do not describe the build", grow, more)
@@ -110,4 +110,17 @@ func (p *Prepared) SlowestTimeConstant() float64 {
 		}
 	}
 	return slowest
+}
+
+// StabilityReport writes the pole analysis for a report; nil when it could
+// not run.
+func (p *Prepared) StabilityReport() *report.Stability {
+	if p.Stability == nil {
+		return nil
+	}
+	r := &report.Stability{Unstable: p.Unstable(), SlowestTimeConstantS: report.Number(p.SlowestTimeConstant()), Poles: []report.Pole{}}
+	for _, s := range p.Stability.Poles {
+		r.Poles = append(r.Poles, report.Pole{Hz: mna.PoleHz(s), TimeConstantS: report.Number(mna.PoleTimeConstant(s)), Unstable: mna.Unstable(s)})
+	}
+	return r
 }

@@ -5,12 +5,12 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"slices"
 	"strconv"
 	"strings"
 	"text/tabwriter"
 
 	"renderchain/models"
+	"renderchain/report"
 )
 
 // WriteTable writes a report for people: a full account of a single
@@ -117,7 +117,6 @@ func (r *Report) writeRows(w io.Writer) error {
 	}
 	head += "output dBV\tgain dB\tTHD %\tTHD+N %\tH2 dBc\tH3 dBc\teven/odd dB\tDC V\tclips\tsettled\t"
 	fmt.Fprintln(tw, head)
-	var warned []string
 	for _, m := range r.Measurements {
 		row := "  "
 		if r.hasLabels() {
@@ -137,21 +136,43 @@ func (r *Report) writeRows(w io.Writer) error {
 			fmtNum(float64(m.EvenOddDB), "%.1f"), fmtNum(m.DCV, "%.3g"),
 			yesNo(m.Clipping.Clips), yesNo(m.Settle.Settled))
 		fmt.Fprintln(tw, row)
-		for _, warn := range m.Warnings {
-			if !slices.Contains(warned, warn) {
-				warned = append(warned, warn)
-			}
-		}
 	}
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	for _, warn := range warned {
+	for _, warn := range r.combinedWarnings() { // Run has filled r.Warnings, a Report made by hand has not
 		if _, err := fmt.Fprintln(w, "  warning: "+warn); err != nil {
 			return err
 		}
 	}
 	return nil
+}
+
+// combinedWarnings joins the measurements' warnings (report.Combine),
+// naming a measurement by its condition, its settings or its sweep step.
+func (r *Report) combinedWarnings() report.Warnings {
+	labels := make([]string, len(r.Measurements))
+	lists := make([]report.Warnings, len(r.Measurements))
+	for i, m := range r.Measurements {
+		lists[i] = m.Warnings
+		var name []string
+		if m.Label != "" {
+			name = append(name, m.Label)
+		}
+		switch {
+		case r.Sweep != nil && r.Sweep.Kind == LevelSweep:
+			name = append(name, models.FormatValue(m.AmplitudeV, "V")+" in")
+		case r.Sweep != nil && len(m.Settings) > 0:
+			name = append(name, m.Settings[len(m.Settings)-1]) // the knob's step
+		case len(name) == 0 && len(m.Settings) > 0:
+			name = append(name, strings.Join(m.Settings, " "))
+		}
+		labels[i] = strings.Join(name, ", ")
+		if labels[i] == "" {
+			labels[i] = fmt.Sprintf("measurement %d", i+1)
+		}
+	}
+	return report.Combine(labels, lists)
 }
 
 func (r *Report) hasLabels() bool {
@@ -269,7 +290,15 @@ func (r *ResponseReport) WriteTable(w io.Writer) error {
 		}
 		fmt.Fprintln(tw, row)
 	}
-	return tw.Flush()
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	for _, warn := range r.Warnings {
+		if _, err := fmt.Fprintln(w, "  warning: "+warn); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // WriteCSV writes one row per curve and frequency.

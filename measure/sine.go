@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/dsp/window"
 
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/dsp/resample"
 	"renderchain/dsp/spectrum"
@@ -296,7 +297,10 @@ func sineOn(ctx context.Context, p *engine.Prepared, freq, amplitude float64, op
 	r := newResult(p, node, freq, amplitude, opt, rec, an)
 	r.Clipping = clipping(rec.Samples, an, p.Chain.FullScale, node == p.Circuit.Output)
 	r.Solver = report.SolverOf(rec.Stats)
-	r.Warnings = warnings(r, opt, passbandEdge(opt.SampleRate))
+	if r.Warnings, err = bias.Warnings(ctx, p); err != nil {
+		return nil, err
+	}
+	r.Warnings.Merge(warnings(r, opt, passbandEdge(opt.SampleRate)))
 	if opt.Spectrum {
 		r.Spectrum = amplitudeSpectrum(rec.Samples, opt.SampleRate, r.Record.Coherent)
 	}

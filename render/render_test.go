@@ -282,3 +282,33 @@ func TestSilenceRenders(t *testing.T) {
 		t.Error(err)
 	}
 }
+
+// Warnings travel: a render of the cascade with overall feedback carries
+// the stability warning and the rendered check's line in its report,
+// before the render's own (the output clips the file: the motorboat swings
+// several volts into a 1 V full scale); a render of the same cascade
+// without the feedback path carries neither.
+func TestRenderCarriesTheChainsWarnings(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "dry.wav")
+	x := make([]float64, 24000)
+	for i := range x {
+		x[i] = 0.1 * math.Sin(2*math.Pi*220*float64(i)/48000)
+	}
+	writeTestWAV(t, in, wavio.Format{SampleRate: 48000, Channels: 1, BitDepth: 24}, x)
+	for _, loop := range []bool{true, false} {
+		p, err := engine.Prepare(testchains.Cascade(t, loop), 1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rep, err := RenderFile(context.Background(), p, in, filepath.Join(dir, "wet.wav"), FileOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		all := strings.Join(rep.Warnings, "\n")
+		osc := strings.HasPrefix(all, "self-oscillates near ") && len(rep.Warnings) > 1 && strings.HasPrefix(rep.Warnings[1], "rendered check ")
+		if loop != osc || (!loop && strings.Contains(all, "oscillat")) {
+			t.Errorf("loop %v: warnings %q", loop, rep.Warnings)
+		}
+	}
+}

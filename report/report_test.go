@@ -3,6 +3,7 @@ package report
 import (
 	"encoding/json"
 	"math"
+	"slices"
 	"testing"
 
 	"renderchain/dsp/wavio"
@@ -116,6 +117,22 @@ func TestWarningsOnce(t *testing.T) {
 	w.Merge([]string{"3 samples clipped", "other"})
 	if len(w) != 2 || w[1] != "other" {
 		t.Errorf("%q", w)
+	}
+}
+
+// Combine says a warning every result shares once, and names the result
+// of one only some share.
+func TestCombine(t *testing.T) {
+	got := Combine([]string{"9V", "7V"}, []Warnings{{"shared", "Q1 cut off"}, {"Q1 saturated", "shared"}})
+	want := Warnings{"shared", "9V: Q1 cut off", "7V: Q1 saturated"}
+	if !slices.Equal(got, want) {
+		t.Errorf("%q, want %q", got, want)
+	}
+	if got := Combine([]string{"only"}, []Warnings{{"a"}}); !slices.Equal(got, Warnings{"a"}) {
+		t.Errorf("one list: %q", got)
+	}
+	if got := Combine(nil, nil); got == nil || len(got) != 0 {
+		t.Errorf("no lists: %#v", got)
 	}
 }
 

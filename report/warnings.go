@@ -35,3 +35,30 @@ func (w Warnings) MarshalJSON() ([]byte, error) {
 	}
 	return json.Marshal([]string(w))
 }
+
+// Combine joins the warnings of several results (conditions, variants,
+// curves) named by labels: a warning every list holds is said once, as it
+// is; one that only some lists hold is said once for each of them,
+// "LABEL: warning". Order: as first met, list by list. A single list
+// comes back as it is.
+func Combine(labels []string, lists []Warnings) Warnings {
+	out := Warnings{}
+	if len(lists) == 1 {
+		out.Merge(lists[0])
+		return out
+	}
+	for i, l := range lists {
+		for _, s := range l {
+			everywhere := true
+			for _, o := range lists {
+				everywhere = everywhere && slices.Contains(o, s)
+			}
+			if everywhere {
+				out.Add("%s", s)
+			} else {
+				out.Add("%s: %s", labels[i], s)
+			}
+		}
+	}
+	return out
+}

@@ -105,6 +105,9 @@ func biasAction(c *cli.Context) error {
 			return err
 		}
 	}
+	if err := b.Check(c.Context); err != nil {
+		return err
+	}
 	var rows []*bias.Bias
 	if supplies != nil || temps != nil {
 		if rows, err = bias.Sweep(ch, supplies, temps); err != nil {
