@@ -242,20 +242,33 @@ func transistorWarnings(t Transistor, c *models.Circuit, vplus int, supply float
 	case Saturated:
 		w = append(w, fmt.Sprintf("%s is saturated at idle (Vce %s): its collector cannot swing further towards the emitter", t.Ref, models.FormatValue(t.Vce, "V")))
 	case CutOff:
-		w = append(w, fmt.Sprintf("%s is cut off at idle (Ic %s): it passes no signal until driven on", t.Ref, models.FormatValue(t.Ic, "A")))
+		ic := "Ic " + models.FormatValue(t.Ic, "A")
+		if math.Abs(t.Ic) < report.CurrentFloor {
+			ic = "Ic under " + models.FormatValue(report.CurrentFloor, "A")
+		}
+		w = append(w, fmt.Sprintf("%s is cut off at idle (%s): it passes no signal until driven on", t.Ref, ic))
 	case Reverse:
 		w = append(w, fmt.Sprintf("%s works in reverse (collector and emitter swapped in effect): check its pins", t.Ref))
 	}
 	nc := c.Lookup(t.Collector)
 	if nc != models.Ground && nc != vplus {
 		if d := math.Abs(t.Vc); d < RailMargin {
-			w = append(w, fmt.Sprintf("%s's collector sits %s from ground (under %g V of room to swing)", t.Ref, models.FormatValue(d, "V"), RailMargin))
+			w = append(w, fmt.Sprintf("%s's collector sits %s ground (under %g V of room to swing)", t.Ref, distance(d), RailMargin))
 		}
 		if d := math.Abs(t.Vc - supply); d < RailMargin {
-			w = append(w, fmt.Sprintf("%s's collector sits %s from the supply rail (under %g V of room to swing)", t.Ref, models.FormatValue(d, "V"), RailMargin))
+			w = append(w, fmt.Sprintf("%s's collector sits %s the supply rail (under %g V of room to swing)", t.Ref, distance(d), RailMargin))
 		}
 	}
 	return w
+}
+
+// distance words how far a node sits from a rail: "at" below the display
+// floor of voltages, else "X V from".
+func distance(d float64) string {
+	if d < report.VoltageFloor {
+		return "at"
+	}
+	return models.FormatValue(d, "V") + " from"
 }
 
 // Kind is the transistor's part kind, npn or pnp.

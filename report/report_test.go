@@ -146,3 +146,32 @@ func TestSolverAndWAV(t *testing.T) {
 		t.Errorf("%+v", w)
 	}
 }
+
+// Display rules: a figure under its floor prints as 0 or as "< floor", a
+// negative zero never prints, a figure that does not exist prints "—".
+func TestDisplay(t *testing.T) {
+	cases := []struct{ got, want string }{
+		{Quantity(8.7e-33, PowerFloor, "W"), "0 W"},
+		{Quantity(-2.5e-15, CurrentFloor, "A"), "0 A"},
+		{Quantity(-0.0, CurrentFloor, "A"), "0 A"},
+		{Quantity(145.1e-6, CurrentFloor, "A"), "145.1 µA"},
+		{Quantity(-720.1e-6, CurrentFloor, "A"), "-720.1 µA"},
+		{Quantity(math.NaN(), CurrentFloor, "A"), "—"},
+		{Fixed(-0.3, "%.0f"), "0"},
+		{Fixed(-0.04, "%+.1f"), "+0.0"},
+		{Fixed(-0.0, "%.3f"), "0.000"},
+		{Fixed(-1.5, "%.1f"), "-1.5"},
+		{Fixed(math.Inf(1), "%.1f"), "—"},
+		{AtLeast(2.116e-14, 0.001, "%.4g"), "< 0.001"},
+		{AtLeast(55.78, 0.001, "%.4g"), "55.78"},
+		{AtLeast(-274.9, -100, "%.1f"), "< -100.0"},
+		{AtLeast(math.Inf(-1), -100, "%.1f"), "< -100.0"},
+		{AtLeast(-16.4, -100, "%.1f"), "-16.4"},
+		{AtLeast(math.NaN(), -100, "%.1f"), "—"},
+	}
+	for i, c := range cases {
+		if c.got != c.want {
+			t.Errorf("case %d: %q, want %q", i, c.got, c.want)
+		}
+	}
+}
