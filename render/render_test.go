@@ -281,6 +281,11 @@ func TestSilenceRenders(t *testing.T) {
 	if _, err := os.Stat(filepath.Join(dir, "out.wav")); err != nil {
 		t.Error(err)
 	}
+	// The models make no noise: a silent input says so (a builder checks
+	// idle noise with silence).
+	if len(rep.Warnings) == 0 || !strings.HasPrefix(rep.Warnings[0], "the input is silence: the device models make no noise") {
+		t.Errorf("warnings %q", rep.Warnings)
+	}
 }
 
 // Warnings travel: a render of the cascade with overall feedback carries
