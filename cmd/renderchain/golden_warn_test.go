@@ -311,7 +311,7 @@ func TestGoldenDeadVariant(t *testing.T) {
 	if !strings.Contains(string(page), `"flag":"`+flag+`"`) {
 		t.Error("the page has no flag")
 	}
-	if !regexp.MustCompile(`(?m)^\s+trim1 at zero\s.*<- `+flag+`$`).MatchString(errs) {
+	if !regexp.MustCompile(`(?m)^\s+trim1 at zero\s.*<- ` + flag + `$`).MatchString(errs) {
 		t.Errorf("summary:\n%s", errs)
 	}
 }
