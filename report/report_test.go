@@ -120,19 +120,38 @@ func TestWarningsOnce(t *testing.T) {
 	}
 }
 
-// Combine says a warning every result shares once, and names the result
-// of one only some share.
+// Combine says a finding every result shares once, names the result of
+// one only one has, and joins findings that differ only in their figures,
+// giving each differing figure's range.
 func TestCombine(t *testing.T) {
-	got := Combine([]string{"9V", "7V"}, []Warnings{{"shared", "Q1 cut off"}, {"Q1 saturated", "shared"}})
-	want := Warnings{"shared", "9V: Q1 cut off", "7V: Q1 saturated"}
-	if !slices.Equal(got, want) {
-		t.Errorf("%q, want %q", got, want)
+	for _, tc := range []struct {
+		labels []string
+		lists  []Warnings
+		want   Warnings
+	}{
+		{[]string{"9V", "7V"}, []Warnings{{"shared", "Q1 cut off"}, {"Q1 saturated", "shared"}},
+			Warnings{"shared", "9V: Q1 cut off", "7V: Q1 saturated"}},
+		{[]string{"a", "b", "c"}, []Warnings{{"Q1 sits 230 mV from ground"}, {"Q1 sits 620.6 mV from ground"}, {"Q1 sits -5 mV from ground"}},
+			Warnings{"Q1 sits -5 to 620.6 mV from ground (in all 3)"}},
+		{[]string{"a", "b", "c"}, []Warnings{{"fuzz.Q2 at 1.5 V, 3 s"}, {}, {"fuzz.Q2 at 2 V, 3 s"}},
+			Warnings{"fuzz.Q2 at 1.5 to 2 V, 3 s (in a and c)"}},
+		{[]string{"a", "b", "c", "d", "e"}, []Warnings{{"x"}, {"x"}, {"x"}, {"x"}, {}},
+			Warnings{"x (in a, b, c and 1 more)"}},
+		{[]string{"only"}, []Warnings{{"a"}}, Warnings{"a"}},
+		{nil, nil, Warnings{}},
+	} {
+		if got := Combine(tc.labels, tc.lists); !slices.Equal(got, tc.want) || got == nil {
+			t.Errorf("%q: %q, want %q", tc.lists, got, tc.want)
+		}
 	}
-	if got := Combine([]string{"only"}, []Warnings{{"a"}}); !slices.Equal(got, Warnings{"a"}) {
-		t.Errorf("one list: %q", got)
-	}
-	if got := Combine(nil, nil); got == nil || len(got) != 0 {
-		t.Errorf("no lists: %#v", got)
+}
+
+// A figure is a number that does not continue a name ("Q1", "H2", the
+// exponent of "3e5").
+func TestFigures(t *testing.T) {
+	text, nums := figures("fuzz.Q1's Vce -17.24 mV, H2 at 3e5 and +4")
+	if !slices.Equal(nums, []string{"-17.24", "3", "+4"}) || len(text) != len(nums)+1 {
+		t.Errorf("%q %q", text, nums)
 	}
 }
 
