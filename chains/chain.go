@@ -109,11 +109,11 @@ type rawStage struct {
 
 // Load reads and checks a chain file.
 func Load(path string) (*Chain, error) {
-	src, err := os.ReadFile(path)
+	src, err := ReadFile(path) // bounded: limits.go
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot read chain file: " + errText(err)}
+		return nil, err
 	}
-	return Parse(filepath.Base(path), string(src))
+	return Parse(filepath.Base(path), src)
 }
 
 func errText(err error) string {
@@ -126,6 +126,9 @@ func errText(err error) string {
 
 // Parse reads a chain from TOML text; name is used in messages.
 func Parse(name, src string) (*Chain, error) {
+	if err := CheckText(name, src); err != nil { // before the parser sees it: limits.go
+		return nil, err
+	}
 	var raw rawChain
 	md, err := toml.Decode(src, &raw)
 	if err != nil {

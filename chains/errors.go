@@ -40,8 +40,12 @@ func (e *Error) Error() string {
 		b.WriteString(": ")
 	}
 	b.WriteString(e.Msg)
-	return b.String()
+	return oneLine(b.String())
 }
+
+// oneLine keeps a message on one line even when a name quoted from the
+// file or the command line holds a line break.
+func oneLine(s string) string { return strings.NewReplacer("\r", `\r`, "\n", `\n`).Replace(s) }
 
 // locator finds the line a key or part sits on in the source text, for
 // error messages. TOML decoding keeps no positions for semantic errors, so

@@ -16,7 +16,7 @@ type SetError struct {
 	Err      error // the underlying value error, if any
 }
 
-func (e *SetError) Error() string { return fmt.Sprintf("override %s: %s", e.Key, e.Msg) }
+func (e *SetError) Error() string { return oneLine(fmt.Sprintf("override %s: %s", e.Key, e.Msg)) }
 
 // Unwrap returns the underlying error, else ErrChain.
 func (e *SetError) Unwrap() error {
