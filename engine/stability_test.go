@@ -12,9 +12,12 @@ import (
 	"renderchain/report"
 )
 
-func prepared(t testing.TB, ch *chains.Chain) *Prepared {
+// prepared prepares ch at the chain's own oversampling.
+func prepared(t testing.TB, ch *chains.Chain) *Prepared { return preparedAt(t, ch, 0) }
+
+func preparedAt(t testing.TB, ch *chains.Chain, oversample int) *Prepared {
 	t.Helper()
-	p, err := Prepare(ch, 0)
+	p, err := Prepare(ch, oversample)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -61,15 +64,6 @@ func TestStabilityWarning(t *testing.T) {
 	if want := "self-oscillates near " + formatHz(f) + " (motorboating)"; !strings.HasPrefix(p.Warnings[0], want) || f >= Motorboating {
 		t.Errorf("%q; want it to start %q", p.Warnings[0], want)
 	}
-}
-
-func engine2(t testing.TB, ch *chains.Chain) *Prepared {
-	t.Helper()
-	p, err := Prepare(ch, 2)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return p
 }
 
 func parse(t testing.TB, src string) *chains.Chain {
@@ -176,12 +170,9 @@ func TestIdleCheck(t *testing.T) {
 	}
 	// Twice oversampled: the check's outcome does not hang on the rate, and
 	// the four renders take half the time.
-	stable := []*Prepared{}
-	for _, ch := range []*chains.Chain{testchains.Cascade(t, false)} {
-		stable = append(stable, engine2(t, ch))
-	}
+	stable := []*Prepared{preparedAt(t, testchains.Cascade(t, false), 2)}
 	for _, ex := range testchains.Examples(t) {
-		stable = append(stable, engine2(t, ex.Chain))
+		stable = append(stable, preparedAt(t, ex.Chain, 2))
 	}
 	for _, p := range stable {
 		r, err := p.Idle(ctx, IdleOptions{})

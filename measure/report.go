@@ -96,12 +96,7 @@ func (m *Result) writeDetail(w io.Writer, chain string) error {
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	for _, warn := range m.Warnings {
-		if _, err := fmt.Fprintln(w, "  warning: "+warn); err != nil {
-			return err
-		}
-	}
-	return nil
+	return writeWarnings(w, m.Warnings)
 }
 
 func (r *Report) writeRows(w io.Writer) error {
@@ -161,12 +156,7 @@ func (r *Report) writeRows(w io.Writer) error {
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	for _, warn := range r.combinedWarnings() { // Run has filled r.Warnings, a Report made by hand has not
-		if _, err := fmt.Fprintln(w, "  warning: "+warn); err != nil {
-			return err
-		}
-	}
-	return nil
+	return writeWarnings(w, r.combinedWarnings())
 }
 
 // combinedWarnings joins the measurements' warnings (report.Combine),
@@ -227,6 +217,17 @@ func (m *Result) fileClips(long bool) string {
 		return "no: the output stays within its full scale"
 	}
 	return yesNo(m.Clipping.ExceedsFullScale)
+}
+
+// writeWarnings writes a report's warnings at the end of its table, one
+// "warning:" line each.
+func writeWarnings(w io.Writer, ws []string) error {
+	for _, s := range ws {
+		if _, err := fmt.Fprintln(w, "  warning: "+s); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 func yesNo(b bool) string {
@@ -341,12 +342,7 @@ func (r *ResponseReport) WriteTable(w io.Writer) error {
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	for _, warn := range r.Warnings {
-		if _, err := fmt.Fprintln(w, "  warning: "+warn); err != nil {
-			return err
-		}
-	}
-	return nil
+	return writeWarnings(w, r.Warnings)
 }
 
 // WriteCSV writes one row per curve and frequency.

@@ -38,19 +38,7 @@ func TestMode(t *testing.T) {
 		}
 	})
 	t.Run("cross-coupled pair: differential", func(t *testing.T) {
-		const l, c = 10e-3, 10e-9
-		q := models.BJTParams{Is: 1e-14, BetaF: 200, BetaR: 2}
-		n := newNet()
-		n.V("vcc", "v+", "gnd", 9)
-		n.Sig("src", "in", 0)
-		n.R("Rin", "in", "gnd", 1e3)
-		for _, side := range []struct{ c, other string }{{"c1", "c2"}, {"c2", "c1"}} {
-			n.L("L"+side.c, "v+", side.c, l)
-			n.C("C"+side.c, side.c, "gnd", c)
-			n.R("R"+side.c, "v+", side.c, 2e3)
-			n.Q("Q"+side.c, side.c, side.other, "e", q)
-		}
-		n.R("Rtail", "e", "gnd", 168e3)
+		n := crossCoupledPair(10e-3, 10e-9, 2e3)
 		op, err := mna.SolveDC(n.c, mna.DCOptions{})
 		if err != nil {
 			t.Fatal(err)
@@ -85,4 +73,23 @@ func TestMode(t *testing.T) {
 			}
 		}
 	})
+}
+
+// crossCoupledPair builds the oscillator of TestPolesOfCrossCoupledPair:
+// two NPN transistors, each base on the other's collector, each collector
+// loaded by L ∥ C ∥ rp to a 9 V supply, emitters joined on 168 kΩ.
+func crossCoupledPair(l, c, rp float64) *netlist {
+	q := models.BJTParams{Is: 1e-14, BetaF: 200, BetaR: 2}
+	n := newNet()
+	n.V("vcc", "v+", "gnd", 9)
+	n.Sig("src", "in", 0)
+	n.R("Rin", "in", "gnd", 1e3)
+	for _, side := range []struct{ c, other string }{{"c1", "c2"}, {"c2", "c1"}} {
+		n.L("L"+side.c, "v+", side.c, l)
+		n.C("C"+side.c, side.c, "gnd", c)
+		n.R("R"+side.c, "v+", side.c, rp)
+		n.Q("Q"+side.c, side.c, side.other, "e", q)
+	}
+	n.R("Rtail", "e", "gnd", 168e3)
+	return n
 }
