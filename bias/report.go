@@ -28,6 +28,10 @@ type BiasReport struct {
 	DCIterations   int                `json:"dc_iterations"`
 	RegionRule     string             `json:"region_rule"`
 
+	// Stability is the pole analysis at this operating point (absent for
+	// a bare circuit read without a prepared chain).
+	Stability *report.Stability `json:"stability,omitempty"`
+
 	Target     *TargetReport    `json:"target,omitempty"`
 	Symmetric  *SymmetricReport `json:"symmetric,omitempty"`
 	Conditions []ConditionRow   `json:"conditions,omitempty"`
@@ -148,6 +152,9 @@ func (b *Bias) Report() *BiasReport {
 		}
 	}
 	r.Devices, r.Diodes = deviceReports(b)
+	if b.Prepared != nil {
+		r.Stability = b.Prepared.StabilityReport()
+	}
 	return r
 }
 

@@ -8,6 +8,7 @@ import (
 	"renderchain/dsp/mna"
 	"renderchain/dsp/resample"
 	"renderchain/models"
+	"renderchain/report"
 )
 
 // DefaultOversample is the oversampling factor when neither the caller nor
@@ -44,7 +45,8 @@ func Oversample(ch *chains.Chain, requested int) (int, error) {
 }
 
 // Prepared is a chain ready to run: flattened to one circuit, its DC
-// operating point solved, its oversampling factor resolved.
+// operating point solved, its stability checked, its oversampling factor
+// resolved.
 type Prepared struct {
 	Chain      *chains.Chain
 	Circuit    *models.Circuit
@@ -52,15 +54,23 @@ type Prepared struct {
 	Wiring     *chains.Wiring
 	Oversample int
 	// Findings are the chain's lint findings: the wiring's (Flatten) and
-	// the operating point's (CheckOperatingPoint). Reports carry
-	// Findings.Warnings() among their warnings.
+	// the operating point's (CheckOperatingPoint).
 	Findings chains.Findings
+	// Stability holds the poles of the circuit linearised at DC (nil when
+	// the analysis could not run, which Warnings then says).
+	Stability *mna.Stability
+	// Warnings are what every report on this chain carries, in order: the
+	// lint findings' warnings and the stability check's
+	// (StabilityWarning). Never nil.
+	Warnings report.Warnings
+
+	idle idleCache
 }
 
 // Prepare flattens and lints the chain (chains.Chain.Flatten), solves its
-// operating point, lints that (chains.Flat.CheckOperatingPoint) and
-// resolves the oversampling factor (see Oversample; 0 takes the chain's
-// or the default).
+// operating point, lints that (chains.Flat.CheckOperatingPoint), checks
+// its stability and resolves the oversampling factor (see Oversample; 0
+// takes the chain's or the default).
 func Prepare(ch *chains.Chain, oversample int) (*Prepared, error) {
 	os, err := Oversample(ch, oversample)
 	if err != nil {
@@ -76,7 +86,11 @@ func Prepare(ch *chains.Chain, oversample int) (*Prepared, error) {
 		return nil, fmt.Errorf("%s: at %s, %.1f °C: %w", ch.File, models.FormatValue(ch.Supply, "V"), ch.Temperature-models.ZeroCelsius, err)
 	}
 	flat.CheckOperatingPoint(op)
-	return &Prepared{Chain: ch, Circuit: c, DC: op, Wiring: flat.Wiring, Oversample: os, Findings: flat.Findings}, nil
+	p := &Prepared{Chain: ch, Circuit: c, DC: op, Wiring: flat.Wiring, Oversample: os,
+		Findings: flat.Findings, Warnings: report.Warnings{}}
+	p.Warnings.Merge(flat.Findings.Warnings())
+	p.checkStability()
+	return p, nil
 }
 
 // Node resolves a node name as a user writes it (chains.Wiring.Resolve):
