@@ -144,7 +144,7 @@ func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
 			b.Transistors = append(b.Transistors, transistorAt(c, op, e, d))
 		case models.DiodeKind:
 			anode := e.Nodes[0]
-			if rs := c.Element(e.Ref + ".rs"); rs != nil {
+			if rs := c.Element(models.InternalNode(e.Ref, "rs")); rs != nil {
 				anode = rs.Nodes[0]
 			}
 			v := op.Node[anode] - op.Node[e.Nodes[1]]

@@ -7,7 +7,7 @@
 //
 // Solve prepares a chain (engine.Prepare: build, DC operating point) and
 // reads it as a Bias: every node's voltage by name (nodes Build adds inside a part, such
-// as a diode's "stage.D1.junction" behind its series resistance, are marked
+// as a diode's "stage.D1#junction" behind its series resistance or a transistor's "stage.Q1#base" behind its base resistance, are marked
 // Internal), and for each transistor its terminal voltages Vc, Vb, Ve, Vbe,
 // Vce, Vbc, currents Ib, Ic (into the base and collector) and Ie = Ib + Ic
 // (out of the emitter), dissipation Vbe·Ib + Vce·Ic and region. All values

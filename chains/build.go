@@ -18,6 +18,7 @@ func (ch *Chain) Build() (*models.Circuit, error) {
 	in := c.Node("in")
 	vplus := c.Node("v+")
 	c.Input = in
+	var open []int // nodes left on open switch contacts
 	c.Add(models.Element{Ref: "input.source", Kind: models.VoltageSourceKind, Nodes: []int{in, models.Ground}, Signal: true})
 	c.Add(models.Element{Ref: "supply", Kind: models.VoltageSourceKind, Nodes: []int{vplus, models.Ground}, Value: ch.Supply})
 	for k, st := range ch.Stages {
@@ -32,11 +33,16 @@ func (ch *Chain) Build() (*models.Circuit, error) {
 			return c.Node(w.Node(st.ID, pin))
 		}
 		for _, p := range st.Parts {
+			if p.Kind == Switch {
+				open = append(open, p.addSwitch(c, st.ID+"."+p.Ref, node)...)
+				continue
+			}
 			if err := ch.addPart(c, st, p, node); err != nil {
 				return nil, err
 			}
 		}
 	}
+	leakOpenContacts(c, open)
 	out := c.Node(w.Out)
 	c.Output = out
 	if ch.Load > 0 {
@@ -88,18 +94,13 @@ func (ch *Chain) addPart(c *models.Circuit, st *Stage, p *Part, node func(string
 				c.Add(models.Element{Ref: ref + ".cw", Kind: models.ResistorKind, Nodes: []int{wiper, cw}, Value: upper})
 			}
 		}
-	case Diode:
-		dp := p.DiodeParams()
-		a, k := node(p.Pins["anode"]), node(p.Pins["cathode"])
-		if dp.Rs > 0 {
-			j := c.Node(internalName(st.ID, p.Ref, "junction"))
-			c.Add(models.Element{Ref: ref + ".rs", Kind: models.ResistorKind, Nodes: []int{a, j}, Value: dp.Rs})
-			a = j
+	case Diode, NPN, PNP, NJFET, PJFET, NMOSFET, PMOSFET, OpAmp, Transformer:
+		if err := ch.checkRails(p); err != nil {
+			return &Error{File: ch.File, Where: "stage " + st.ID + ": part " + p.Ref, Msg: err.Error()}
 		}
-		c.Add(models.Element{Ref: ref, Kind: models.DiodeKind, Nodes: []int{a, k}, Diode: dp})
-	case NPN, PNP:
-		c.Add(models.Element{Ref: ref, Kind: models.BJTKind,
-			Nodes: []int{node(p.Pins["c"]), node(p.Pins["b"]), node(p.Pins["e"])}, BJT: p.BJTParams()})
+		if err := p.addDevice(c, ref, node); err != nil {
+			return &Error{File: ch.File, Where: "stage " + st.ID, Msg: err.Error()}
+		}
 	default:
 		return &Error{File: ch.File, Where: "part " + ref, Msg: fmt.Sprintf("kind %s cannot be built", p.Kind)}
 	}

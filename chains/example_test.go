@@ -39,7 +39,7 @@ parts = [
 	// input.source   voltage source
 	// supply         voltage source
 	// clip.R1        resistor
-	// clip.D1.rs     resistor
+	// clip.D1#rs     resistor
 	// clip.D1        diode
 	// output.load    resistor
 }
