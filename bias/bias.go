@@ -87,6 +87,8 @@ type Bias struct {
 	Nodes       []Node  // in circuit order, ground left out
 	Transistors []Transistor
 	Diodes      []Diode
+	FETs        []FET   // JFETs and MOSFETs
+	OpAmps      []OpAmp // op-amps (their macromodels' helper elements hidden)
 	// SupplyCurrent is the current the supply delivers, A (its magnitude),
 	// and SupplyPower the power, W.
 	SupplyCurrent, SupplyPower float64
@@ -156,6 +158,7 @@ func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
 	for _, t := range b.Transistors {
 		b.Warnings.Merge(transistorWarnings(t, c, vplus, b.Supply))
 	}
+	b.readDevices(c, op)
 	return b
 }
 

@@ -603,3 +603,31 @@ func (ch *Chain) checkRails(p *Part) error {
 	}
 	return nil
 }
+
+// PinRoles lists the part's pin roles in their natural order (the keys of
+// Pins): "1", "2" for a two-terminal part, the kind's named pins, a
+// transformer's "w1.start", "w1.end", …, a switch's "POSITION.Ka" and
+// "POSITION.Kb" for its K-th contact in each position.
+func (p *Part) PinRoles() []string {
+	switch {
+	case p.Kind == Switch:
+		var s []string
+		for _, pos := range p.Positions {
+			for k := range pos.Connect {
+				s = append(s, fmt.Sprintf("%s.%da", pos.Name, k+1), fmt.Sprintf("%s.%db", pos.Name, k+1))
+			}
+		}
+		return s
+	case p.Kind == Transformer || p.Kind.Device():
+		return p.pinOrder()
+	case p.Kind.Pins() != nil:
+		var s []string
+		for _, r := range p.Kind.Pins() {
+			if _, ok := p.Pins[r]; ok {
+				s = append(s, r)
+			}
+		}
+		return s
+	}
+	return []string{"1", "2"}
+}

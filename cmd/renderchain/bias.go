@@ -195,6 +195,7 @@ func biasPrint(w io.Writer, b *bias.Bias, internal bool) {
 		}
 		tw.Flush()
 	}
+	biasPrintFETsAndOpAmps(w, b)
 	fmt.Fprintf(w, "\nsupply delivers %s (%s)\n", models.FormatValue(b.SupplyCurrent, "A"), models.FormatValue(b.SupplyPower, "W"))
 	for _, s := range b.Warnings {
 		fmt.Fprintln(w, "warning: "+s)
