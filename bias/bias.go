@@ -221,7 +221,7 @@ func transistorWarnings(t Transistor, c *models.Circuit, vplus int, supply float
 		if d := math.Abs(t.Vc); d < RailMargin {
 			w = append(w, fmt.Sprintf("%s's collector sits %s from ground (under %g V of room to swing)", t.Ref, models.FormatValue(d, "V"), RailMargin))
 		}
-		if d := math.Abs(t.Vc - supply); d < RailMargin {
+		if d := math.Abs(t.Vc - supply); d < RailMargin && !inductiveLoad(c, nc) {
 			w = append(w, fmt.Sprintf("%s's collector sits %s from the supply rail (under %g V of room to swing)", t.Ref, models.FormatValue(d, "V"), RailMargin))
 		}
 	}

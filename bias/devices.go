@@ -3,6 +3,7 @@ package bias
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"renderchain/chains"
@@ -289,4 +290,24 @@ func (b *Bias) OpAmp(ref string) *OpAmp {
 		}
 	}
 	return nil
+}
+
+// inductiveLoad reports whether node n is wired to an inductor or to a
+// transformer winding: a collector loaded so idles near the supply rail by
+// design and swings beyond it, so the rail-margin warning does not apply.
+func inductiveLoad(c *models.Circuit, n int) bool {
+	for _, e := range c.Elements {
+		if !slices.Contains(e.Nodes, n) {
+			continue
+		}
+		if e.Kind == models.InductorKind {
+			return true
+		}
+		if part, _, ok := strings.Cut(e.Ref, models.InternalMark); ok {
+			if x := c.Element(models.InternalNode(part, "ideal")); x != nil && x.Kind == models.IdealTransformerKind {
+				return true
+			}
+		}
+	}
+	return false
 }

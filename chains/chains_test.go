@@ -118,7 +118,7 @@ func TestOverrideErrorsNameKnownKeys(t *testing.T) {
 		}
 	}
 	_, err := chains.Parse("t.toml", "[[stage]]\nid = \"a\"\ntemplate = \"no-such\"\n")
-	if err == nil || !strings.Contains(err.Error(), "built-in: amp-input, fuzz-ge, fuzz-si") {
+	if err == nil || !strings.Contains(err.Error(), "built-in: amp-input, fuzz-ge, fuzz-ge3, fuzz-si") {
 		t.Errorf("unknown template: %v", err)
 	}
 }
@@ -307,8 +307,8 @@ func TestTemplatesBuild(t *testing.T) {
 	}
 	for _, tp := range list {
 		supply := "9V"
-		if tp.Name == "fuzz-ge" {
-			supply = "-9V"
+		if tp.Name == "fuzz-ge" || tp.Name == "fuzz-ge3" {
+			supply = "-9V" // germanium PNP, positive ground
 		}
 		src := "name = \"t\"\nsupply = \"" + supply + "\"\n[[stage]]\nid = \"s\"\ntemplate = \"" + tp.Name + "\"\n"
 		ch, err := chains.Parse("t.toml", src)
@@ -327,7 +327,7 @@ func TestTemplatesBuild(t *testing.T) {
 
 // Every example chain parses and builds.
 func TestExampleChains(t *testing.T) {
-	for _, name := range []string{"demo", "germanium", "fuzz-only"} {
+	for _, name := range chains.ExampleNames() {
 		ch, err := chains.Example(name)
 		if err != nil {
 			t.Fatal(err)
