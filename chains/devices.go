@@ -23,6 +23,12 @@ type param struct {
 	about string
 }
 
+// paramHints follow a range error of the parameter.
+var paramHints = map[string]string{
+	"pinchoff":  "(the magnitude: write 2V for a pinch-off voltage of ±2 V)",
+	"threshold": "(the magnitude: write 2V for a threshold of ±2 V)",
+}
+
 func closedRange(lo, hi float64, unit string) models.Range {
 	return models.Range{Lo: lo, Hi: hi, Unit: unit}
 }
@@ -161,7 +167,7 @@ func readParam(key string, pr param, v any) (float64, error) {
 		return 0, fmt.Errorf("%s: %s", key, valueMessage(v, err))
 	}
 	if err := pr.r.Check(x); err != nil {
-		return 0, fmt.Errorf("%s = %v %s", key, v, models.Reason(err))
+		return 0, fmt.Errorf("%s", strings.TrimSpace(fmt.Sprintf("%s = %v %s %s", key, v, models.Reason(err), paramHints[key])))
 	}
 	return x, nil
 }
@@ -558,7 +564,7 @@ func (p *Part) checkDevice() error {
 			if len(names) == 0 {
 				return fmt.Errorf("a %s takes no model", p.Kind)
 			}
-			return fmt.Errorf("model %q is not a %s model (%s)", p.Model, p.Kind, strings.Join(names, ", "))
+			return fmt.Errorf("model %q is not one of the %s models (%s)", p.Model, p.Kind, strings.Join(names, ", "))
 		}
 	}
 	if p.Kind == OpAmp {
