@@ -167,9 +167,9 @@ func (p *Part) ContactResistance() float64 {
 // contact a resistor of the contact resistance named REF#contactK (K
 // counting the position's pairs from 1); open contacts are left out. It
 // returns the nodes the other positions name that this one leaves
-// unconnected by the switch: Build gives each a leak to ground, so a part
-// left hanging on an open contact (a tone cap not selected) keeps a
-// defined DC voltage.
+// unconnected by the switch: Build gives each that has no DC path left a
+// leak to ground, so a part left hanging on an open contact (a tone cap
+// not selected) keeps a defined DC voltage.
 func (p *Part) addSwitch(c *models.Circuit, ref string, node func(string) int) []int {
 	pos := p.Positions[p.Position]
 	closed := map[int]bool{}
@@ -208,16 +208,54 @@ func (p *Part) PositionNames() []string {
 	return s
 }
 
-// leakOpenContacts gives each node in open (ground aside) a
-// models.LeakResistance to ground named "leak.NODE", once: board leakage
-// standing in for what an open contact leaves undefined.
+// leakOpenContacts gives each node in open that no DC path joins to
+// ground (a tone cap left on an open contact) a models.LeakResistance to
+// ground named "leak.NODE": board leakage standing in for what an open
+// contact leaves undefined. Nodes with a DC path keep nothing extra, so an
+// open contact stays absent.
 func leakOpenContacts(c *models.Circuit, open []int) {
+	if len(open) == 0 {
+		return
+	}
+	root := make([]int, len(c.Nodes))
+	for i := range root {
+		root[i] = i
+	}
+	find := func(i int) int {
+		for root[i] != i {
+			root[i] = root[root[i]]
+			i = root[i]
+		}
+		return i
+	}
+	join := func(a, b int) { root[find(a)] = find(b) }
+	// DC paths: every element's pins but a capacitor's, a MOSFET's gate,
+	// a controlled source's, and between an ideal transformer's windings
+	// (models.Circuit.Check's rule).
+	for _, e := range c.Elements {
+		switch e.Kind {
+		case models.CapacitorKind, models.ControlledCurrentKind:
+		case models.MOSFETKind:
+			join(e.Nodes[0], e.Nodes[2])
+		case models.BufferKind:
+			join(e.Nodes[0], models.Ground)
+		case models.IdealTransformerKind:
+			for k := 0; k+1 < len(e.Nodes); k += 2 {
+				join(e.Nodes[k], e.Nodes[k+1])
+			}
+		default:
+			for _, n := range e.Nodes[1:] {
+				join(e.Nodes[0], n)
+			}
+		}
+	}
 	done := map[int]bool{}
 	for _, n := range open {
-		if n == models.Ground || done[n] {
+		if done[n] || find(n) == find(models.Ground) {
 			continue
 		}
 		done[n] = true
 		c.Add(models.Element{Ref: "leak." + c.Nodes[n], Kind: models.ResistorKind, Nodes: []int{n, models.Ground}, Value: models.LeakResistance})
+		join(n, models.Ground)
 	}
 }
