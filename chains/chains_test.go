@@ -151,7 +151,8 @@ func TestSetKeys(t *testing.T) {
 	}
 }
 
-func response(t *testing.T, ch *chains.Chain, f float64) complex128 {
+// solved builds the chain and solves its DC operating point.
+func solved(t *testing.T, ch *chains.Chain) (*models.Circuit, *mna.OperatingPoint) {
 	t.Helper()
 	c, err := ch.Build()
 	if err != nil {
@@ -161,6 +162,12 @@ func response(t *testing.T, ch *chains.Chain, f float64) complex128 {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return c, op
+}
+
+func response(t *testing.T, ch *chains.Chain, f float64) complex128 {
+	t.Helper()
+	c, op := solved(t, ch)
 	h, err := mna.AC(c, op, []float64{f}, []int{c.Output})
 	if err != nil {
 		t.Fatal(err)

@@ -1,6 +1,7 @@
 package chains
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"regexp"
@@ -230,20 +231,9 @@ func (w *Winding) set(i int, key string, x float64) error {
 // parseWindings reads a transformer's windings = [{ pins = [start, end],
 // inductance | turns, resistance }, …].
 func (p *Part) parseWindings(v any) error {
-	var list []map[string]any
-	switch t := v.(type) {
-	case []map[string]any:
-		list = t
-	case []any:
-		for _, x := range t {
-			m, ok := x.(map[string]any)
-			if !ok {
-				return fmt.Errorf("windings must be a list of tables, e.g. windings = [{ inductance = \"2H\", pins = [\"a\", \"b\"] }, …]")
-			}
-			list = append(list, m)
-		}
-	default:
-		return fmt.Errorf("windings must be a list of tables, e.g. windings = [{ inductance = \"2H\", pins = [\"a\", \"b\"] }, …]")
+	list, err := tables(v, `windings must be a list of tables, e.g. windings = [{ inductance = "2H", pins = ["a", "b"] }, …]`)
+	if err != nil {
+		return err
 	}
 	if len(list) < 2 {
 		return fmt.Errorf("a transformer needs at least two windings (a centre-tapped winding is two windings sharing the tap)")
@@ -299,6 +289,26 @@ func (p *Part) parseWindings(v any) error {
 		}
 	}
 	return nil
+}
+
+// tables reads a TOML array of tables (as decoded into a map); want is
+// the message when v is something else.
+func tables(v any, want string) ([]map[string]any, error) {
+	switch t := v.(type) {
+	case []map[string]any:
+		return t, nil
+	case []any:
+		list := make([]map[string]any, 0, len(t))
+		for _, x := range t {
+			m, ok := x.(map[string]any)
+			if !ok {
+				return nil, errors.New(want)
+			}
+			list = append(list, m)
+		}
+		return list, nil
+	}
+	return nil, errors.New(want)
 }
 
 // checkNodeName refuses node names a chain file must not write: the

@@ -27,21 +27,9 @@ const DefaultContactResistance = 0.05
 // parsePositions reads positions = [{ name = "…", connect = [["a", "b"],
 // …] }, …].
 func (p *Part) parsePositions(v any) error {
-	const want = `positions must be a list of tables, e.g. positions = [{ name = "bright", connect = [["t", "c1"]] }, …]`
-	var list []map[string]any
-	switch t := v.(type) {
-	case []map[string]any:
-		list = t
-	case []any:
-		for _, x := range t {
-			m, ok := x.(map[string]any)
-			if !ok {
-				return fmt.Errorf("%s", want)
-			}
-			list = append(list, m)
-		}
-	default:
-		return fmt.Errorf("%s", want)
+	list, err := tables(v, `positions must be a list of tables, e.g. positions = [{ name = "bright", connect = [["t", "c1"]] }, …]`)
+	if err != nil {
+		return err
 	}
 	if len(list) < 2 {
 		return fmt.Errorf("a switch needs at least two positions")

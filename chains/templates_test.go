@@ -266,14 +266,7 @@ func charged(c *models.Circuit) bool {
 // the render's internal rate and returns the worst output difference.
 func worstAgainstTransient(t *testing.T, ch *chains.Chain, amp float64) float64 {
 	t.Helper()
-	c, err := ch.Build()
-	if err != nil {
-		t.Fatal(err)
-	}
-	op, err := mna.SolveDC(c, mna.DCOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	c, op := solved(t, ch)
 	const fs = 4 * 48000
 	s, err := wdf.Compile(c, op, wdf.Options{SampleRate: fs})
 	if err != nil {
