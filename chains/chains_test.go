@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/dsp/mna"
 	"renderchain/models"
@@ -332,7 +333,8 @@ func TestTemplatesBuild(t *testing.T) {
 	}
 }
 
-// Every example chain parses and builds.
+// Every example chain parses and builds; the device examples under
+// chains/examples also bias without a warning at their settings.
 func TestExampleChains(t *testing.T) {
 	for _, name := range chains.ExampleNames() {
 		ch, err := chains.Example(name)
@@ -341,6 +343,13 @@ func TestExampleChains(t *testing.T) {
 		}
 		if _, err := ch.Build(); err != nil {
 			t.Errorf("%s: %v", name, err)
+		}
+		if !strings.HasPrefix(name, "examples/") {
+			continue
+		}
+		b, err := bias.Solve(ch)
+		if err != nil || len(b.Warnings) > 0 {
+			t.Errorf("%s: %v, warnings %q", name, err, b.Warnings)
 		}
 	}
 }

@@ -119,9 +119,8 @@ var templateCases = []templateCase{
 		n.R("s.e1", "gnd", 680)
 		pot(n, "s.eb", "s.eb", "s.e1", 1e3, revAudio(0.4))
 		n.R("v+", "s.c1", 150) // the primary's resistance
-		n.R("s.sa", "s.ct", 150)
-		n.R("s.ct", "s.sb", 150)
-		n.R("s.ct", "gnd", 0.1)
+		n.R("s.sa", "gnd", 150) // the secondary's halves, the tap on ground
+		n.R("gnd", "s.sb", 150)
 		diode(n, "D1", "s.sa", "s.r", "ge-signal")
 		diode(n, "D2", "s.sb", "s.r", "ge-signal")
 		n.R("s.r", "gnd", 47e3)
