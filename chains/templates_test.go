@@ -118,7 +118,7 @@ var templateCases = []templateCase{
 		bjt(n, "Q1", "s.c1", "s.b1", "s.e1", "si-npn", 200)
 		n.R("s.e1", "gnd", 680)
 		pot(n, "s.eb", "s.eb", "s.e1", 1e3, revAudio(0.4))
-		n.R("v+", "s.c1", 150) // the primary's resistance
+		n.R("v+", "s.c1", 150)  // the primary's resistance
 		n.R("s.sa", "gnd", 150) // the secondary's halves, the tap on ground
 		n.R("gnd", "s.sb", 150)
 		diode(n, "D1", "s.sa", "s.r", "ge-signal")
