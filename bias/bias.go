@@ -88,6 +88,8 @@ type Bias struct {
 	Nodes       []Node  // in circuit order, ground left out
 	Transistors []Transistor
 	Diodes      []Diode
+	FETs        []FET   // JFETs and MOSFETs
+	OpAmps      []OpAmp // op-amps (their macromodels' helper elements hidden)
 	// SupplyCurrent is the current the supply delivers, A (its magnitude),
 	// and SupplyPower the power, W.
 	SupplyCurrent, SupplyPower float64
@@ -182,7 +184,7 @@ func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
 			b.Transistors = append(b.Transistors, transistorAt(c, op, e, d))
 		case models.DiodeKind:
 			anode := e.Nodes[0]
-			if rs := c.Element(e.Ref + ".rs"); rs != nil {
+			if rs := c.Element(models.InternalNode(e.Ref, "rs")); rs != nil {
 				anode = rs.Nodes[0]
 			}
 			v := op.Node[anode] - op.Node[e.Nodes[1]]
@@ -194,6 +196,7 @@ func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
 	for _, t := range b.Transistors {
 		b.Warnings.Merge(transistorWarnings(t, c, vplus, b.Supply))
 	}
+	b.readDevices(c, op)
 	return b
 }
 
@@ -260,7 +263,7 @@ func transistorWarnings(t Transistor, c *models.Circuit, vplus int, supply float
 		if d := math.Abs(t.Vc); d < RailMargin {
 			w = append(w, fmt.Sprintf("%s's collector sits %s ground (under %g V of room to swing)", t.Ref, distance(d), RailMargin))
 		}
-		if d := math.Abs(t.Vc - supply); d < RailMargin {
+		if d := math.Abs(t.Vc - supply); d < RailMargin && !inductiveLoad(c, nc) {
 			w = append(w, fmt.Sprintf("%s's collector sits %s the supply rail (under %g V of room to swing)", t.Ref, distance(d), RailMargin))
 		}
 	}

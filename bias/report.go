@@ -20,6 +20,8 @@ type BiasReport struct {
 	InternalNodes  map[string]float64 `json:"internal_nodes,omitempty"`
 	Devices        []DeviceReport     `json:"devices"`
 	Diodes         []DiodeReport      `json:"diodes"`
+	FETs           []FETReport        `json:"fets"`
+	OpAmps         []OpAmpReport      `json:"opamps"`
 	SupplyCurrentA float64            `json:"supply_current_a"`
 	SupplyPowerW   float64            `json:"supply_power_w"`
 	Warnings       []string           `json:"warnings"`
@@ -27,6 +29,7 @@ type BiasReport struct {
 	DCMethod       string             `json:"dc_method"`
 	DCIterations   int                `json:"dc_iterations"`
 	RegionRule     string             `json:"region_rule"`
+	FETRegionRule  string             `json:"fet_region_rule"`
 
 	// Stability is the pole analysis at this operating point (absent for
 	// a bare circuit read without a prepared chain).
@@ -140,7 +143,8 @@ func RegionRule() string {
 func (b *Bias) Report() *BiasReport {
 	r := &BiasReport{Chain: b.Chain, ChainFile: b.File, SupplyV: b.Supply, TemperatureC: b.Temperature - models.ZeroCelsius,
 		Nodes: map[string]float64{"gnd": 0}, SupplyCurrentA: b.SupplyCurrent, SupplyPowerW: b.SupplyPower,
-		Warnings: nonNil(b.Warnings), Notes: b.Notes, DCMethod: b.Method, DCIterations: b.Iterations, RegionRule: RegionRule()}
+		Warnings: nonNil(b.Warnings), Notes: b.Notes, DCMethod: b.Method, DCIterations: b.Iterations, RegionRule: RegionRule(),
+		FETRegionRule: FETRegionRule()}
 	for _, n := range b.Nodes {
 		if n.Internal {
 			if r.InternalNodes == nil {
@@ -155,6 +159,7 @@ func (b *Bias) Report() *BiasReport {
 	if b.Prepared != nil {
 		r.Stability = b.Prepared.StabilityReport()
 	}
+	r.FETs, r.OpAmps = otherReports(b)
 	return r
 }
 

@@ -55,18 +55,13 @@ func (ch *Chain) addPart(c *models.Circuit, st *Stage, p *Part, node func(string
 				c.Add(models.Element{Ref: ref + ".cw", Kind: models.ResistorKind, Nodes: []int{wiper, cw}, Value: upper})
 			}
 		}
-	case Diode:
-		dp := p.DiodeParams()
-		a, k := node(p.Pins["anode"]), node(p.Pins["cathode"])
-		if dp.Rs > 0 {
-			j := c.Node(internalName(st.ID, p.Ref, "junction"))
-			c.Add(models.Element{Ref: ref + ".rs", Kind: models.ResistorKind, Nodes: []int{a, j}, Value: dp.Rs})
-			a = j
+	case Diode, NPN, PNP, NJFET, PJFET, NMOSFET, PMOSFET, OpAmp, Transformer:
+		if err := ch.checkRails(p); err != nil {
+			return &Error{File: ch.File, Where: "stage " + st.ID + ": part " + p.Ref, Msg: err.Error()}
 		}
-		c.Add(models.Element{Ref: ref, Kind: models.DiodeKind, Nodes: []int{a, k}, Diode: dp})
-	case NPN, PNP:
-		c.Add(models.Element{Ref: ref, Kind: models.BJTKind,
-			Nodes: []int{node(p.Pins["c"]), node(p.Pins["b"]), node(p.Pins["e"])}, BJT: p.BJTParams()})
+		if err := p.addDevice(c, ref, node); err != nil {
+			return &Error{File: ch.File, Where: "stage " + st.ID, Msg: err.Error()}
+		}
 	default:
 		return &Error{File: ch.File, Where: "part " + ref, Msg: fmt.Sprintf("kind %s cannot be built", p.Kind)}
 	}

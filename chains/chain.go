@@ -68,19 +68,18 @@ type Part struct {
 	Tolerance float64 // fraction; 0 = unspecified
 	Adjusts   string  // a trimmer's transistor, for bias targets
 	About     string
+	// Windings are a transformer's windings (its pins are in them, and in
+	// Pins as "w1.start", "w1.end", …).
+	Windings []Winding
+	// Positions are a switch's positions, Position the one selected
+	// (0-based; Text holds its name).
+	Positions []Position
+	Position  int
 }
-
-// Device parameters a part may carry, with their quantities.
-var deviceParams = map[PartKind]map[string]models.Quantity{
-	Diode: {"is": models.Current, "n": models.Dimensionless, "rs": models.Resistance, "eg": models.Dimensionless, "xti": models.Dimensionless},
-	NPN: {"is": models.Current, "hfe": models.Dimensionless, "br": models.Dimensionless, "icbo": models.Current,
-		"leak_doubling": models.Dimensionless, "eg": models.Dimensionless, "xti": models.Dimensionless},
-}
-
-func init() { deviceParams[PNP] = deviceParams[NPN] }
 
 var commonKeys = map[string]bool{"ref": true, "kind": true, "value": true, "pins": true, "tolerance": true,
-	"taper": true, "knob": true, "per_metre": true, "model": true, "adjusts": true, "about": true}
+	"taper": true, "knob": true, "per_metre": true, "model": true, "adjusts": true, "about": true,
+	"windings": true, "positions": true}
 
 type rawChain struct {
 	Name        string     `toml:"name"`
@@ -478,14 +477,23 @@ func parsePart(rp map[string]any) (*Part, error) {
 		if commonKeys[key] {
 			continue
 		}
-		if _, ok := deviceParams[kind][key]; ok {
+		if _, ok := deviceParams[kind][key]; ok || kind == Transformer && windingKey.MatchString(key) {
 			continue
 		}
 		return fail("unknown key %q for a %s%s", key, kind, didYouMean(key, partKeys(kind)))
 	}
+	if (rp["windings"] != nil) != (kind == Transformer) {
+		return fail("only a transformer has windings")
+	}
+	if (rp["positions"] != nil) != (kind == Switch) {
+		return fail("only a switch has positions")
+	}
 	// Pins.
 	switch pins := rp["pins"].(type) {
 	case []any:
+		if kind == Transformer || kind == Switch {
+			return fail("a %s's pins sit in its %s", kind, map[PartKind]string{Transformer: "windings", Switch: "positions"}[kind])
+		}
 		if pinRoles != nil {
 			return fail("pins of a %s are named: %s", kind, strings.Join(pinRoles, ", "))
 		}
@@ -497,9 +505,15 @@ func parsePart(rp map[string]any) (*Part, error) {
 			if !ok || s == "" {
 				return fail("pin %d is not a node name", i+1)
 			}
+			if err := checkNodeName(s); err != nil {
+				return fail("pin %d: %v", i+1, err)
+			}
 			p.Pins[fmt.Sprint(i+1)] = s
 		}
 	case map[string]any:
+		if kind == Transformer || kind == Switch {
+			return fail("a %s's pins sit in its %s", kind, map[PartKind]string{Transformer: "windings", Switch: "positions"}[kind])
+		}
 		if pinRoles == nil {
 			return fail("pins of a %s are a two-name list, e.g. pins = [\"a\", \"b\"]", kind)
 		}
@@ -515,7 +529,19 @@ func parsePart(rp map[string]any) (*Part, error) {
 			if !isStr || s == "" {
 				return fail("pin %s is not a node name", role)
 			}
+			if err := checkNodeName(s); err != nil {
+				return fail("pin %s: %v", role, err)
+			}
 			p.Pins[role] = s
+		}
+		if kind == OpAmp {
+			// The supply pins default to the chain's rails.
+			if _, ok := p.Pins["rail_pos"]; !ok {
+				p.Pins["rail_pos"] = "v+"
+			}
+			if _, ok := p.Pins["rail_neg"]; !ok {
+				p.Pins["rail_neg"] = "gnd"
+			}
 		}
 		for _, r := range pinRoles {
 			if _, ok := p.Pins[r]; !ok && !(kind == Pot && r == "cw") {
@@ -523,7 +549,18 @@ func parsePart(rp map[string]any) (*Part, error) {
 			}
 		}
 	case nil:
-		return fail("no pins")
+		switch kind {
+		case Transformer:
+			if err := p.parseWindings(rp["windings"]); err != nil {
+				return fail("%v", err)
+			}
+		case Switch:
+			if err := p.parsePositions(rp["positions"]); err != nil {
+				return fail("%v", err)
+			}
+		default:
+			return fail("no pins")
+		}
 	default:
 		return fail("pins must be a list or a table")
 	}
@@ -543,11 +580,17 @@ func (p *Part) apply(t map[string]any, full bool) error {
 	}
 	for key, v := range t {
 		switch key {
-		case "ref", "kind", "pins":
+		case "ref", "kind", "pins", "windings", "positions":
 			if !full {
 				return fail("%s cannot be overridden", key)
 			}
 		case "value":
+			if p.Kind == Switch {
+				if err := p.selectPosition(v); err != nil {
+					return fail("%v", err)
+				}
+				continue
+			}
 			if !p.Kind.Valued() {
 				if s, isStr := v.(string); isStr && p.Kind.Device() {
 					p.Model = s // a device's "value" names its model
@@ -599,15 +642,13 @@ func (p *Part) apply(t map[string]any, full bool) error {
 			s, _ := v.(string)
 			p.About = s
 		default:
-			q, ok := deviceParams[p.Kind][key]
-			if !ok {
+			known, err := p.setParam(key, v)
+			if !known {
 				return fail("unknown key %q for a %s%s", key, p.Kind, didYouMean(key, partKeys(p.Kind)))
 			}
-			x, err := valueOf(v, q)
 			if err != nil {
-				return fail("%s: %s", key, valueMessage(v, err))
+				return fail("%v", err)
 			}
-			p.Params[key] = x
 		}
 	}
 	return nil
@@ -651,67 +692,14 @@ func (p *Part) complete() error {
 		if p.Kind == Cable && !(p.PerMetre > 0 && p.PerMetre < 1e-6) {
 			return fail("per_metre %s is not a cable's capacitance per metre", models.FormatValue(p.PerMetre, "F"))
 		}
-	case p.Kind.Device():
-		if p.Model != "" {
-			pr, ok := models.Presets[p.Model]
-			if !ok {
-				return fail("model %q is not one of %s", p.Model, strings.Join(models.PresetNames(), ", "))
-			}
-			if (p.Kind == Diode) != (pr.Diode != nil) || pr.BJT != nil && pr.BJT.PNP != (p.Kind == PNP) {
-				return fail("model %q is not a %s", p.Model, p.Kind)
-			}
+	case p.Kind.Device() || p.Kind == Transformer:
+		if err := p.checkDevice(); err != nil {
+			return fail("%v", err)
 		}
-		for k, v := range p.Params {
-			if err := finite(v); err != nil || !(v > 0) && k != "icbo" || v < 0 {
-				return fail("%s = %g must be a positive number", k, v)
-			}
-			if k == "hfe" {
-				if err := models.GainRange.Check(v); err != nil {
-					return fail("hfe = %g is outside %s", v, models.GainRange.Describe())
-				}
-			}
+	case p.Kind == Switch:
+		if err := p.checkSwitch(); err != nil {
+			return fail("%v", err)
 		}
 	}
 	return nil
-}
-
-// DiodeParams resolves a diode part's parameters: the named model (or the
-// silicon signal diode), then written parameters. Without a named model
-// and without eg the saturation current does not scale with temperature.
-func (p *Part) DiodeParams() models.DiodeParams {
-	name := p.Model
-	if name == "" {
-		name = "si-signal"
-	}
-	d := *models.Presets[name].Diode
-	if p.Model == "" {
-		d.Eg = 0
-	}
-	p.setParams(map[string]*float64{"is": &d.Is, "n": &d.N, "rs": &d.Rs, "eg": &d.Eg, "xti": &d.XTI})
-	return d
-}
-
-// BJTParams resolves a transistor part's parameters like DiodeParams.
-func (p *Part) BJTParams() models.BJTParams {
-	name := p.Model
-	if name == "" {
-		name = "si-" + p.Kind.String()
-	}
-	b := *models.Presets[name].BJT
-	if p.Model == "" {
-		b.Eg = 0
-	}
-	p.setParams(map[string]*float64{"is": &b.Is, "hfe": &b.BetaF, "br": &b.BetaR, "icbo": &b.Icbo,
-		"leak_doubling": &b.LeakDoubling, "eg": &b.Eg, "xti": &b.XTI})
-	b.PNP = p.Kind == PNP
-	return b
-}
-
-// setParams copies the written parameters over the defaults.
-func (p *Part) setParams(dst map[string]*float64) {
-	for k, v := range p.Params {
-		if d, ok := dst[k]; ok {
-			*d = v
-		}
-	}
 }

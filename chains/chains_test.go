@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/dsp/mna"
 	"renderchain/models"
@@ -119,7 +120,7 @@ func TestOverrideErrorsNameKnownKeys(t *testing.T) {
 		}
 	}
 	_, err := chains.Parse("t.toml", "[[stage]]\nid = \"a\"\ntemplate = \"no-such\"\n")
-	if err == nil || !strings.Contains(err.Error(), "built-in: amp-input, fuzz-ge, fuzz-si") {
+	if err == nil || !strings.Contains(err.Error(), "built-in: amp-input, fuzz-ge, fuzz-ge3, fuzz-si") {
 		t.Errorf("unknown template: %v", err)
 	}
 }
@@ -152,7 +153,8 @@ func TestSetKeys(t *testing.T) {
 	}
 }
 
-func response(t *testing.T, ch *chains.Chain, f float64) complex128 {
+// solved builds the chain and solves its DC operating point.
+func solved(t *testing.T, ch *chains.Chain) (*models.Circuit, *mna.OperatingPoint) {
 	t.Helper()
 	c, err := ch.Build()
 	if err != nil {
@@ -162,6 +164,12 @@ func response(t *testing.T, ch *chains.Chain, f float64) complex128 {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return c, op
+}
+
+func response(t *testing.T, ch *chains.Chain, f float64) complex128 {
+	t.Helper()
+	c, op := solved(t, ch)
 	h, err := mna.AC(c, op, []float64{f}, []int{c.Output})
 	if err != nil {
 		t.Fatal(err)
@@ -308,8 +316,8 @@ func TestTemplatesBuild(t *testing.T) {
 	}
 	for _, tp := range list {
 		supply := "9V"
-		if tp.Name == "fuzz-ge" {
-			supply = "-9V"
+		if tp.Name == "fuzz-ge" || tp.Name == "fuzz-ge3" {
+			supply = "-9V" // germanium PNP, positive ground
 		}
 		srcs := []string{"name = \"t\"\nsupply = \"" + supply + "\"\n[[stage]]\nid = \"s\"\ntemplate = \"" + tp.Name + "\"\n"}
 		if tp.Supply {
@@ -337,15 +345,25 @@ func TestTemplatesBuild(t *testing.T) {
 	}
 }
 
-// Every example chain parses and builds.
+// Every example chain parses and builds; the device examples under
+// chains/examples also bias without a warning at their settings.
 func TestExampleChains(t *testing.T) {
-	for _, name := range []string{"demo", "germanium", "fuzz-only"} {
+	for _, name := range chains.ExampleNames() {
 		ch, err := chains.Example(name)
 		if err != nil {
 			t.Fatal(err)
 		}
 		if _, err := ch.Build(); err != nil {
 			t.Errorf("%s: %v", name, err)
+		}
+		if !strings.HasPrefix(name, "examples/") {
+			continue
+		}
+		b, err := bias.Solve(ch)
+		if err != nil {
+			t.Errorf("%s: %v", name, err)
+		} else if len(b.Warnings) > 0 {
+			t.Errorf("%s: warnings %q", name, b.Warnings)
 		}
 	}
 }

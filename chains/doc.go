@@ -19,6 +19,18 @@
 // polarity against the supply's sign). Findings carry the file, the line
 // and the part; warnings and notes stay on the Flat for every report.
 //
+// Part kinds (kind.go) are the passive parts, pots, diodes, bipolar
+// transistors, JFETs and MOSFETs of both polarities, op-amps, transformers
+// and switches. Device parameters (devices.go) are read through the
+// quantity parsers of package models and checked against ranges; a named
+// preset fills in its complete value set (models.DevicePreset.Complete),
+// a part without one keeps the core model of the chain-file interface.
+// Build flattens every device through models.Circuit.AddPart, so the nodes
+// and elements inside parts are named STAGE.REF#role; a chain file may not
+// write the mark. A switch (switch.go) is flattened in its selected
+// position: each closed contact a small resistor, open contacts absent, a
+// node left without a DC path given a 1 TΩ leak.
+//
 // Errors name the file, the line where there is one, the stage and part,
 // and what is wrong: "tone.toml:14: stage tone: part R3: value "22kk" is
 // not a resistance". TOML decoding keeps no positions for semantic errors,
@@ -31,7 +43,8 @@
 // Nagel, UCB ERL-M520, 1975 (the minimum conductance given to nodes only
 // capacitors or junctions reach); P. Horowitz and W. Hill, The Art of
 // Electronics, 2nd ed., 1989, p. 9 (a fresh 9 V alkaline cell's internal
-// resistance).
+// resistance); the device models'
+// own references are in package models.
 //
 // Non-goals: netlist formats of other programs, hierarchical sub-circuits
 // beyond one level of templates, schematic capture, and electrical rule

@@ -67,11 +67,23 @@ func (ch *Chain) Flatten() (*Flat, error) {
 			return c.Node(w.Node(st.ID, pin))
 		}
 	}
-	if ch.Power != nil {
-		for _, p := range ch.Power.Parts {
-			if err := ch.addPart(c, ch.Power, p, stageNode(ch.Power)); err != nil {
-				return nil, err
+	var open []int // nodes left on open switch contacts
+	addParts := func(st *Stage) error {
+		node := stageNode(st)
+		for _, p := range st.Parts {
+			if p.Kind == Switch {
+				open = append(open, p.addSwitch(c, st.ID+"."+p.Ref, node)...)
+				continue
 			}
+			if err := ch.addPart(c, st, p, node); err != nil {
+				return err
+			}
+		}
+		return nil
+	}
+	if ch.Power != nil {
+		if err := addParts(ch.Power); err != nil {
+			return nil, err
 		}
 	}
 	for k, st := range ch.Stages {
@@ -79,12 +91,11 @@ func (ch *Chain) Flatten() (*Flat, error) {
 		if e.Buffered {
 			c.Add(models.Element{Ref: st.ID + ".buffer", Kind: models.BufferKind, Nodes: []int{c.Node(e.In), c.Node(e.Feed)}})
 		}
-		for _, p := range st.Parts {
-			if err := ch.addPart(c, st, p, stageNode(st)); err != nil {
-				return nil, err
-			}
+		if err := addParts(st); err != nil {
+			return nil, err
 		}
 	}
+	leakOpenContacts(c, open)
 	out := c.Node(w.Out)
 	c.Output = out
 	if ch.Load > 0 {

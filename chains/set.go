@@ -33,8 +33,10 @@ var SetKeys = []string{"supply", "temperature", "oversample", "input.peak", "out
 //
 //	supply, temperature, oversample, input.peak, output.load, output.full_scale
 //	STAGE.KNOB        a knob's rotation, 0…1
-//	STAGE.REF         a part's value (or a device's model name)
-//	STAGE.REF.PARAM   a part's parameter (hfe, is, br, n, rs, taper, …)
+//	STAGE.REF         a part's value (a device's model name, a switch's
+//	                  position by name or by place from 1)
+//	STAGE.REF.PARAM   a part's parameter (hfe, is, br, n, rs, taper,
+//	                  early_voltage, idss, gbw, coupling, w2_turns, …)
 //	power.REF …       the same for the [power] table's supply network
 //
 // Every value goes through its quantity's parser in package models, so it

@@ -126,6 +126,8 @@ func clonePart(p *Part) *Part {
 	for k, v := range p.Params {
 		q.Params[k] = v
 	}
+	q.Windings = append([]Winding(nil), p.Windings...)
+	q.Positions = append([]Position(nil), p.Positions...) // read-only after parsing
 	return &q
 }
 

@@ -130,13 +130,12 @@ func (w *Wiring) Node(stage, pin string) string {
 	return stage + "." + pin
 }
 
-// internalName is the name Build gives a node inside a part (a diode's
-// junction behind its series resistance): "STAGE.REF.what".
-func internalName(stage, ref, what string) string { return stage + "." + ref + "." + what }
-
-// InternalNode tells the nodes Build adds inside a part ("STAGE.REF.x")
-// from a stage's own nodes ("STAGE.node") and the shared ones.
-func InternalNode(name string) bool { return strings.Count(name, ".") >= 2 }
+// InternalNode tells the nodes Build adds inside a part
+// ("STAGE.REF#role", models.InternalNode: a diode's junction behind its
+// series resistance, a transistor's base behind its base resistance, an
+// op-amp's gain node) from a stage's own nodes ("STAGE.node") and the
+// shared ones. A chain file cannot write the mark.
+func InternalNode(name string) bool { return models.IsInternal(name) }
 
 // ErrNoNode is the sentinel of a node name that names no node.
 var ErrNoNode = errors.New("no such node")

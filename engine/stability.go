@@ -3,6 +3,7 @@ package engine
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"renderchain/dsp/mna"
 	"renderchain/models"
@@ -37,22 +38,37 @@ func StabilityWarning(st *mna.Stability) string {
 	if st == nil || len(st.Unstable) == 0 {
 		return ""
 	}
-	s := st.Unstable[0] // the least damped first
-	grow := models.FormatValue(-mna.PoleTimeConstant(s), "s")
-	more := ""
-	if n := len(st.Unstable) - 1; n > 0 {
-		more = fmt.Sprintf(" (and %d more unstable pole%s)", n, map[bool]string{true: "", false: "s"}[n == 1])
-	}
-	if f := mna.PoleHz(s); f > 0 && imag(s) != 0 {
+	// Every growing pair is named (a build can motorboat and ring at a
+	// high frequency at once); the growth quoted is the fastest one's.
+	var tones []string
+	latches := 0
+	for _, s := range st.Unstable {
+		f := mna.PoleHz(s)
+		if f == 0 || imag(s) == 0 {
+			latches++
+			continue
+		}
 		name := "a tone with no signal in"
 		if f < Motorboating {
 			name = "motorboating"
 		}
-		return fmt.Sprintf("self-oscillates near %s (%s): linearised at its idle point the circuit has a pole pair growing e-fold every %s%s, "+
-			"so it never rests there; every figure taken with a signal includes the oscillation", formatHz(f), name, grow, more)
+		tones = append(tones, fmt.Sprintf("near %s (%s)", formatHz(f), name))
 	}
-	return fmt.Sprintf("latches: the idle point found is unstable (a real pole growing e-fold every %s%s), so the circuit runs "+
-		"away from it to another state; figures taken at this idle point do not describe the build", grow, more)
+	grow := models.FormatValue(-mna.PoleTimeConstant(st.Unstable[0]), "s")
+	if len(tones) > 0 {
+		growth := "a pole pair growing e-fold every " + grow
+		if len(tones) > 1 {
+			growth = fmt.Sprintf("%d pole pairs growing, the fastest e-fold every %s", len(tones), grow)
+		}
+		msg := fmt.Sprintf("self-oscillates %s: linearised at its idle point the circuit has %s, "+
+			"so it never rests there; every figure taken with a signal includes the oscillation", strings.Join(tones, " and "), growth)
+		if latches > 0 {
+			msg += "; it also has a growing real pole, so it may latch"
+		}
+		return msg
+	}
+	return fmt.Sprintf("latches: the idle point found is unstable (a real pole growing e-fold every %s), so the circuit runs "+
+		"away from it to another state; figures taken at this idle point do not describe the build", grow)
 }
 
 // formatHz writes a frequency with three significant figures.

@@ -66,6 +66,25 @@ func TestStabilityWarning(t *testing.T) {
 	}
 }
 
+// With the germanium preset's junction capacitances the same loop rings at
+// a high frequency as well: the warning names both growing pairs, the
+// fastest-growing first, each with its frequency from the pole analysis.
+func TestStabilityWarningNamesEveryPair(t *testing.T) {
+	ch, err := chains.Load("../chains/testdata/ge-cascade-loop-charged.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := prepared(t, ch)
+	if len(p.Stability.Unstable) != 2 {
+		t.Fatalf("unstable poles %v; want two pairs", p.Stability.Unstable)
+	}
+	hf, lf := mna.PoleHz(p.Stability.Unstable[0]), mna.PoleHz(p.Stability.Unstable[1])
+	want := "self-oscillates near " + formatHz(hf) + " (a tone with no signal in) and near " + formatHz(lf) + " (motorboating): "
+	if hf < 20e3 || lf >= Motorboating || !strings.HasPrefix(p.Warnings[0], want) {
+		t.Errorf("%q; want it to start %q (pairs at %g and %g Hz)", p.Warnings[0], want, hf, lf)
+	}
+}
+
 func parse(t testing.TB, src string) *chains.Chain {
 	t.Helper()
 	ch, err := chains.Parse("t.toml", src)

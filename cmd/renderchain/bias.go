@@ -228,6 +228,7 @@ func biasPrint(w io.Writer, b *bias.Bias, internal bool) {
 		}
 		tw.Flush()
 	}
+	biasPrintFETsAndOpAmps(w, b)
 	fmt.Fprintf(w, "\nsupply delivers %s (%s)\n", amps(b.SupplyCurrent), watts(b.SupplyPower))
 	if hasTiny(b) {
 		fmt.Fprintf(w, "(currents under %s and powers under %s print as 0; the JSON has every figure)\n",

@@ -175,12 +175,13 @@ type Example struct {
 	Circuit *models.Circuit
 }
 
-// Examples parses and builds every example chain (demo, germanium,
-// fuzz-only).
+// Examples parses and builds every example chain (chains.ExampleNames:
+// demo, germanium, fuzz-only and the device examples under
+// chains/examples).
 func Examples(t testing.TB) []Example {
 	t.Helper()
 	var out []Example
-	for _, name := range []string{"demo", "germanium", "fuzz-only"} {
+	for _, name := range chains.ExampleNames() {
 		ch, err := chains.Example(name)
 		if err != nil {
 			t.Fatal(err)
