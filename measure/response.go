@@ -62,6 +62,9 @@ type ResponseReport struct {
 	Reference string     `json:"reference"` // "source" (EMF) or a node name
 	Swept     *SweptInfo `json:"swept,omitempty"`
 	Curves    []Curve    `json:"curves"`
+	// Knobs are the knob positions of the chain the variants start from
+	// (Knobs), for the figure's title.
+	Knobs []string `json:"-"`
 }
 
 // checkFreqs bounds every frequency to [MinFrequency, limit).
@@ -142,7 +145,8 @@ func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freq
 	if len(variants) == 0 {
 		variants = []Variant{{}}
 	}
-	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "small-signal", Probe: probeName(opt.Probe), Reference: refName(opt.Ref)}
+	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "small-signal", Probe: probeName(opt.Probe), Reference: refName(opt.Ref),
+		Knobs: Knobs(ch)}
 	for _, v := range variants {
 		if err := ctx.Err(); err != nil {
 			return nil, err
@@ -161,7 +165,7 @@ func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freq
 }
 
 // curveLabel names a variant: its varying settings, else every override,
-// else "as set" (the chain as written).
+// else "as written" (the chain as the file has it).
 func curveLabel(v Variant) string {
 	switch {
 	case v.Label != "":
@@ -169,7 +173,7 @@ func curveLabel(v Variant) string {
 	case len(v.Sets) > 0:
 		return strings.Join(v.Sets, " ")
 	}
-	return "as set"
+	return "as written"
 }
 
 func probeName(p string) string {

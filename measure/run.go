@@ -32,6 +32,9 @@ type Report struct {
 	ChainFile    string    `json:"chain_file"`
 	Sweep        *Sweep    `json:"sweep,omitempty"`
 	Measurements []*Result `json:"measurements"`
+	// Knobs are the knob positions of the chain the variants start from
+	// (Knobs), for the figures' titles.
+	Knobs []string `json:"-"`
 }
 
 type job struct {
@@ -102,7 +105,7 @@ func Run(ctx context.Context, ch *chains.Chain, p Plan) (*Report, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Report{Chain: ch.Name, ChainFile: ch.File, Sweep: p.Sweep, Measurements: results}, nil
+	return &Report{Chain: ch.Name, ChainFile: ch.File, Sweep: p.Sweep, Measurements: results, Knobs: Knobs(ch)}, nil
 }
 
 // run measures one job: the variant, the sweep step's override or level.
