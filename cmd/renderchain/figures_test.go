@@ -1,0 +1,130 @@
+package main
+
+import (
+	"encoding/json"
+	"encoding/xml"
+	"image/png"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"renderchain/plotting"
+)
+
+// pngWidth opens a PNG file and returns its width in pixels.
+func pngWidth(t *testing.T, path string) int {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	img, err := png.Decode(f)
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	return img.Bounds().Dx()
+}
+
+// cmWide is the pixel width of a figure cm centimetres wide at
+// plotting.DPI (120 pixels per inch, 2.54 cm to the inch).
+func cmWide(cm float64) float64 { return cm / 2.54 * plotting.DPI }
+
+// measure --plot writes the measurement figure and one scope view per
+// measurement beside it, named on stderr; PNG files decode at the
+// figures' widths (18 cm, and 22 cm for the scope view, to a pixel). A
+// run of more measurements than scope views are drawn for says so and
+// writes none.
+func TestMeasurePlotFiles(t *testing.T) {
+	chain := measTestChain(t)
+	dir := t.TempDir()
+	plot := filepath.Join(dir, "m.png")
+	code, _, errs := capture(t, "measure", "--chain", chain, "--amplitude", "300mV", "--set", "clip.R1=10k,22k", "--plot", plot)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for path, cm := range map[string]float64{plot: 18, filepath.Join(dir, "m-scope-1.png"): 22, filepath.Join(dir, "m-scope-2.png"): 22} {
+		if w := pngWidth(t, path); math.Abs(float64(w)-cmWide(cm)) > 1 {
+			t.Errorf("%s is %d px wide, want %.0f", path, w, cmWide(cm))
+		}
+		if !strings.Contains(errs, "plot: "+path) {
+			t.Errorf("stderr does not name %s:\n%s", path, errs)
+		}
+	}
+	if !strings.Contains(errs, "scope view, clip.R1=22k") {
+		t.Errorf("stderr does not say which condition a view shows:\n%s", errs)
+	}
+	// SVG, one measurement: FILE-scope.svg, both well-formed.
+	svg := filepath.Join(dir, "one.svg")
+	if code, _, errs := capture(t, "measure", "--chain", chain, "--plot", svg, "--quiet"); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, p := range []string{svg, filepath.Join(dir, "one-scope.svg")} {
+		b, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if probs := plotting.SVGProblems(b); len(probs) > 0 || xml.Unmarshal(b, new(struct{})) != nil {
+			t.Errorf("%s: %q", p, probs)
+		}
+	}
+	// 17 sweep steps: more than maxScopeViews.
+	sweep := filepath.Join(dir, "sweep.png")
+	code, _, errs = capture(t, "measure", "--chain", chain, "--sweep-level", "10mV..1V", "--steps", "17", "--plot", sweep)
+	if code != 0 || !strings.Contains(errs, "no scope views") {
+		t.Errorf("long sweep: exit %d, stderr %q", code, errs)
+	}
+	if m, _ := filepath.Glob(filepath.Join(dir, "sweep-scope*")); len(m) != 0 || pngWidth(t, sweep) == 0 {
+		t.Errorf("scope views written for a long sweep: %v", m)
+	}
+}
+
+// response draws on 48 points a decade unless told otherwise: 146 from
+// 20 Hz to 20 kHz, both ends included; --group-delay adds its panel to
+// the figure and needs --plot.
+func TestResponsePlotGrid(t *testing.T) {
+	chain := measTestChain(t)
+	dir := t.TempDir()
+	code, out, errs := capture(t, "response", "--chain", chain, "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var rep struct {
+		Curves []struct {
+			Points []struct{ Hz float64 } `json:"points"`
+		} `json:"curves"`
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+	pts := rep.Curves[0].Points
+	if len(pts) != 146 || pts[0].Hz != 20 || math.Abs(pts[len(pts)-1].Hz-20000) > 1e-9 {
+		t.Fatalf("default grid: %d points from %g to %g Hz, want 146 from 20 Hz to 20 kHz", len(pts), pts[0].Hz, pts[len(pts)-1].Hz)
+	}
+	for i := 1; i < len(pts); i++ {
+		// No step wider than a 48th of a decade (1e-12 for rounding).
+		if r := pts[i].Hz / pts[i-1].Hz; r > math.Pow(10, 1.0/48)*(1+1e-12) {
+			t.Errorf("step %d: ratio %.6f", i, r)
+		}
+	}
+	svg := filepath.Join(dir, "r.svg")
+	code, _, errs = capture(t, "response", "--chain", chain, "--set", "rc.C1=10n,22n", "--plot", svg, "--group-delay", "--quiet")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	b, err := os.ReadFile(svg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, w := range []string{"Group delay", "Phase (unwrapped)", "rc.C1=22n", "bench test chain"} {
+		if !strings.Contains(string(b), w) {
+			t.Errorf("figure lacks %q", w)
+		}
+	}
+	code, _, errs = capture(t, "response", "--chain", chain, "--group-delay", "--quiet")
+	if msg := strings.TrimSpace(errs); code != 2 || !strings.Contains(msg, "--plot") || strings.Contains(msg, "\n") {
+		t.Errorf("--group-delay without --plot: exit %d, %q", code, msg)
+	}
+}
