@@ -37,7 +37,7 @@ func checkPlotFlag(c *cli.Context) (string, error) {
 // rename). If a drawing fails nothing is written; if a write fails, the
 // figures this call already wrote are removed. Unless quiet, each file
 // written is named on stderr with what it shows.
-func saveFigures(c *cli.Context, files []figureFile) error {
+func saveFigures(c *cli.Context, files []figureFile, quiet bool) error {
 	bufs := make([][]byte, len(files))
 	for i, f := range files {
 		format, err := plotting.FormatOf(f.path)
@@ -58,7 +58,7 @@ func saveFigures(c *cli.Context, files []figureFile) error {
 			return fmt.Errorf("writing plot %s: %w", f.path, err)
 		}
 	}
-	if !c.Bool("quiet") {
+	if !quiet {
 		for _, f := range files {
 			fmt.Fprintf(c.App.ErrWriter, "plot: %s (%s)\n", f.path, f.what)
 		}

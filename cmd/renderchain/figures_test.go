@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"renderchain/dsp/wavio"
 	"renderchain/plotting"
 )
 
@@ -126,5 +127,64 @@ func TestResponsePlotGrid(t *testing.T) {
 	code, _, errs = capture(t, "response", "--chain", chain, "--group-delay", "--quiet")
 	if msg := strings.TrimSpace(errs); code != 2 || !strings.Contains(msg, "--plot") || strings.Contains(msg, "\n") {
 		t.Errorf("--group-delay without --plot: exit %d, %q", code, msg)
+	}
+}
+
+// analyze --plot draws the file's spectrogram, with --dry the take above
+// it; the flags may follow the file name. Mistakes are one-line usage
+// errors; a file with nothing to draw fails without leaving a picture.
+func TestAnalyzePlot(t *testing.T) {
+	dir := t.TempDir()
+	const fs = 48000
+	dry, wet, silent := filepath.Join(dir, "dry.wav"), filepath.Join(dir, "wet.wav"), filepath.Join(dir, "silent.wav")
+	x := make([]float64, fs)
+	for i := range x {
+		x[i] = 0.3 * math.Sin(2*math.Pi*220*float64(i)/fs)
+	}
+	writeTestWAV(t, dry, x)
+	for i := range x {
+		x[i] = math.Tanh(10 * x[i])
+	}
+	writeTestWAV(t, wet, x)
+	writeTestWAV(t, silent, make([]float64, fs))
+	pic := filepath.Join(dir, "sg.png")
+	code, out, errs := capture(t, "analyze", wet, "--plot", pic, "--dry", dry, "--json")
+	if code != 0 || !strings.Contains(out, `"lufs"`) || !strings.Contains(errs, "plot: "+pic+" (spectrogram, dry against wet)") {
+		t.Fatalf("exit %d, stderr %q, stdout %.200s", code, errs, out)
+	}
+	if w := pngWidth(t, pic); math.Abs(float64(w)-cmWide(18)) > 1 {
+		t.Errorf("spectrogram %d px wide", w)
+	}
+	if code, _, errs := capture(t, "analyze", "--plot="+filepath.Join(dir, "one.svg"), wet, "-q"); code != 0 || errs != "" {
+		t.Errorf("flags before the file: exit %d, %q", code, errs)
+	}
+	for _, tc := range []struct {
+		args []string
+		code int
+		want string
+	}{
+		{[]string{wet, "--dry", dry}, 2, "--plot"},
+		{[]string{wet, "--plot"}, 2, "--plot needs"},
+		{[]string{wet, "--plot", filepath.Join(dir, "x.pdf")}, 2, "x.pdf"},
+		{[]string{wet, "--colour"}, 2, "--colour"},
+		{[]string{silent, "--plot", filepath.Join(dir, "x.png")}, 1, "silent"},
+		{[]string{wet, "--plot", filepath.Join(dir, "x.png"), "--dry", filepath.Join(dir, "none.wav")}, 1, "none.wav"},
+	} {
+		code, _, errs := capture(t, append([]string{"analyze"}, tc.args...)...)
+		msg := strings.TrimSpace(errs)
+		if code != tc.code || !strings.Contains(msg, tc.want) || strings.Contains(msg, "\n") {
+			t.Errorf("analyze %v: exit %d, %q; want exit %d naming %s", tc.args, code, msg, tc.code, tc.want)
+		}
+	}
+	if m, _ := filepath.Glob(filepath.Join(dir, "x.*")); len(m) != 0 {
+		t.Errorf("failed runs left %v", m)
+	}
+}
+
+// writeTestWAV writes mono 24-bit samples at 48 kHz.
+func writeTestWAV(t *testing.T, path string, x []float64) {
+	t.Helper()
+	if err := wavio.WriteFile(path, wavio.Format{SampleRate: 48000, Channels: 1, BitDepth: 24}, x); err != nil {
+		t.Fatal(err)
 	}
 }

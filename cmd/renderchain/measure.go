@@ -96,7 +96,7 @@ func saveMeasureFigures(c *cli.Context, rep *measure.Report, path string, count 
 		}
 		files = append(files, figureFile{path: siblingPath(path, "scope", i, len(scopes)), what: "scope view, " + name, fig: f})
 	}
-	if err := saveFigures(c, files); err != nil {
+	if err := saveFigures(c, files, c.Bool("quiet")); err != nil {
 		return err
 	}
 	if count > maxScopeViews && !c.Bool("quiet") {

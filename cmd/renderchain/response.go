@@ -117,7 +117,7 @@ func runResponse(c *cli.Context) error {
 		if c.Bool("group-delay") {
 			what += ", group delay"
 		}
-		if err := saveFigures(c, []figureFile{{path: plotPath, what: what, fig: fig}}); err != nil {
+		if err := saveFigures(c, []figureFile{{path: plotPath, what: what, fig: fig}}, c.Bool("quiet")); err != nil {
 			return err
 		}
 	}
