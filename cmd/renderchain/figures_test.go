@@ -188,3 +188,60 @@ func writeTestWAV(t *testing.T, path string, x []float64) {
 		t.Fatal(err)
 	}
 }
+
+// ab draws its pictures by default (fig-*.png at the figures' widths,
+// listed in ab.json and named in the summary), none with --no-pictures;
+// the test sine's flags are checked before any work, one line each.
+func TestABPictures(t *testing.T) {
+	dir := t.TempDir()
+	dry := abDry(t, dir)
+	out := filepath.Join(dir, "set")
+	base := []string{"ab", "--chain", "../../chains/fuzz-only.toml", "--in", dry, "--variant", "as built:",
+		"--variant", "more fuzz: fuzz.fuzz=1", "--oversample", "1", "--segment", "0"}
+	code, _, errs := capture(t, append(base, "--outdir", out, "--sine-level", "20mVpp")...)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	b, err := os.ReadFile(filepath.Join(out, "ab.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m struct {
+		Pictures []struct{ File string } `json:"pictures"`
+	}
+	if err := json.Unmarshal(b, &m); err != nil || len(m.Pictures) != 4 {
+		t.Fatalf("ab.json pictures: %v %v", m.Pictures, err)
+	}
+	for _, p := range m.Pictures {
+		if w := pngWidth(t, filepath.Join(out, p.File)); math.Abs(float64(w)-cmWide(18)) > 1 {
+			t.Errorf("%s is %d px wide", p.File, w)
+		}
+		if !strings.Contains(errs, p.File) {
+			t.Errorf("summary does not name %s", p.File)
+		}
+	}
+	if code, _, errs := capture(t, append(base, "--outdir", filepath.Join(dir, "none"), "--no-pictures", "-q")...); code != 0 {
+		t.Fatalf("--no-pictures: exit %d: %s", code, errs)
+	}
+	if m, _ := filepath.Glob(filepath.Join(dir, "none", "fig-*")); len(m) != 0 {
+		t.Errorf("--no-pictures wrote %v", m)
+	}
+	for _, tc := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--sine-freq", "30k"}, "--sine-freq"},
+		{[]string{"--sine-level", "0"}, "--sine-level"},
+		{[]string{"--sine-freq", "1k", "--no-pictures"}, "--no-pictures"},
+		{[]string{"--sine-level", "1V", "--blind", "--seed", "2"}, "--blind"},
+	} {
+		code, _, errs := capture(t, append(append(base, "--outdir", filepath.Join(dir, "bad"), "-q"), tc.args...)...)
+		msg := strings.TrimSpace(errs)
+		if code != exitUsage || !strings.Contains(msg, tc.want) || strings.Contains(msg, "\n") {
+			t.Errorf("ab %v: exit %d, %q; want exit 2 naming %s", tc.args, code, msg, tc.want)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, "bad")); !os.IsNotExist(err) {
+		t.Error("a refused set left its folder")
+	}
+}
