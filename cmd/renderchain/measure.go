@@ -16,7 +16,7 @@ var (
 	rateFlag       = &cli.Float64Flag{Name: "rate", Value: measure.DefaultSampleRate, Usage: "base sample rate in Hz (the circuit runs at rate × oversample)"}
 	oversampleFlag = &cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16 (default: the chain's, else 4)"}
 	probeFlag      = &cli.StringFlag{Name: "probe", Usage: "measure at `NODE` instead of the output: in, out, v+, STAGE.NODE (fuzz.c1), STAGE.in, STAGE.out"}
-	plotFlag       = &cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg (measure adds scope views beside it, FILE-scope….png)"}
+	plotFlag       = &cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg"}
 	csvFlag        = &cli.BoolFlag{Name: "csv", Usage: "print CSV instead of a table"}
 	familySetFlag  = &cli.StringSliceFlag{Name: "set", Usage: "override `KEY=VALUE` (stage.knob=0.3, stage.REF=22n, stage.REF.hfe=120, supply=8.5V, …); a comma list (tone.tone=0,0.5,1) gives one result per value (repeatable)"}
 )
@@ -55,7 +55,7 @@ func measureCommand() *cli.Command {
 			&cli.DurationFlag{Name: "record", Value: 1e8, Usage: "shortest analysed record (a whole number of cycles)"},
 			jsonFlag,
 			csvFlag,
-			plotFlag,
+			&cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg, and a scope view of each measurement beside it (FILE-scope.png, FILE-scope-01.png …; up to 16)"},
 			workersFlag,
 			quietFlag,
 		},
