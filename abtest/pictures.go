@@ -4,12 +4,12 @@ import (
 	"bytes"
 	"context"
 	"fmt"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"slices"
 
+	"renderchain/analyze"
 	"renderchain/chains"
 	"renderchain/dsp/spectrum"
 	"renderchain/dsp/wavio"
@@ -174,13 +174,13 @@ func loudestStart(path string, window, hop float64) (int64, error) {
 		return 0, err
 	}
 	defer f.Close()
-	nc, fs := f.Format().Channels, float64(f.Format().SampleRate)
+	fs := float64(f.Format().SampleRate)
 	step := max(int(math.Round(hop*fs)), 1)
 	per := max(int(math.Round(window/hop)), 1)
 	var blocks []float64 // energy of each step
 	var acc float64
 	var inBlock int
-	err = eachMono(f, nc, func(x []float64) {
+	err = analyze.StreamMono(context.Background(), f, func(x []float64) error {
 		for _, v := range x {
 			acc += v * v
 			if inBlock++; inBlock == step {
@@ -188,6 +188,7 @@ func loudestStart(path string, window, hop float64) (int64, error) {
 				acc, inBlock = 0, 0
 			}
 		}
+		return nil
 	})
 	if err != nil || len(blocks) < per {
 		return 0, err
@@ -205,33 +206,6 @@ func loudestStart(path string, window, hop float64) (int64, error) {
 	return int64(bestAt) * int64(step), nil
 }
 
-// eachMono streams a WAV file's channel mean to fn in blocks.
-func eachMono(f *wavio.File, nc int, fn func([]float64)) error {
-	const block = 4096
-	buf := make([]float64, block*nc)
-	mono := make([]float64, block)
-	for {
-		k, rerr := f.Read(buf)
-		if k > 0 {
-			frames := k / nc
-			for i := range frames {
-				s := 0.0
-				for c := range nc {
-					s += buf[i*nc+c]
-				}
-				mono[i] = s / float64(nc)
-			}
-			fn(mono[:frames])
-		}
-		if rerr == io.EOF {
-			return nil
-		}
-		if rerr != nil {
-			return rerr
-		}
-	}
-}
-
 // readClip reads a written clip's channel mean once: frames first …
 // first+n−1 of it, and its long-term third-octave spectrum.
 func readClip(ctx context.Context, path string, first int64, n int) ([]float64, []spectrum.Band, error) {
@@ -246,24 +220,15 @@ func readClip(ctx context.Context, path string, first int64, n int) ([]float64, 
 	}
 	wave := make([]float64, 0, n)
 	var pos int64
-	var werr error
-	err = eachMono(f, f.Format().Channels, func(x []float64) {
-		if werr == nil {
-			werr = ltas.Write(x)
-		}
+	err = analyze.StreamMono(ctx, f, func(x []float64) error {
 		for i, v := range x {
 			if k := pos + int64(i); k >= first && k < first+int64(n) {
 				wave = append(wave, v)
 			}
 		}
 		pos += int64(len(x))
+		return ltas.Write(x)
 	})
-	if err == nil {
-		err = werr
-	}
-	if err == nil {
-		err = ctx.Err()
-	}
 	if ltas.Frames() == 0 {
 		return wave, nil, err
 	}

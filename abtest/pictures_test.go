@@ -14,32 +14,19 @@ import (
 	"testing"
 
 	"renderchain/dsp/spectrum"
+	"renderchain/internal/testchains"
 	"renderchain/measure"
 	"renderchain/models"
 	"renderchain/plotting"
 )
 
-// rcChainFile writes a first-order RC low-pass (10 kΩ, 10 nF, corner
-// 1/(2π·RC) = 1591.5 Hz) as a chain file: a linear variant whose
-// response has a closed form.
+// rcChainFile writes the shared first-order RC low-pass test chain
+// (testchains.RCLowpass: 10 kΩ, 22 nF, corner 1/(2π·RC) = 723 Hz) as a
+// chain file: a linear variant whose response has a closed form.
 func rcChainFile(t *testing.T, dir string) string {
 	t.Helper()
 	p := filepath.Join(dir, "rc.toml")
-	const src = `name = "RC low-pass"
-supply = "9V"
-[input]
-peak = "1V"
-[output]
-load = "none"
-full_scale = "1V"
-[[stage]]
-id = "rc"
-parts = [
-  { ref = "R1", kind = "resistor", value = "10k", pins = ["in", "out"] },
-  { ref = "C1", kind = "capacitor", value = "10n", pins = ["out", "gnd"] },
-]
-`
-	if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+	if err := os.WriteFile(p, []byte(testchains.RCLowpass), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	return p
@@ -163,7 +150,7 @@ func TestPicturesAreTheAnalyses(t *testing.T) {
 	// The RC variant against its closed form.
 	worst, worstDeg := 0.0, 0.0
 	for _, p := range d.response[1] {
-		h := 1 / complex(1, 2*math.Pi*p.Hz*10e3*10e-9)
+		h := 1 / complex(1, 2*math.Pi*p.Hz*10e3*22e-9)
 		worst = math.Max(worst, math.Abs(float64(p.DB)-20*math.Log10(cmplx.Abs(h))))
 		worstDeg = math.Max(worstDeg, math.Abs(float64(p.Deg)-cmplx.Phase(h)*180/math.Pi))
 	}

@@ -38,34 +38,14 @@ func Spectrogram(ctx context.Context, path string) (*spectrum.Spectrogram, error
 		return nil, err
 	}
 	defer f.Close()
-	fm := f.Format()
-	nc, fs := fm.Channels, float64(fm.SampleRate)
+	fs := float64(f.Format().SampleRate)
 	frame := spectrum.DefaultSTFTFrame(fs)
 	st, err := spectrum.NewSTFT(fs, frame, spectrum.HopFor(int(f.Frames()), frame, MaxSpectrogramFrames))
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
-	const block = 4096
-	buf := make([]float64, block*nc)
-	mono := make([]float64, block)
-	for {
-		if err := ctx.Err(); err != nil {
-			return nil, err
-		}
-		k, rerr := f.Read(buf)
-		if k > 0 {
-			frames := k / nc
-			downmix(mono[:frames], buf[:k], nc)
-			if err := st.Write(mono[:frames]); err != nil {
-				return nil, fmt.Errorf("%s: %w", path, err)
-			}
-		}
-		if rerr == io.EOF {
-			break
-		}
-		if rerr != nil {
-			return nil, rerr
-		}
+	if err := StreamMono(ctx, f, st.Write); err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
 	}
 	s := st.Spectrogram()
 	switch {
@@ -75,6 +55,35 @@ func Spectrogram(ctx context.Context, path string) (*spectrum.Spectrogram, error
 		return nil, fmt.Errorf("%s: %w: the file is silent", path, ErrNothingToDraw)
 	}
 	return s, nil
+}
+
+// StreamMono reads the rest of a WAV file and hands its channel mean to
+// fn in blocks of at most 4096 frames (the slice is reused); it stops at
+// the end of the file, at fn's first error, or when ctx is done.
+func StreamMono(ctx context.Context, f *wavio.File, fn func(mono []float64) error) error {
+	const block = 4096
+	nc := f.Format().Channels
+	buf := make([]float64, block*nc)
+	mono := make([]float64, block)
+	for {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		k, rerr := f.Read(buf)
+		if k > 0 {
+			frames := k / nc
+			downmix(mono[:frames], buf[:k], nc)
+			if err := fn(mono[:frames]); err != nil {
+				return err
+			}
+		}
+		if rerr == io.EOF {
+			return nil
+		}
+		if rerr != nil {
+			return rerr
+		}
+	}
 }
 
 // SpectrogramFigure draws the spectrogram of a file (dry empty), or of a

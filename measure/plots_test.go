@@ -245,35 +245,18 @@ func TestTitleSettings(t *testing.T) {
 	}
 }
 
-// rcLadder is three 10 kΩ / 10 nF low-pass sections behind ideal buffers:
-// H = (1/(1 + jωRC))³, phase −3·atan(ωRC), reaching −270°.
-const rcLadder = `name = "three buffered RC sections"
-[input]
-peak = "1V"
-[output]
-load = "none"
-full_scale = "1V"
-[[stage]]
-id = "a"
-parts = [
-  { ref = "R1", kind = "resistor", value = "10k", pins = ["in", "out"] },
-  { ref = "C1", kind = "capacitor", value = "10n", pins = ["out", "gnd"] },
-]
-[[stage]]
-id = "b"
-buffer = true
-parts = [
-  { ref = "R1", kind = "resistor", value = "10k", pins = ["in", "out"] },
-  { ref = "C1", kind = "capacitor", value = "10n", pins = ["out", "gnd"] },
-]
-[[stage]]
-id = "c"
-buffer = true
-parts = [
-  { ref = "R1", kind = "resistor", value = "10k", pins = ["in", "out"] },
-  { ref = "C1", kind = "capacitor", value = "10n", pins = ["out", "gnd"] },
-]
-`
+// rcLadder is three 10 kΩ / 10 nF low-pass sections, the second and
+// third behind ideal buffers: H = (1/(1 + jωRC))³, phase −3·atan(ωRC),
+// reaching −270°.
+func rcLadder() string {
+	src := "name = \"three buffered RC sections\"\n[input]\npeak = \"1V\"\n[output]\nload = \"none\"\nfull_scale = \"1V\"\n"
+	for i, id := range []string{"a", "b", "c"} {
+		src += fmt.Sprintf("[[stage]]\nid = %q\nbuffer = %v\nparts = [\n", id, i > 0) +
+			"  { ref = \"R1\", kind = \"resistor\", value = \"10k\", pins = [\"in\", \"out\"] },\n" +
+			"  { ref = \"C1\", kind = \"capacitor\", value = \"10n\", pins = [\"out\", \"gnd\"] },\n]\n"
+	}
+	return src
+}
 
 // The response figure of three buffered RC sections on the default grid:
 // gain as computed; phase unwrapped through −180° to the closed form
@@ -284,7 +267,7 @@ parts = [
 // is reached at the corner; 1 % more covers the next, O(h⁴), term
 // (h² = 0.0023).
 func TestResponseFigureUnwrapsAndDelays(t *testing.T) {
-	ch, err := chains.Parse("ladder.toml", rcLadder)
+	ch, err := chains.Parse("ladder.toml", rcLadder())
 	if err != nil {
 		t.Fatal(err)
 	}
