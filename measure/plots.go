@@ -13,6 +13,7 @@ import (
 	"renderchain/dsp/spectrum"
 	"renderchain/models"
 	"renderchain/plotting"
+	"renderchain/report"
 )
 
 // DisplayFloorDB is the lowest level, in dB relative to the fundamental
@@ -26,6 +27,14 @@ import (
 // Sweep curves below the floor are drawn on it, bars below it are left
 // out, and the panel says so.
 const DisplayFloorDB = -140
+
+// SpectrumFloorDBV is the lowest level the spectrum panel reaches, in
+// dBV: 100 pV RMS, below the thermal noise of any resistor in a bin of
+// the analysis (4kTRB: 1 kΩ in 10 Hz at 25 °C is 13 nV, −158 dBV;
+// Johnson–Nyquist, a textbook formula). Lower bins are rounding residue
+// of the simulation; a probe whose whole spectrum lies below (a supply
+// rail) shows as having no signal.
+const SpectrumFloorDBV = -200
 
 // ErrNothingToPlot reports a report without measurements or curves.
 var ErrNothingToPlot = errors.New("measure: nothing to plot")
@@ -169,6 +178,9 @@ func (r *Report) Figure() (*plotting.Figure, error) {
 	several := len(r.Measurements) > 1
 	for i, m := range r.Measurements {
 		label := names[i] + fmt.Sprintf(" (THD_F %.3g %%)", m.THDPercent)
+		if !report.Finite(m.THDPercent) {
+			label = names[i] + " (no signal at the probe)"
+		}
 		top = math.Max(top, float64(m.Fundamental.DBV))
 		if m.Spectrum != nil {
 			ln := plotting.Line{X: m.Spectrum.Hz[1:], Y: m.Spectrum.DBV[1:], Group: i + 1}
@@ -192,9 +204,12 @@ func (r *Report) Figure() (*plotting.Figure, error) {
 		spec.Lines = append(spec.Lines, plotting.Line{X: hx, Y: hy, NoLine: true, Group: i + 1})
 		bars.Bars = append(bars.Bars, plotting.BarGroup{Label: label, Values: vals, Style: i + 1})
 	}
-	if !math.IsInf(top, 0) && !math.IsNaN(top) {
+	if report.Finite(top) && top > SpectrumFloorDBV+10 {
 		spec.Y.Max = 10 * math.Ceil(top/10+0.2)
-		spec.Y.Min = spec.Y.Max + DisplayFloorDB
+		spec.Y.Min = math.Max(spec.Y.Max+DisplayFloorDB, SpectrumFloorDBV)
+	} else {
+		spec.Y.Min, spec.Y.Max = SpectrumFloorDBV, SpectrumFloorDBV+100
+		spec.Title += fmt.Sprintf(" (no signal above %s dBV)", minus(SpectrumFloorDBV))
 	}
 	panels := []plotting.Panel{spec}
 	if len(bars.Categories) > 0 {

@@ -326,3 +326,36 @@ func TestResponseFigureUnwrapsAndDelays(t *testing.T) {
 	}
 	checkPicture(t, "response", f)
 }
+
+// A probe with no signal on it (the supply rail) is drawn as such: the
+// key says so instead of a THD of NaN, the spectrum panel sits at its
+// −200 dBV floor and says there is no signal above it, and the flat
+// scope traces draw (a range narrower than rounding once hung the tick
+// marker).
+func TestFiguresOfSilentProbe(t *testing.T) {
+	rep, err := Run(context.Background(), loadChain(t, "fuzz-si"), Plan{Freq: 1000, Amplitude: 0.1,
+		Options: Options{Probe: "v+", Spectrum: true, Scope: true}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, err := rep.Figure()
+	if err != nil {
+		t.Fatal(err)
+	}
+	spec, bars := f.Panels[0], f.Panels[1]
+	if !strings.Contains(bars.Bars[0].Label, "no signal at the probe") || !strings.Contains(spec.Title, "no signal above −200 dBV") ||
+		spec.Y.Min != SpectrumFloorDBV {
+		t.Errorf("silent probe: key %q, title %q, spectrum from %g dBV", bars.Bars[0].Label, spec.Title, spec.Y.Min)
+	}
+	scopes, err := rep.ScopeFigures()
+	if err != nil {
+		t.Fatal(err)
+	}
+	in, err := plotting.Inspect(scopes[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, p := range in.Problems() {
+		t.Error(p)
+	}
+}
