@@ -124,6 +124,16 @@ func TestResponsePlotGrid(t *testing.T) {
 			t.Errorf("figure lacks %q", w)
 		}
 	}
+	// A sparse grid draws, with a note that its phase may miss a turn;
+	// the default grid needs none.
+	code, _, errs = capture(t, "response", "--chain", chain, "--freqs", "100,1k,10k", "--plot", filepath.Join(dir, "sparse.png"))
+	if code != 0 || !strings.Contains(errs, "note: the plot's phase is unwrapped from the 3 frequencies") {
+		t.Errorf("sparse grid: exit %d, stderr %q", code, errs)
+	}
+	code, _, errs = capture(t, "response", "--chain", chain, "--plot", filepath.Join(dir, "dense.png"))
+	if code != 0 || strings.Contains(errs, "note:") {
+		t.Errorf("default grid: exit %d, stderr %q", code, errs)
+	}
 	code, _, errs = capture(t, "response", "--chain", chain, "--group-delay", "--quiet")
 	if msg := strings.TrimSpace(errs); code != 2 || !strings.Contains(msg, "--plot") || strings.Contains(msg, "\n") {
 		t.Errorf("--group-delay without --plot: exit %d, %q", code, msg)

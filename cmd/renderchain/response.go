@@ -1,9 +1,13 @@
 package main
 
 import (
+	"fmt"
+	"math"
+
 	"github.com/urfave/cli/v2"
 
 	"renderchain/chains"
+	"renderchain/dsp/spectrum"
 	"renderchain/measure"
 	"renderchain/models"
 )
@@ -120,6 +124,10 @@ func runResponse(c *cli.Context) error {
 		if err := saveFigures(c, []figureFile{{path: plotPath, what: what, fig: fig}}, c.Bool("quiet")); err != nil {
 			return err
 		}
+		if sparse(freqs) && !c.Bool("quiet") {
+			fmt.Fprintf(c.App.ErrWriter, "note: the plot's phase is unwrapped from the %d frequencies asked for, some more than a 48th of a decade apart;\n"+
+				"  where the phase turns by more than 180° between two of them the curve is 360° off: leave out --freqs and --points for the dense grid\n", len(freqs))
+		}
 	}
 	switch {
 	case c.Bool("json"):
@@ -128,6 +136,18 @@ func runResponse(c *cli.Context) error {
 		return rep.WriteCSV(c.App.Writer)
 	}
 	return rep.WriteTable(c.App.Writer)
+}
+
+// sparse tells whether a grid has a step wider than the default grid's
+// (a 48th of a decade), where an unwrapped phase may miss a turn.
+func sparse(freqs []float64) bool {
+	step := math.Pow(10, 1.0/spectrum.PointsPerDecade) * (1 + 1e-9)
+	for i := 1; i < len(freqs); i++ {
+		if freqs[i]/freqs[i-1] > step {
+			return true
+		}
+	}
+	return false
 }
 
 // responseFreqs reads --freqs, or the --from/--to/--points grid.
