@@ -3,6 +3,7 @@ package abtest
 import (
 	"bytes"
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"os"
@@ -344,6 +345,9 @@ func (b *builder) addPictures(ctx context.Context, set *Set) error {
 		}
 	}
 	d, err := computePictures(ctx, b.o, b.take, clips)
+	if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+		return errors.New("interrupted: nothing written")
+	}
 	if err != nil {
 		return err
 	}

@@ -350,3 +350,27 @@ func TestLoudestStart(t *testing.T) {
 		t.Errorf("window longer than the take: %d (%v), want 0", s, err)
 	}
 }
+
+// An interruption while the pictures are made is reported as such, like
+// one in any other step (Build then removes its workspace).
+func TestPicturesInterrupted(t *testing.T) {
+	dir := t.TempDir()
+	ch, chPath := fuzzChain(t)
+	o := Options{Chain: ch, ChainPath: chPath, Dry: makeDry(t, dir, 1.0, 1), OutDir: filepath.Join(dir, "set"), Oversample: 2,
+		TargetLUFS: DefaultTargetLUFS, CeilingDBTP: DefaultCeilingDBTP, Sequence: SequenceOptions{Off: true},
+		Pictures: PictureOptions{On: true}}
+	b, err := planSet(o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := b.workspace(); err != nil {
+		t.Fatal(err)
+	}
+	defer b.cleanup()
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	err = b.addPictures(ctx, &Set{Warnings: nil})
+	if err == nil || !strings.Contains(err.Error(), "interrupted") {
+		t.Errorf("cancelled pictures: %v", err)
+	}
+}
