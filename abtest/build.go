@@ -255,11 +255,31 @@ func (b *builder) match() (common float64, gains []float64, limited bool, err er
 		m[i] = Measured{LUFS: float64(j.before.LUFS), TruePeakDBTP: float64(j.before.TruePeakDBTP)}
 	}
 	common, gains, limited = Match(m, b.o.TargetLUFS, b.o.CeilingDBTP)
+	b.flagQuiet(gains)
 	if common < -70 {
 		return 0, nil, false, paramErr("ceiling", fmt.Sprintf("%g dBTP", b.o.CeilingDBTP),
 			fmt.Sprintf("a ceiling the clips can be matched under (they would meet at %.1f LUFS, below the −70 LUFS gate)", common))
 	}
 	return common, gains, limited, nil
+}
+
+// flagQuiet compares each variant's gain with the others'
+// (GainOverOthers) and flags one that needs more than QuieterLimitDB.
+func (b *builder) flagQuiet(gains []float64) {
+	bypass := make([]bool, len(b.jobs))
+	for i, j := range b.jobs {
+		bypass[i] = j.bypass
+	}
+	for i, over := range GainOverOthers(gains, bypass) {
+		c := &b.jobs[i].clip
+		c.GainOverOthersDB = report.Level(over)
+		c.Warnings = report.Warnings{}
+		if over > QuieterLimitDB {
+			c.Flag = MuchQuieter
+			c.Warnings.Add("%s", MuchQuieter)
+		}
+		c.Warnings.Merge(b.jobs[i].chainWarnings)
+	}
 }
 
 // writeClips is pass 2: every clip's source times its gain, written in the
@@ -295,8 +315,26 @@ func (b *builder) describe(common float64, limited bool) *Set {
 		lo, hi = math.Min(lo, float64(c.LUFS)), math.Max(hi, float64(c.LUFS))
 	}
 	set.SpreadLU = report.Level(hi - lo)
+	for _, c := range set.Variants {
+		if c.Flag != "" {
+			set.Warnings.Add("%s: %s (its match gain, %+.1f dB, is %.1f dB above the others' median; flagged above %g dB)",
+				c.Shown(), c.Flag, float64(c.GainDB), float64(c.GainOverOthersDB), QuieterLimitDB)
+		}
+	}
 	if limited {
-		set.Warnings.Add("the %.1f dBTP ceiling keeps the clips at %.2f LUFS, below the %.1f LUFS asked for", o.CeilingDBTP, common, o.TargetLUFS)
+		set.Warnings.Add("the %.1f dBTP ceiling keeps the clips at %.2f LUFS, below the %.1f LUFS asked for (the peaks of %s set it)",
+			o.CeilingDBTP, common, o.TargetLUFS, b.limiter().clip.Shown())
+	}
+	if !o.Blind {
+		// A blind set keeps these to its key: they name parts and settings.
+		var labels []string
+		var lists []report.Warnings
+		for _, j := range b.jobs {
+			if !j.bypass {
+				labels, lists = append(labels, j.clip.Label), append(lists, j.chainWarnings)
+			}
+		}
+		set.Warnings.Merge(report.Combine(labels, lists))
 	}
 	for _, j := range b.jobs {
 		if j.stats.NonConverged > 0 {
@@ -304,6 +342,18 @@ func (b *builder) describe(common float64, limited bool) *Set {
 		}
 	}
 	return set
+}
+
+// limiter returns the clip whose true peak decides a ceiling-limited
+// common loudness: the least room between its loudness and its true peak.
+func (b *builder) limiter() *job {
+	var worst *job
+	for _, j := range b.jobs {
+		if worst == nil || j.before.TruePeakDBTP-j.before.LUFS > worst.before.TruePeakDBTP-worst.before.LUFS {
+			worst = j
+		}
+	}
+	return worst
 }
 
 // addSequence writes the sequence file into the workspace.
@@ -342,7 +392,8 @@ func (b *builder) writeDescriptions(ctx context.Context, set *Set) error {
 			"load it into index.html to reveal the labels.", Set: filepath.Base(b.dir), Seed: b.o.Seed}
 		for _, c := range set.Variants {
 			key.Clips = append(key.Clips, KeyClip{Blind: c.BlindLabel, File: c.File, Label: c.Label, Bypass: c.Bypass,
-				ChainFile: c.ChainFile, Settings: c.Settings, GainDB: c.GainDB, TruePeak: c.TruePeakDBTP, Before: c.Before, LRA: c.LRA})
+				ChainFile: c.ChainFile, Settings: c.Settings, GainDB: c.GainDB, TruePeak: c.TruePeakDBTP, Before: c.Before, LRA: c.LRA,
+				Flag: c.Flag, Warnings: c.Warnings})
 		}
 		kb, err := json.MarshalIndent(key, "", "  ")
 		if err != nil {
@@ -462,7 +513,7 @@ func makeJobs(o Options) ([]*job, error) {
 		}
 		settings := append([]string{}, v.Settings...)
 		j := &job{label: v.Label, ch: ch,
-			clip: Clip{Label: v.Label, Settings: settings, Plots: []Plot{}, SupplyV: ch.Supply}}
+			clip: Clip{Label: v.Label, Settings: settings, Plots: []Plot{}, SupplyV: ch.Supply, Warnings: report.Warnings{}}}
 		if v.ChainFile != "" {
 			j.clip.ChainFile = file
 		}
@@ -473,7 +524,7 @@ func makeJobs(o Options) ([]*job, error) {
 			return nil, &LabelError{Label: o.BypassLabel, Msg: "is the bypass clip's label too: rename the variant or the bypass clip, or leave the bypass out"}
 		}
 		jobs = append(jobs, &job{label: o.BypassLabel, bypass: true,
-			clip: Clip{Label: o.BypassLabel, Bypass: true, Settings: []string{}, Plots: []Plot{}}})
+			clip: Clip{Label: o.BypassLabel, Bypass: true, Settings: []string{}, Plots: []Plot{}, Warnings: report.Warnings{}}})
 	}
 	return jobs, nil
 }

@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 
 	"renderchain/analyze"
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/dsp/wavio"
 	"renderchain/dsp/wdf"
@@ -26,6 +27,8 @@ type job struct {
 	before analyze.Levels
 	stats  wdf.Stats
 	clip   Clip
+	// chainWarnings are the variant's prepared chain's (bias.Warnings).
+	chainWarnings report.Warnings
 }
 
 // render runs the variant's chain over the dry take into a float64 WAV and
@@ -34,6 +37,12 @@ func (j *job) render(ctx context.Context, dry string, oversample int, pr *progre
 	fail := func(err error) error { return &VariantError{Label: j.label, Err: err} }
 	eng, err := engine.Prepare(j.ch, oversample)
 	if err != nil {
+		return fail(err)
+	}
+	if j.chainWarnings, err = bias.Warnings(ctx, eng); err != nil {
+		if ctx.Err() != nil {
+			return ctx.Err()
+		}
 		return fail(err)
 	}
 	in, err := wavio.Open(dry)

@@ -45,6 +45,22 @@
 // the −70 LUFS absolute gate and moved the result by more than 0.001 LU, the
 // gain is corrected and the clip rewritten (at most three times).
 //
+// # Flags and warnings
+//
+// A variant whose match needs much more gain than the others is suspect: a
+// dead build comes out quiet and the match raises it to the same loudness,
+// so it sounds like just another variant. GainOverOthers compares each
+// variant's gain with the median gain of the other variants (of the bypass,
+// for a lone variant: a fuzz is normally louder than its dry take, so the
+// bypass is otherwise left out); above QuieterLimitDB (12 dB) the clip is
+// flagged "much quieter than the others: check it" in ab.json (flag,
+// gain_over_others_db), in the set's warnings and beside its label on the
+// page. Each variant also carries its chain's warnings (bias.Warnings: the
+// build's, the stability check's with its rendered check, the operating
+// point's), joined in the set's warnings with the variant's label where
+// only some variants have them. A blind set keeps those chain warnings to
+// its key (they name parts and settings) and shows flags by neutral label.
+//
 // # Sequence file
 //
 // sequence.wav holds K = rounds × len(order) segments. With S the segment, F

@@ -28,6 +28,7 @@ type pageClip struct {
 	Settings     []string      `json:"settings,omitempty"`
 	ChainFile    string        `json:"chain_file,omitempty"`
 	Bypass       bool          `json:"bypass,omitempty"`
+	Flag         string        `json:"flag,omitempty"`
 	Plots        []Plot        `json:"plots"`
 	// Colour is the clip's colour in the set's pictures (plotting.Hex of
 	// its position), shown beside its player.
@@ -70,17 +71,15 @@ func Page(s *Set) ([]byte, error) {
 		SampleRate: s.Dry.SampleRate, Channels: s.Dry.Channels,
 		TargetLUFS: s.TargetLUFS, RequestedLUFS: s.RequestedLUFS, CeilingDBTP: s.CeilingDBTP,
 		CeilingLimited: s.CeilingLimited, Blind: s.Blind, HearingCaution: HearingCaution,
-		Sequence: s.Sequence, Warnings: s.Warnings, Pictures: s.Pictures,
+		Sequence: s.Sequence, Warnings: s.Warnings, // a blind set's name clips by their neutral labels only
+		Pictures: s.Pictures,
 	}
 	if d.Pictures == nil {
 		d.Pictures = []Plot{}
 	}
-	if s.Blind {
-		d.Warnings = nil // they name clips
-	}
 	for i := range s.Variants {
 		c := &s.Variants[i]
-		pc := pageClip{Label: c.Shown(), File: c.File, LUFS: c.LUFS, Plots: c.Plots, Colour: plotting.Hex(i)}
+		pc := pageClip{Label: c.Shown(), File: c.File, LUFS: c.LUFS, Flag: c.Flag, Plots: c.Plots, Colour: plotting.Hex(i)}
 		if !s.Blind {
 			g, l, tp := c.GainDB, c.LRA, c.TruePeakDBTP
 			pc.GainDB, pc.LRA, pc.TruePeakDBTP = &g, &l, &tp

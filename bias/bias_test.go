@@ -252,6 +252,7 @@ parts = [
   { ref = "R1", kind = "resistor", value = "10k", pins = ["v+", "a"] },
   { ref = "D1", kind = "diode", is = "2.52n", n = 1.75, rs = 10, pins = { anode = "a", cathode = "gnd" } },
   { ref = "C1", kind = "capacitor", value = "1u", pins = ["in", "a"] },
+  { ref = "C2", kind = "capacitor", value = "1u", pins = ["a", "out"] },
 ]`)
 	if err != nil {
 		t.Fatal(err)

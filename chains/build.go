@@ -6,47 +6,14 @@ import (
 	"renderchain/models"
 )
 
-// Build flattens the chain into one circuit by its Wiring: stage k's out
-// is stage k+1's in (one node, so every stage loads the one before it),
-// the signal source drives "in", the supply is an ideal source on "v+",
-// and the output load hangs on the chain's output. A stage with buffer =
-// true is fed through an ideal unity-gain buffer instead. A stage whose
-// parts never use "out" is a shunt stage: its out is its in.
+// Build flattens the chain into one circuit (see Flatten), for callers
+// that need the circuit only; its findings short of errors are dropped.
 func (ch *Chain) Build() (*models.Circuit, error) {
-	w := ch.Wiring()
-	c := models.NewCircuit(ch.Name, ch.Temperature)
-	in := c.Node("in")
-	vplus := c.Node("v+")
-	c.Input = in
-	c.Add(models.Element{Ref: "input.source", Kind: models.VoltageSourceKind, Nodes: []int{in, models.Ground}, Signal: true})
-	c.Add(models.Element{Ref: "supply", Kind: models.VoltageSourceKind, Nodes: []int{vplus, models.Ground}, Value: ch.Supply})
-	for k, st := range ch.Stages {
-		e := w.Stages[k]
-		if e.Buffered {
-			c.Add(models.Element{Ref: st.ID + ".buffer", Kind: models.BufferKind, Nodes: []int{c.Node(e.In), c.Node(e.Feed)}})
-		}
-		node := func(pin string) int {
-			if pin == "gnd" {
-				return models.Ground
-			}
-			return c.Node(w.Node(st.ID, pin))
-		}
-		for _, p := range st.Parts {
-			if err := ch.addPart(c, st, p, node); err != nil {
-				return nil, err
-			}
-		}
+	f, err := ch.Flatten()
+	if err != nil {
+		return nil, err
 	}
-	out := c.Node(w.Out)
-	c.Output = out
-	if ch.Load > 0 {
-		c.Add(models.Element{Ref: "output.load", Kind: models.ResistorKind, Nodes: []int{out, models.Ground}, Value: ch.Load})
-	}
-	if err := c.Check(); err != nil {
-		return nil, &Error{File: ch.File, Msg: err.Error()}
-	}
-	c.AddLeaks()
-	return c, nil
+	return f.Circuit, nil
 }
 
 func (st *Stage) usesPin(name string) bool {
@@ -121,16 +88,25 @@ func (ch *Chain) Clone() *Chain {
 	d := *ch
 	d.Stages = nil
 	for _, st := range ch.Stages {
-		s := *st
-		s.Knobs = map[string]float64{}
-		for k, v := range st.Knobs {
-			s.Knobs[k] = v
-		}
-		s.Parts = nil
-		for _, p := range st.Parts {
-			s.Parts = append(s.Parts, clonePart(p))
-		}
-		d.Stages = append(d.Stages, &s)
+		d.Stages = append(d.Stages, st.clone())
 	}
+	if ch.Power != nil {
+		d.Power = ch.Power.clone()
+	}
+	d.Nets = append([]string(nil), ch.Nets...)
 	return &d
+}
+
+// clone returns a deep copy of the stage.
+func (st *Stage) clone() *Stage {
+	s := *st
+	s.Knobs = map[string]float64{}
+	for k, v := range st.Knobs {
+		s.Knobs[k] = v
+	}
+	s.Parts = nil
+	for _, p := range st.Parts {
+		s.Parts = append(s.Parts, clonePart(p))
+	}
+	return &s
 }

@@ -27,7 +27,13 @@ type Chain struct {
 	Load        float64 // Ω from out to gnd; 0 for none
 	FullScale   float64 // output volts written as 0 dBFS
 	Stages      []*Stage
-	loc         *locator
+	// Nets are the node names shared by every stage besides gnd, v+, in
+	// and out, declared once by the top-level nets list (see nets.go).
+	Nets []string
+	// Power is the supply network between the ideal supply and v+, from
+	// the [power] table; nil for an ideal supply straight on v+.
+	Power *Stage
+	loc   *locator
 }
 
 // Stage is one stage of a chain, its parts resolved (template expanded and
@@ -84,6 +90,8 @@ type rawChain struct {
 	Input       rawInput   `toml:"input"`
 	Output      rawOutput  `toml:"output"`
 	Stages      []rawStage `toml:"stage"`
+	Nets        any        `toml:"nets"`
+	Power       *rawPower  `toml:"power"`
 }
 
 type rawInput struct {
@@ -109,11 +117,11 @@ type rawStage struct {
 
 // Load reads and checks a chain file.
 func Load(path string) (*Chain, error) {
-	src, err := os.ReadFile(path)
+	src, err := ReadFile(path) // bounded: limits.go
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot read chain file: " + errText(err)}
+		return nil, err
 	}
-	return Parse(filepath.Base(path), string(src))
+	return Parse(filepath.Base(path), src)
 }
 
 func errText(err error) string {
@@ -126,6 +134,9 @@ func errText(err error) string {
 
 // Parse reads a chain from TOML text; name is used in messages.
 func Parse(name, src string) (*Chain, error) {
+	if err := CheckText(name, src); err != nil { // before the parser sees it: limits.go
+		return nil, err
+	}
 	var raw rawChain
 	md, err := toml.Decode(src, &raw)
 	if err != nil {
@@ -137,12 +148,7 @@ func Parse(name, src string) (*Chain, error) {
 	}
 	loc := newLocator(src)
 	if und := undecoded(md); len(und) > 0 {
-		k := und[0]
-		line := loc.findKey(strings.Join(k[:len(k)-1], "."), k[len(k)-1])
-		if k[0] == "stage" {
-			line = 0
-		}
-		return nil, &Error{File: name, Line: line, Msg: fmt.Sprintf("unknown key %q", k.String())}
+		return nil, unknownChainKey(name, loc, und[0])
 	}
 	ch := &Chain{Name: raw.Name, File: name, Oversample: raw.Oversample, loc: loc, Source: raw.Input.Source}
 	top := func(table, key string, v any, q models.Quantity, r models.Range, def string) (float64, error) {
@@ -201,6 +207,12 @@ func Parse(name, src string) (*Chain, error) {
 	if len(raw.Stages) == 0 {
 		return nil, &Error{File: name, Msg: "no [[stage]] tables: a chain needs at least one stage"}
 	}
+	if err := ch.parseNets(raw.Nets); err != nil {
+		return nil, err
+	}
+	if err := ch.parsePower(raw.Power); err != nil {
+		return nil, err
+	}
 	seen := map[string]bool{}
 	for k, rs := range raw.Stages {
 		st, err := ch.parseStage(k, rs)
@@ -209,6 +221,9 @@ func Parse(name, src string) (*Chain, error) {
 		}
 		if seen[st.ID] {
 			return nil, &Error{File: name, Line: loc.find(k), Where: "stage " + st.ID, Msg: "duplicate stage id"}
+		}
+		if err := ch.checkStageTemplate(k, st); err != nil {
+			return nil, err
 		}
 		seen[st.ID] = true
 		ch.Stages = append(ch.Stages, st)
@@ -334,7 +349,14 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 		if len(rs.Parts) > 0 {
 			return nil, fail(ch.loc.find(k, "parts"), "a stage takes either template or parts, not both")
 		}
-		st, err := expandTemplate(rs.Template, rs.ID, knobs, rs.Values, func(needles ...string) int { return ch.loc.find(k, needles...) })
+		st, err := expandTemplate(rs.Template, rs.ID, knobs, rs.Values, func(needles ...string) int {
+			if len(needles) == 1 { // a knob or part name: the line that assigns it
+				if line := ch.loc.findAssign(k, needles[0]); line > 0 {
+					return line
+				}
+			}
+			return ch.loc.find(k, needles...)
+		})
 		if err != nil {
 			var ce *Error
 			if errors.As(err, &ce) && ce.File == "" {
@@ -342,7 +364,7 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 				if ce.Line == 0 {
 					ce.Line = ch.loc.find(k, "template")
 				}
-				ce.Where = strings.TrimPrefix(where+": "+ce.Where, ": ")
+				ce.Where = strings.TrimSuffix(where+": "+ce.Where, ": ")
 			}
 			return nil, err
 		}
@@ -459,7 +481,7 @@ func parsePart(rp map[string]any) (*Part, error) {
 		if _, ok := deviceParams[kind][key]; ok {
 			continue
 		}
-		return fail("unknown key %q for a %s", key, kind)
+		return fail("unknown key %q for a %s%s", key, kind, didYouMean(key, partKeys(kind)))
 	}
 	// Pins.
 	switch pins := rp["pins"].(type) {
@@ -579,7 +601,7 @@ func (p *Part) apply(t map[string]any, full bool) error {
 		default:
 			q, ok := deviceParams[p.Kind][key]
 			if !ok {
-				return fail("unknown key %q for a %s", key, p.Kind)
+				return fail("unknown key %q for a %s%s", key, p.Kind, didYouMean(key, partKeys(p.Kind)))
 			}
 			x, err := valueOf(v, q)
 			if err != nil {

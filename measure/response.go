@@ -6,6 +6,7 @@ import (
 	"math/cmplx"
 	"strings"
 
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/dsp/mna"
 	"renderchain/engine"
@@ -36,6 +37,9 @@ type Curve struct {
 	// reciprocal of its time window.
 	ResolutionHz float64 `json:"resolution_hz,omitempty"`
 	Points       []Point `json:"points"`
+	// Warnings are those of the variant's prepared chain (build, stability
+	// and its rendered check, operating point; bias.Warnings).
+	Warnings report.Warnings `json:"warnings"`
 }
 
 // ResponseOptions configure a response measurement.
@@ -62,6 +66,9 @@ type ResponseReport struct {
 	Reference string     `json:"reference"` // "source" (EMF) or a node name
 	Swept     *SweptInfo `json:"swept,omitempty"`
 	Curves    []Curve    `json:"curves"`
+	// Warnings joins the curves' (report.Combine: one a curve alone has
+	// names it).
+	Warnings report.Warnings `json:"warnings"`
 	// Knobs are the knob positions of the chain the variants start from
 	// (Knobs), for the figure's title.
 	Knobs []string `json:"-"`
@@ -89,36 +96,42 @@ func checkFreqs(freqs []float64, limit float64, rateText string) error {
 // its small-signal conductances, capacitors and inductors by their
 // admittances): from the source EMF (or opt.Ref) to opt.Probe.
 func SmallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, error) {
+	pts, _, err := smallSignal(ch, freqs, opt)
+	return pts, err
+}
+
+// smallSignal is SmallSignal, also returning the prepared chain.
+func smallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, *engine.Prepared, error) {
 	if opt.SampleRate == 0 {
 		opt.SampleRate = DefaultSampleRate
 	}
 	os, err := engine.Oversample(ch, opt.Oversample)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	internal := opt.SampleRate * float64(os)
 	if err := checkFreqs(freqs, internal/2, models.FormatValue(internal, "Hz")+" internal rate"); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	p, err := engine.Prepare(ch, os)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	probe, err := probeNode(p, "probe", opt.Probe)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	probes := []int{probe}
 	if opt.Ref != "" {
 		ref, err := probeNode(p, "ref", opt.Ref)
 		if err != nil {
-			return nil, err
+			return nil, nil, err
 		}
 		probes = append(probes, ref)
 	}
 	h, err := mna.AC(p.Circuit, p.DC, freqs, probes)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	pts := make([]Point, len(freqs))
 	for i, f := range freqs {
@@ -132,7 +145,7 @@ func SmallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Poin
 		}
 		pts[i] = point(f, v)
 	}
-	return pts, nil
+	return pts, p, nil
 }
 
 func point(f float64, h complex128) Point {
@@ -155,12 +168,17 @@ func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freq
 		if err != nil {
 			return nil, err
 		}
-		pts, err := SmallSignal(c, freqs, opt)
+		pts, p, err := smallSignal(c, freqs, opt)
 		if err != nil {
 			return nil, err
 		}
-		rep.Curves = append(rep.Curves, Curve{Label: curveLabel(v), Settings: v.Sets, Points: pts})
+		w, err := bias.Warnings(ctx, p)
+		if err != nil {
+			return nil, err
+		}
+		rep.Curves = append(rep.Curves, Curve{Label: curveLabel(v), Settings: v.Sets, Points: pts, Warnings: w})
 	}
+	rep.Warnings = combineCurves(rep.Curves)
 	return rep, nil
 }
 
@@ -188,4 +206,15 @@ func refName(r string) string {
 		return "source"
 	}
 	return r
+}
+
+// combineCurves joins the warnings of every curve (report.Combine, named
+// by the curves' labels).
+func combineCurves(curves []Curve) report.Warnings {
+	labels := make([]string, len(curves))
+	lists := make([]report.Warnings, len(curves))
+	for i, c := range curves {
+		labels[i], lists[i] = c.Label, c.Warnings
+	}
+	return report.Combine(labels, lists)
 }

@@ -95,12 +95,42 @@ type ValueError struct {
 	Reason   string
 }
 
+// Error quotes the value (at most errShown characters, the rest elided
+// with its size) and the reason (at most errShown+20), so that a huge
+// value (a megabyte on the command line or in a file) gives a short line.
 func (e *ValueError) Error() string {
-	msg := fmt.Sprintf("value %q is not %s %s", e.Text, e.Quantity.article(), e.Quantity)
+	msg := fmt.Sprintf("value %s is not %s %s", quoteShort(e.Text), e.Quantity.article(), e.Quantity)
 	if e.Reason != "" {
-		msg += " (" + e.Reason + ")"
+		r := e.Reason
+		if c := cutRunes(r, errShown+20); len(c) < len(r) {
+			r = c + "…"
+		}
+		msg += " (" + r + ")"
 	}
 	return msg
+}
+
+// errShown is how many characters of a value an error quotes.
+const errShown = 40
+
+// quoteShort quotes s, cut to errShown characters with its length noted.
+func quoteShort(s string) string {
+	c := cutRunes(s, errShown)
+	if len(c) == len(s) {
+		return strconv.Quote(s)
+	}
+	return strconv.Quote(c) + fmt.Sprintf("… (%d bytes)", len(s))
+}
+
+// cutRunes returns the first n characters of s (all of s if shorter).
+func cutRunes(s string, n int) string {
+	for i := range s {
+		if n == 0 {
+			return s[:i]
+		}
+		n--
+	}
+	return s
 }
 
 // ParseValue reads a value written in engineering notation and returns it in

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"time"
 
+	"renderchain/bias"
 	"renderchain/dsp/spectrum"
 	"renderchain/dsp/wavio"
 	"renderchain/engine"
@@ -107,6 +108,9 @@ func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt Fil
 		return nil, err
 	}
 	rep := newReport(p, in, out, f, of, r.Frames())
+	if rep.Warnings, err = bias.Warnings(ctx, p); err != nil {
+		return nil, err
+	}
 	start := time.Now()
 	lastProgress := time.Now()
 	prog := func(done int64) {

@@ -166,8 +166,12 @@ func printAB(w io.Writer, s *abtest.Set, dir string) {
 	}
 	fmt.Fprintf(w, "  %-*s  %9s  %7s  %11s  %s\n", width, "clip", "gain", "LUFS", "true peak", "file")
 	for _, v := range s.Variants {
-		fmt.Fprintf(w, "  %-*s  %+6.2f dB  %7.2f  %6.2f dBTP  %s\n", width, v.Shown(), float64(v.GainDB), float64(v.LUFS),
-			float64(v.TruePeakDBTP), v.File)
+		flag := ""
+		if v.Flag != "" {
+			flag = "  <- " + v.Flag
+		}
+		fmt.Fprintf(w, "  %-*s  %+6.2f dB  %7.2f  %6.2f dBTP  %s%s\n", width, v.Shown(), float64(v.GainDB), float64(v.LUFS),
+			float64(v.TruePeakDBTP), v.File, flag)
 	}
 	if q := s.Sequence; q != nil {
 		fmt.Fprintf(w, "  %s: %d × [%s], %.3f s segments from %.3f s, %.0f ms crossfades (%.2f s)\n", q.File, q.Rounds,
@@ -184,9 +188,7 @@ func printAB(w io.Writer, s *abtest.Set, dir string) {
 	if s.KeyFile != "" {
 		fmt.Fprintf(w, "  key: %s (keep it from the listener; ab.json's gain_db hints at which clip was quiet)\n", s.KeyFile)
 	}
-	for _, warn := range s.Warnings {
-		if !s.Blind {
-			fmt.Fprintln(w, "  warning: "+warn)
-		}
+	for _, warn := range s.Warnings { // a blind set's name clips by their neutral labels only
+		fmt.Fprintln(w, "  warning: "+warn)
 	}
 }
