@@ -298,13 +298,20 @@ func (d *pictureData) figures() ([]namedFigure, error) {
 		}
 	}
 	resp.Settings, harm.Settings = notes, notes
-	// Harmonics under the measurement figures' display floor are not
-	// drawn (measure.DisplayFloorDB); a variant with none above it (a
-	// linear circuit) says so in the key.
-	harm.Floor = math.Max(10*math.Floor(low/10)-10, measure.DisplayFloorDB)
+	// Harmonics under the analysis floor are not drawn (as in measure's
+	// figures and tables: measure.FigureFloorDB); a variant with none
+	// above it (a linear circuit) says so in the key.
+	var measured []*measure.Result
+	for _, r := range d.harmonics {
+		if r != nil {
+			measured = append(measured, r)
+		}
+	}
+	floor := measure.FigureFloorDB(measured)
+	harm.Floor = math.Max(10*math.Floor(low/10)-10, floor)
 	for k := range harm.Sets {
-		if !slices.ContainsFunc(harm.Sets[k].DBc, func(v float64) bool { return v >= harm.Floor }) {
-			harm.Sets[k].Label += fmt.Sprintf(" — no harmonic above %.0f dBc", harm.Floor)
+		if !slices.ContainsFunc(harm.Sets[k].DBc, func(v float64) bool { return v >= floor }) {
+			harm.Sets[k].Label += fmt.Sprintf(" — no harmonic above the %.0f dBc analysis floor", floor)
 		}
 	}
 	if len(resp.Curves) > 0 {

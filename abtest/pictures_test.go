@@ -157,7 +157,7 @@ func TestPicturesAreTheAnalyses(t *testing.T) {
 	if worst > 0.01 || worstDeg > 0.01 {
 		t.Errorf("RC variant off 1/(1+jωRC) by %.3g dB, %.3g°", worst, worstDeg)
 	}
-	// A linear variant makes no harmonics the display floor shows.
+	// A linear variant makes no harmonic above the analysis floor.
 	for _, h := range d.harmonics[1].Harmonics {
 		if float64(h.DBc) > -100 {
 			t.Errorf("RC variant H%d at %.1f dBc", h.Order, float64(h.DBc))

@@ -120,7 +120,8 @@
 //     responses dashed in their variant's colour. DefaultGrid, 48
 //     points a decade, keeps the curves smooth and the phase unwrappable.
 //
-// Levels relative to the fundamental below DisplayFloorDB (−140 dB)
+// Levels relative to the fundamental under the analysis floor
+// (FigureFloorDB: −100 dB by default, where the tables print "< floor")
 // are drawn on that floor (sweep curves) or left out (bars), and the
 // panel says so: a simulation in double precision puts the harmonics a
 // circuit does not make near −300 dBc.

@@ -16,17 +16,28 @@ import (
 	"renderchain/report"
 )
 
-// DisplayFloorDB is the lowest level, in dB relative to the fundamental
-// (harmonics, THD_F), that the measurement figures draw. A circuit
-// simulated in double precision puts the harmonics it does not make
-// (H2 of a symmetric clipper, every harmonic of a linear stage) near
-// −300 dBc, which would squeeze everything that matters into the top of
-// the axes. −140 dB lies below anything a clip can carry: the
-// quantisation noise of 24-bit PCM sits 6.02·24 + 1.76 ≈ 146 dB under a
-// full-scale sine (the textbook closed form for N-bit quantisation).
-// Sweep curves below the floor are drawn on it, bars below it are left
-// out, and the panel says so.
-const DisplayFloorDB = -140
+// FigureFloorDB returns the lowest level, in dB relative to the
+// fundamental (harmonics, THD_F), that the figures of these measurements
+// draw: their analysis floor (Result.AnalysisFloorDB, the highest of
+// them), under which the tables print "< floor" too. A circuit simulated
+// in double precision puts the harmonics it does not make (H2 of a
+// symmetric clipper, every harmonic of a linear stage) near −300 dBc,
+// which would squeeze everything that matters into the top of the axes
+// and draw residue as if it were the circuit's. Sweep curves under the
+// floor are drawn on it, bars under it are left out, and the panel says
+// so.
+func FigureFloorDB(ms []*Result) float64 {
+	floor := math.Inf(-1)
+	for _, m := range ms {
+		if v := float64(m.AnalysisFloorDB); report.Finite(v) {
+			floor = math.Max(floor, v)
+		}
+	}
+	if math.IsInf(floor, -1) {
+		return report.DB(AnalysisFloor(DefaultSettleTolerance))
+	}
+	return floor
+}
 
 // SpectrumFloorDBV is the lowest level the spectrum panel reaches, in
 // dBV: 100 pV RMS, below the thermal noise of any resistor in a bin of
@@ -170,9 +181,10 @@ func (r *Report) Figure() (*plotting.Figure, error) {
 	for h := 2; h <= maxOrder; h++ {
 		bars.Categories = append(bars.Categories, fmt.Sprintf("H%d", h))
 	}
-	bars.Floor = math.Max(10*math.Floor(low/10)-10, DisplayFloorDB)
-	if low < DisplayFloorDB {
-		bars.Title += fmt.Sprintf(" (below %s dBc: not drawn)", minus(DisplayFloorDB))
+	floor := FigureFloorDB(r.Measurements)
+	bars.Floor = math.Max(10*math.Floor(low/10)-10, floor)
+	if low < floor {
+		bars.Title += fmt.Sprintf(" (under the %s dBc analysis floor: not drawn)", minus(floor))
 	}
 	top := math.Inf(-1)
 	several := len(r.Measurements) > 1
@@ -206,10 +218,10 @@ func (r *Report) Figure() (*plotting.Figure, error) {
 	}
 	if report.Finite(top) && top > SpectrumFloorDBV+10 {
 		spec.Y.Max = 10 * math.Ceil(top/10+0.2)
-		spec.Y.Min = math.Max(spec.Y.Max+DisplayFloorDB, SpectrumFloorDBV)
+		spec.Y.Min = math.Max(spec.Y.Max-spectrumSpanDB, SpectrumFloorDBV)
 	} else {
 		spec.Y.Min, spec.Y.Max = SpectrumFloorDBV, SpectrumFloorDBV+100
-		spec.Title += fmt.Sprintf(" (no signal above %s dBV)", minus(SpectrumFloorDBV))
+		spec.Title += fmt.Sprintf(" (no signal above %s dBV)", minus(float64(SpectrumFloorDBV)))
 	}
 	panels := []plotting.Panel{spec}
 	if len(bars.Categories) > 0 {
@@ -219,14 +231,19 @@ func (r *Report) Figure() (*plotting.Figure, error) {
 	return &plotting.Figure{Title: title, Panels: panels, Key: true}, nil
 }
 
-// minus writes an integer with a true minus sign, as the axes do.
-func minus(v int) string { return strings.Replace(strconv.Itoa(v), "-", "−", 1) }
+// spectrumSpanDB is how far the spectrum panel reaches below its top: the
+// analysis floor's 100 dB under the fundamental and 40 dB more, so the
+// rate converter's residue and the circuit's own low harmonics show.
+const spectrumSpanDB = 140
 
-// floored returns v, or DisplayFloorDB when v is below it (−∞ included);
-// NaN stays NaN. It reports whether it floored.
-func floored(v float64) (float64, bool) {
-	if v < DisplayFloorDB {
-		return DisplayFloorDB, true
+// minus writes a whole number with a true minus sign, as the axes do.
+func minus(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'f', 0, 64), "-", "−", 1) }
+
+// floored returns v, or floor when v is below it (−∞ included); NaN stays
+// NaN. It reports whether it floored.
+func floored(v, floor float64) (float64, bool) {
+	if v < floor {
+		return floor, true
 	}
 	return v, false
 }
@@ -253,6 +270,7 @@ func (r *Report) sweepFigure() *plotting.Figure {
 	// Settings every step of every condition shares go into the title
 	// (the stepped knob's differ from step to step).
 	shared, _ := resultNames(r.Measurements, r.Knobs)
+	floor := FigureFloorDB(r.Measurements)
 	anyFloored := false
 	for gi, label := range labels {
 		ms := groups[label]
@@ -262,9 +280,9 @@ func (r *Report) sweepFigure() *plotting.Figure {
 			var f1, f2, f3 bool
 			xs[i] = *m.SweepValue
 			out[i] = float64(m.Fundamental.DBV)
-			thd[i], f1 = floored(float64(m.THDDB))
-			h2[i], f2 = floored(harmonicDBc(m, 2))
-			h3[i], f3 = floored(harmonicDBc(m, 3))
+			thd[i], f1 = floored(float64(m.THDDB), floor)
+			h2[i], f2 = floored(harmonicDBc(m, 2), floor)
+			h3[i], f3 = floored(harmonicDBc(m, 3), floor)
 			anyFloored = anyFloored || f1 || f2 || f3
 		}
 		suffix := ""
@@ -282,7 +300,7 @@ func (r *Report) sweepFigure() *plotting.Figure {
 			plotting.Line{Label: "H3" + suffix, X: xs, Y: h3, Dash: 2, Markers: true, Group: g})
 	}
 	if anyFloored {
-		dist.Title += fmt.Sprintf(" (values below %s dB drawn at %s dB)", minus(DisplayFloorDB), minus(DisplayFloorDB))
+		dist.Title += fmt.Sprintf(" (under the %s dB analysis floor: drawn on it)", minus(floor))
 	}
 	what := fmt.Sprintf("Level sweep: %s sine", models.FormatValue(m0.FrequencyHz, "Hz"))
 	if s.Kind == KnobSweep {

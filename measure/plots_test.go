@@ -171,9 +171,9 @@ func TestSweepFigureFloor(t *testing.T) {
 				t.Errorf("%s step %d: level %g dBV drawn, %g measured", name, i, level.Lines[0].Y[i], float64(m.Fundamental.DBV))
 			}
 			for k, v := range []float64{float64(m.THDDB), harmonicDBc(m, 2), harmonicDBc(m, 3)} {
-				want := v
-				if v < DisplayFloorDB {
-					want, floored = DisplayFloorDB, true
+				want, floor := v, float64(m.AnalysisFloorDB)
+				if v < floor {
+					want, floored = floor, true
 					below++
 				} else {
 					above++
@@ -183,7 +183,7 @@ func TestSweepFigureFloor(t *testing.T) {
 				}
 			}
 		}
-		if floored != strings.Contains(dist.Title, "drawn at −140 dB") {
+		if floored != strings.Contains(dist.Title, "under the −100 dB analysis floor: drawn on it") {
 			t.Errorf("%s: floored %v but the panel title reads %q", name, floored, dist.Title)
 		}
 		checkPicture(t, name+" sweep", f)
@@ -221,8 +221,9 @@ func TestSpectrumFigureData(t *testing.T) {
 			t.Errorf("condition %d: spectrum or line markers are not the measured ones", i)
 		}
 	}
-	if bars.Floor < DisplayFloorDB {
-		t.Errorf("bar floor %g dBc below the display floor", bars.Floor)
+	if bars.Floor < FigureFloorDB(rep.Measurements) || FigureFloorDB(rep.Measurements) != -100 {
+		t.Errorf("bar floor %g dBc below the analysis floor %g dB (−100 dB at the default settle tolerance)", bars.Floor,
+			FigureFloorDB(rep.Measurements))
 	}
 	checkPicture(t, "spectrum", f)
 }
