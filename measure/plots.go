@@ -237,7 +237,9 @@ func (r *Report) Figure() (*plotting.Figure, error) {
 const spectrumSpanDB = 140
 
 // minus writes a whole number with a true minus sign, as the axes do.
-func minus(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'f', 0, 64), "-", "−", 1) }
+func minus(v float64) string {
+	return strings.Replace(strconv.FormatFloat(v, 'f', 0, 64), "-", "−", 1)
+}
 
 // floored returns v, or floor when v is below it (−∞ included); NaN stays
 // NaN. It reports whether it floored.
