@@ -78,6 +78,9 @@ func Build(ctx context.Context, opt Options) (*Set, error) {
 	if err := b.addPlots(set); err != nil {
 		return nil, err
 	}
+	if err := b.addPictures(ctx, set); err != nil {
+		return nil, err
+	}
 	if err := b.writeDescriptions(ctx, set); err != nil {
 		return nil, err
 	}
@@ -100,6 +103,11 @@ func planSet(opt Options) (*builder, error) {
 	}
 	if need := int64(math.Ceil(0.4 * float64(b.take.SampleRate))); b.take.Frames < need {
 		return nil, &ShortTakeError{File: o.Dry, Seconds: b.take.Seconds, Need: 0.4, Why: "one 400 ms loudness block"}
+	}
+	if o.Pictures.On {
+		if b.o.Pictures, err = checkPictures(o.Pictures, float64(b.take.SampleRate)); err != nil {
+			return nil, err
+		}
 	}
 	if b.jobs, err = makeJobs(o); err != nil {
 		return nil, err
@@ -298,7 +306,7 @@ func (b *builder) describe(common float64, limited bool) *Set {
 		Chain: o.Chain.Name, ChainFile: o.ChainPath, Dry: b.take,
 		TargetLUFS: report.Level(common), RequestedLUFS: report.Level(o.TargetLUFS), CeilingDBTP: report.Level(o.CeilingDBTP),
 		CeilingLimited: limited, Oversample: o.Oversample, Format: o.Format, Blind: o.Blind,
-		Page: PageFile, HearingCaution: HearingCaution, Warnings: report.Warnings{}, Dir: b.dir,
+		Page: PageFile, HearingCaution: HearingCaution, Warnings: report.Warnings{}, Dir: b.dir, Pictures: []Plot{},
 	}
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, ji := range b.order {

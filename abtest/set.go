@@ -51,6 +51,10 @@ type Options struct {
 	// the set under the clip's own name and shown on the page.
 	PlotDir string
 
+	// Pictures asks for the set's own pictures, every variant in one
+	// figure each (see PictureOptions); not in a blind set.
+	Pictures PictureOptions
+
 	Force bool // replace the clips of an earlier run in OutDir
 	Jobs  int  // variants rendered at once; 0 means runtime.NumCPU()
 
@@ -76,6 +80,7 @@ type Set struct {
 	Blind          bool            `json:"blind"`
 	Variants       []Clip          `json:"variants"`
 	Sequence       *Sequence       `json:"sequence"` // null without a sequence file
+	Pictures       []Plot          `json:"pictures"` // the set's own pictures (PictureOptions), in page order
 	Page           string          `json:"page"`
 	HearingCaution string          `json:"hearing_caution"`
 	Warnings       report.Warnings `json:"warnings"`

@@ -152,6 +152,10 @@ func TestFigures(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	respFig, err := resp.Figure(false)
+	if err != nil {
+		t.Fatal(err)
+	}
 	for _, tc := range []struct {
 		name string
 		fig  *plotting.Figure
@@ -159,7 +163,7 @@ func TestFigures(t *testing.T) {
 	}{
 		{"spectrum", single, []string{"clip.R1=4k7", "H3", "frequency (Hz)", "dBc"}},
 		{"sweep", sweep, []string{"THD_F · clip.R1=10k", "H3 · clip.R1=4k7", "source amplitude (V peak)"}},
-		{"response", resp.Figure(), []string{"tone.tone=0", "tone.tone=1", "phase (degrees)", "20k"}},
+		{"response", respFig, []string{"tone.tone=0", "tone.tone=1", "phase (degrees)", "20k"}},
 	} {
 		var buf bytes.Buffer
 		if err := tc.fig.Render(&buf, plotting.SVG); err != nil {

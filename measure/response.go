@@ -69,6 +69,9 @@ type ResponseReport struct {
 	// Warnings joins the curves' (report.Combine: one a curve alone has
 	// names it).
 	Warnings report.Warnings `json:"warnings"`
+	// Knobs are the knob positions of the chain the variants start from
+	// (Knobs), for the figure's title.
+	Knobs []string `json:"-"`
 }
 
 // checkFreqs bounds every frequency to [MinFrequency, limit).
@@ -155,7 +158,8 @@ func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freq
 	if len(variants) == 0 {
 		variants = []Variant{{}}
 	}
-	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "small-signal", Probe: probeName(opt.Probe), Reference: refName(opt.Ref)}
+	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "small-signal", Probe: probeName(opt.Probe), Reference: refName(opt.Ref),
+		Knobs: Knobs(ch)}
 	for _, v := range variants {
 		if err := ctx.Err(); err != nil {
 			return nil, err
@@ -179,7 +183,7 @@ func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freq
 }
 
 // curveLabel names a variant: its varying settings, else every override,
-// else "as set" (the chain as written).
+// else "as written" (the chain as the file has it).
 func curveLabel(v Variant) string {
 	switch {
 	case v.Label != "":
@@ -187,7 +191,7 @@ func curveLabel(v Variant) string {
 	case len(v.Sets) > 0:
 		return strings.Join(v.Sets, " ")
 	}
-	return "as set"
+	return "as written"
 }
 
 func probeName(p string) string {

@@ -36,6 +36,9 @@ type Report struct {
 	// Warnings joins the measurements' (report.Combine: one that only some
 	// measurements have names them).
 	Warnings report.Warnings `json:"warnings"`
+	// Knobs are the knob positions of the chain the variants start from
+	// (Knobs), for the figures' titles.
+	Knobs []string `json:"-"`
 }
 
 type job struct {
@@ -106,7 +109,7 @@ func Run(ctx context.Context, ch *chains.Chain, p Plan) (*Report, error) {
 	if err != nil {
 		return nil, err
 	}
-	rep := &Report{Chain: ch.Name, ChainFile: ch.File, Sweep: p.Sweep, Measurements: results}
+	rep := &Report{Chain: ch.Name, ChainFile: ch.File, Sweep: p.Sweep, Measurements: results, Knobs: Knobs(ch)}
 	rep.Warnings = rep.combinedWarnings()
 	return rep, nil
 }

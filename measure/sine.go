@@ -69,6 +69,9 @@ type Options struct {
 	// Spectrum keeps the analysed record's amplitude spectrum in the
 	// Result, for plots.
 	Spectrum bool
+	// Scope keeps a few settled cycles of the source and the probed node
+	// in the Result (Result.Scope), for the scope view.
+	Scope bool
 }
 
 func (o Options) withDefaults() Options {
@@ -250,6 +253,8 @@ type Result struct {
 
 	// Spectrum is kept when Options.Spectrum is set.
 	Spectrum *Spectrum `json:"-"`
+	// Scope is kept when Options.Scope is set.
+	Scope *Scope `json:"-"`
 }
 
 // Sine measures the chain's response to a sine of freq Hz and amplitude
@@ -308,6 +313,9 @@ func sineOn(ctx context.Context, p *engine.Prepared, freq, amplitude float64, op
 	r.Warnings.Merge(warnings(r, opt, passbandEdge(opt.SampleRate)))
 	if opt.Spectrum {
 		r.Spectrum = amplitudeSpectrum(rec.Samples, opt.SampleRate, r.Record.Coherent)
+	}
+	if opt.Scope {
+		r.Scope = scopeOf(rec, opt.SampleRate, amplitude)
 	}
 	return r, nil
 }

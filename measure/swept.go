@@ -341,7 +341,8 @@ func RunSwept(ctx context.Context, ch *chains.Chain, variants []Variant, freqs [
 		st = addSolver(st, in.Solver)
 	}
 	info.Solver = st
-	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "swept", Probe: probeName(opt.Probe), Reference: "source", Swept: &info}
+	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "swept", Probe: probeName(opt.Probe), Reference: "source", Swept: &info,
+		Knobs: Knobs(ch)}
 	for i, v := range variants {
 		for _, c := range curves[i] {
 			name := "H1 linear"

@@ -2,13 +2,13 @@ package main
 
 import (
 	"fmt"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 
 	"renderchain/chains"
 	"renderchain/measure"
 	"renderchain/models"
-	"renderchain/plotting"
 )
 
 // Flags shared by measure and response.
@@ -55,13 +55,54 @@ func measureCommand() *cli.Command {
 			&cli.DurationFlag{Name: "record", Value: 1e8, Usage: "shortest analysed record (a whole number of cycles)"},
 			jsonFlag,
 			csvFlag,
-			plotFlag,
+			&cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg, and a scope view of each measurement beside it (FILE-scope.png, FILE-scope-01.png …; up to 16)"},
 			workersFlag,
 			quietFlag,
 		},
 		Before: requireFlags("chain"),
 		Action: runMeasure,
 	}
+}
+
+// maxScopeViews bounds the scope views one measure command draws: one
+// file each, so a long sweep would otherwise leave hundreds.
+const maxScopeViews = 16
+
+// saveMeasureFigures writes the report's figure to path and beside it a
+// scope view per measurement (siblingPath), or, past maxScopeViews
+// measurements, says on stderr that they were left out.
+func saveMeasureFigures(c *cli.Context, rep *measure.Report, path string, count int) error {
+	fig, err := rep.Figure()
+	if err != nil {
+		return err
+	}
+	what := "spectrum and harmonics"
+	if rep.Sweep != nil {
+		what = "level and distortion against the swept " + string(rep.Sweep.Kind)
+	}
+	files := []figureFile{{path: path, what: what, fig: fig}}
+	scopes, err := rep.ScopeFigures()
+	if err != nil {
+		return err
+	}
+	for i, f := range scopes {
+		m := rep.Measurements[i]
+		name := strings.Join(m.Settings, " ")
+		if rep.Sweep != nil && rep.Sweep.Kind == measure.LevelSweep {
+			name = strings.TrimSpace(models.FormatValue(m.AmplitudeV, "V") + " peak " + name)
+		}
+		if name == "" {
+			name = "the chain as written"
+		}
+		files = append(files, figureFile{path: siblingPath(path, "scope", i, len(scopes)), what: "scope view, " + name, fig: f})
+	}
+	if err := saveFigures(c, files, c.Bool("quiet")); err != nil {
+		return err
+	}
+	if count > maxScopeViews && !c.Bool("quiet") {
+		fmt.Fprintf(c.App.ErrWriter, "note: no scope views: they are drawn for up to %d measurements, this run made %d\n", maxScopeViews, count)
+	}
+	return nil
 }
 
 var workersFlag = &cli.IntFlag{Name: "workers", Usage: "measurements run at once (default: one per core)"}
@@ -79,11 +120,9 @@ func runMeasure(c *cli.Context) error {
 	if c.IsSet("sweep-level") && c.IsSet("amplitude") {
 		return usagef("--amplitude and --sweep-level exclude each other: the sweep sets the amplitude")
 	}
-	plotPath := c.String("plot")
-	if plotPath != "" {
-		if _, err := plotting.FormatOf(plotPath); err != nil {
-			return usagef("--plot: %v", err)
-		}
+	plotPath, err := checkPlotFlag(c)
+	if err != nil {
+		return err
 	}
 	freq, err := parseFlag(c, "freq", models.ParseFrequency)
 	if err != nil {
@@ -125,6 +164,11 @@ func runMeasure(c *cli.Context) error {
 		MinRecord:       c.Duration("record").Seconds(),
 		Spectrum:        plotPath != "" && sweep == nil,
 	}
+	count := len(variants)
+	if sweep != nil {
+		count *= len(sweep.StepList)
+	}
+	opt.Scope = plotPath != "" && count <= maxScopeViews
 	prog, done := progress(c.Bool("quiet"), "measuring")
 	plan := measure.Plan{Variants: variants, Freq: freq, Amplitude: amp, Sweep: sweep, Options: opt, Workers: c.Int("workers")}
 	if prog != nil {
@@ -136,12 +180,8 @@ func runMeasure(c *cli.Context) error {
 		return err
 	}
 	if plotPath != "" {
-		fig, err := rep.Figure()
-		if err == nil {
-			err = plotting.Save(plotPath, fig)
-		}
-		if err != nil {
-			return fmt.Errorf("writing plot %s: %w", plotPath, err)
+		if err := saveMeasureFigures(c, rep, plotPath, count); err != nil {
+			return err
 		}
 	}
 	switch {
