@@ -276,7 +276,7 @@ func (d *pictureData) figures() ([]namedFigure, error) {
 			notes = []string{bypassNote}
 		}
 		if r := d.harmonics[i]; r != nil {
-			hs := plotting.HarmonicSet{Label: c.label, Style: c.style, THDPercent: r.THDPercent}
+			hs := plotting.HarmonicSet{Label: c.label, Style: c.style, THDPercent: float64(r.THDPercent)}
 			for _, h := range r.Harmonics {
 				for len(hs.DBc) < h.Order-2 {
 					hs.DBc = append(hs.DBc, math.Inf(-1))

@@ -130,7 +130,7 @@ func TestPicturesAreTheAnalyses(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if r.THDPercent != d.harmonics[i].THDPercent || !slices.Equal(r.Harmonics, d.harmonics[i].Harmonics) {
+			if float64(r.THDPercent) != float64(d.harmonics[i].THDPercent) || !slices.Equal(r.Harmonics, d.harmonics[i].Harmonics) {
 				t.Errorf("%s: harmonics differ from measure.Sine", c.label)
 			}
 		}

@@ -384,8 +384,8 @@ func TestTemplatesBehave(t *testing.T) {
 		supply := map[string]string{"fuzz-ge3": "-9V", "fuzz-si4": "9V"}[name]
 		ch := templateChain(t, name, supply)
 		r := sine(t, ch, 330, 0.1)
-		if r.THDPercent < 10 {
-			t.Errorf("%s: THD %.1f %% at 100 mV", name, r.THDPercent)
+		if float64(r.THDPercent) < 10 {
+			t.Errorf("%s: THD %.1f %% at 100 mV", name, float64(r.THDPercent))
 		}
 		b, err := bias.Solve(ch)
 		if err != nil {
@@ -396,7 +396,7 @@ func TestTemplatesBehave(t *testing.T) {
 				t.Errorf("%s: %s %s, collector at %.0f %% of the supply", name, q.Ref, q.Region, 100*frac)
 			}
 		}
-		t.Logf("%s: THD %.1f %%, output %.3f V peak", name, r.THDPercent, r.Fundamental.VPeak)
+		t.Logf("%s: THD %.1f %%, output %.3f V peak", name, float64(r.THDPercent), r.Fundamental.VPeak)
 	}
 	for _, name := range []string{"octave-transformer", "octave-splitter"} {
 		r := sine(t, templateChain(t, name, "9V"), 220, 0.2)
@@ -412,10 +412,10 @@ func TestTemplatesBehave(t *testing.T) {
 			t.Errorf("opamp-clip: harmonic %d at %.1f dBc", k, h)
 		}
 	}
-	if r.THDPercent < 5 {
-		t.Errorf("opamp-clip: THD %.2f %% at 200 mV", r.THDPercent)
+	if float64(r.THDPercent) < 5 {
+		t.Errorf("opamp-clip: THD %.2f %% at 200 mV", float64(r.THDPercent))
 	}
-	t.Logf("opamp-clip: THD %.1f %%, 2nd %.0f dBc, 3rd %.1f dBc", r.THDPercent, harmonic(r, 2), harmonic(r, 3))
+	t.Logf("opamp-clip: THD %.1f %%, 2nd %.0f dBc, 3rd %.1f dBc", float64(r.THDPercent), harmonic(r, 2), harmonic(r, 3))
 
 	ch := templateChain(t, "jfet-boost", "9V")
 	for _, kv := range []string{"s.boost=1", "s.Q1.channel_modulation=0"} {

@@ -66,7 +66,7 @@ func ExampleSine() {
 		fmt.Println(err)
 		return
 	}
-	fmt.Printf("gain %.2f dB, THD_F below 0.001 %%: %v, settled: %v\n", float64(r.GainDB), r.THDPercent < 0.001, r.Settle.Settled)
+	fmt.Printf("gain %.2f dB, THD_F below 0.001 %%: %v, settled: %v\n", float64(r.GainDB), float64(r.THDPercent) < 0.001, r.Settle.Settled)
 	// Output: gain -1.45 dB, THD_F below 0.001 %: true, settled: true
 }
 

@@ -189,8 +189,8 @@ func (r *Report) Figure() (*plotting.Figure, error) {
 	top := math.Inf(-1)
 	several := len(r.Measurements) > 1
 	for i, m := range r.Measurements {
-		label := names[i] + fmt.Sprintf(" (THD_F %.3g %%)", m.THDPercent)
-		if !report.Finite(m.THDPercent) {
+		label := names[i] + fmt.Sprintf(" (THD_F %.3g %%)", float64(m.THDPercent))
+		if !report.Finite(float64(m.THDPercent)) {
 			label = names[i] + " (no signal at the probe)"
 		}
 		top = math.Max(top, float64(m.Fundamental.DBV))

@@ -208,7 +208,7 @@ func TestSpectrumFigureData(t *testing.T) {
 	}
 	for i, m := range rep.Measurements {
 		b := bars.Bars[i]
-		if b.Style != i+1 || !strings.Contains(b.Label, m.Settings[0]) || !strings.Contains(b.Label, fmt.Sprintf("THD_F %.3g %%", m.THDPercent)) {
+		if b.Style != i+1 || !strings.Contains(b.Label, m.Settings[0]) || !strings.Contains(b.Label, fmt.Sprintf("THD_F %.3g %%", float64(m.THDPercent))) {
 			t.Errorf("condition %d: bar group %q style %d", i, b.Label, b.Style)
 		}
 		for _, h := range m.Harmonics {

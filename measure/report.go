@@ -49,12 +49,16 @@ func (m *Result) writeDetail(w io.Writer, chain string) error {
 		state, m.Settle.Seconds, fmtNum(float64(m.Settle.Change), "%.1e"), m.Settle.Tolerance, m.Record.Samples, m.Record.Cycles,
 		map[bool]string{true: "coherent DFT", false: "least-squares fit"}[m.Record.Coherent])
 	f := m.Fundamental
-	fmt.Fprintf(b, "  output     %s rms (%s dBV), gain %s dB, phase %+.1f°\n",
-		models.FormatValue(f.VRMS, "V"), fmtNum(float64(f.DBV), "%.2f"), fmtNum(float64(m.GainDB), "%.2f"), f.PhaseDeg)
+	phase := "—"
+	if report.Finite(float64(f.DBV)) {
+		phase = report.Fixed(f.PhaseDeg, "%+.1f") + "°"
+	}
+	fmt.Fprintf(b, "  output     %s rms (%s dBV), gain %s dB, phase %s\n",
+		models.FormatValue(f.VRMS, "V"), fmtNum(float64(f.DBV), "%.2f"), fmtNum(float64(m.GainDB), "%.2f"), phase)
 	pct, fdb := m.floorPercent(), float64(m.AnalysisFloorDB)
 	fmt.Fprintf(b, "  THD_F      %s %%  (%s dB)    THD_R %s %%\n",
-		report.AtLeast(m.THDPercent, pct, "%.4g"), report.AtLeast(float64(m.THDDB), fdb, "%.1f"), report.AtLeast(m.THDRPercent, pct, "%.4g"))
-	fmt.Fprintf(b, "  THD+N      %s %%  (%s dB)    band %s–%s\n", report.AtLeast(m.THDNPercent, pct, "%.4g"), report.AtLeast(float64(m.THDNDB), fdb, "%.1f"),
+		report.AtLeast(float64(m.THDPercent), pct, "%.4g"), report.AtLeast(float64(m.THDDB), fdb, "%.1f"), report.AtLeast(float64(m.THDRPercent), pct, "%.4g"))
+	fmt.Fprintf(b, "  THD+N      %s %%  (%s dB)    band %s–%s\n", report.AtLeast(float64(m.THDNPercent), pct, "%.4g"), report.AtLeast(float64(m.THDNDB), fdb, "%.1f"),
 		models.FormatValue(m.THDNBandHz[0], "Hz"), models.FormatValue(m.THDNBandHz[1], "Hz"))
 	if m.distorts() {
 		fmt.Fprintf(b, "  even/odd   %s (%s dB)\n", fmtNum(float64(m.EvenOddRatio), "%.4g"), fmtNum(float64(m.EvenOddDB), "%.1f"))
@@ -85,11 +89,16 @@ func (m *Result) writeDetail(w io.Writer, chain string) error {
 		if h.Attenuated {
 			note = " *"
 		}
-		level, dbc, percent, phase := fmtNum(float64(h.DBV), "%.2f"), fmtNum(float64(h.DBc), "%.2f"), fmtNum(h.Percent, "%.4g"), report.Fixed(h.PhaseDeg, "%+.1f")
-		if i > 0 && !(float64(h.DBc) >= fdb) {
+		level, dbc, percent, phase := fmtNum(float64(h.DBV), "%.2f"), fmtNum(float64(h.DBc), "%.2f"), fmtNum(float64(h.Percent), "%.4g"), report.Fixed(h.PhaseDeg, "%+.1f")
+		switch {
+		case !report.Finite(float64(m.Fundamental.DBV)):
+			// No fundamental (a probe with no signal on it): nothing to
+			// relate to, no phase.
+			phase = "—"
+		case i > 0 && !(float64(h.DBc) >= fdb):
 			// Under the floor: a bound, and no phase to speak of.
 			level = report.AtLeast(float64(h.DBV), float64(m.Fundamental.DBV)+fdb, "%.2f")
-			dbc, percent, phase = report.AtLeast(float64(h.DBc), fdb, "%.2f"), report.AtLeast(h.Percent, pct, "%.4g"), "—"
+			dbc, percent, phase = report.AtLeast(float64(h.DBc), fdb, "%.2f"), report.AtLeast(float64(h.Percent), pct, "%.4g"), "—"
 		}
 		fmt.Fprintf(tw, "  H%d%s\t%s\t%s\t%s\t%s\t%s\t\n", h.Order, note, models.FormatValue(h.Hz, "Hz"), level, dbc, percent, phase)
 	}
@@ -148,7 +157,7 @@ func (r *Report) writeRows(w io.Writer) error {
 		}
 		row += fmt.Sprintf("%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t",
 			fmtNum(float64(m.Fundamental.DBV), "%.2f"), fmtNum(float64(m.GainDB), "%.2f"),
-			report.AtLeast(m.THDPercent, pct, "%.4g"), report.AtLeast(m.THDNPercent, pct, "%.4g"),
+			report.AtLeast(float64(m.THDPercent), pct, "%.4g"), report.AtLeast(float64(m.THDNPercent), pct, "%.4g"),
 			report.AtLeast(harmonicDBc(m, 2), fdb, "%.1f"), report.AtLeast(harmonicDBc(m, 3), fdb, "%.1f"),
 			evenOdd, dc, yesNo(m.Clipping.Clips), m.fileClips(false), yesNo(m.Settle.Settled))
 		fmt.Fprintln(tw, row)
@@ -199,7 +208,7 @@ func (r *Report) hasLabels() bool {
 func (m *Result) floorPercent() float64 { return 100 * report.FromDB(float64(m.AnalysisFloorDB)) }
 
 // distorts tells whether any harmonic stands above the analysis floor.
-func (m *Result) distorts() bool { return m.THDPercent >= m.floorPercent() }
+func (m *Result) distorts() bool { return float64(m.THDPercent) >= m.floorPercent() }
 
 // fileClips says whether a render at this level would clip the file:
 // samples past the output's full scale. Only the output has a full scale;
@@ -283,7 +292,7 @@ func (r *Report) WriteCSV(w io.Writer) error {
 		}
 		rec := []string{m.Label, strings.Join(m.Settings, " "), sv, g(m.FrequencyHz), g(m.AmplitudeV), g(m.AmplitudeDBV), m.Probe,
 			g(m.Fundamental.VRMS), g(float64(m.Fundamental.DBV)), g(float64(m.GainDB)), g(m.Fundamental.PhaseDeg),
-			g(m.THDPercent), g(m.THDRPercent), g(m.THDNPercent), g(float64(m.EvenOddDB)), g(m.DCV),
+			g(float64(m.THDPercent)), g(float64(m.THDRPercent)), g(float64(m.THDNPercent)), g(float64(m.EvenOddDB)), g(m.DCV),
 			g(m.PeakPositiveV), g(m.PeakNegativeV), g(float64(m.PeakAsymmetry)), g(float64(m.Clipping.CrestFactorDB)),
 			strconv.FormatBool(m.Clipping.Clips), strconv.FormatBool(m.Clipping.ExceedsFullScale),
 			strconv.FormatBool(m.Settle.Settled), g(m.Settle.Seconds)}

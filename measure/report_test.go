@@ -104,8 +104,8 @@ func TestReportCSVAndTable(t *testing.T) {
 	}
 	for i, rec := range recs[1:] {
 		thd, err := strconv.ParseFloat(rec[col["thd_percent"]], 64)
-		if err != nil || math.Abs(thd-rep.Measurements[i].THDPercent) > 1e-6*thd {
-			t.Errorf("row %d thd_percent %q, want %g", i, rec[col["thd_percent"]], rep.Measurements[i].THDPercent)
+		if err != nil || math.Abs(thd-float64(rep.Measurements[i].THDPercent)) > 1e-6*thd {
+			t.Errorf("row %d thd_percent %q, want %g", i, rec[col["thd_percent"]], float64(rep.Measurements[i].THDPercent))
 		}
 		if rec[col["h2_dbc"]] == "" {
 			// −300 dBc is finite; only an undefined value is empty.
@@ -214,8 +214,8 @@ func TestTableFloors(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !(r.THDPercent < 1e-6) || math.Abs(float64(r.AnalysisFloorDB)+100) > 1e-9 {
-		t.Fatalf("THD %g %%, floor %g dB: not the linear case", r.THDPercent, float64(r.AnalysisFloorDB))
+	if !(float64(r.THDPercent) < 1e-6) || math.Abs(float64(r.AnalysisFloorDB)+100) > 1e-9 {
+		t.Fatalf("THD %g %%, floor %g dB: not the linear case", float64(r.THDPercent), float64(r.AnalysisFloorDB))
 	}
 	var buf bytes.Buffer
 	if err := (&Report{Measurements: []*Result{r}}).WriteTable(&buf); err != nil {
@@ -233,7 +233,44 @@ func TestTableFloors(t *testing.T) {
 	buf.Reset()
 	clip := clipperReport(t, nil, nil, false)
 	clip.WriteTable(&buf)
-	if m := clip.Measurements[0]; !strings.Contains(buf.String(), fmt.Sprintf("THD_F      %.4g %%", m.THDPercent)) {
-		t.Errorf("the clipper's THD %.4g %% is not printed as measured:\n%s", m.THDPercent, buf.String())
+	if m := clip.Measurements[0]; !strings.Contains(buf.String(), fmt.Sprintf("THD_F      %.4g %%", float64(m.THDPercent))) {
+		t.Errorf("the clipper's THD %.4g %% is not printed as measured:\n%s", float64(m.THDPercent), buf.String())
+	}
+}
+
+// A probe with no signal on it (the supply rail) has no fundamental: its
+// distortion percentages do not exist and are JSON null, like its levels,
+// instead of NaN stopping the report ("json: unsupported value: NaN"), and
+// the table prints no phase for lines that are not there.
+func TestProbeWithoutSignal(t *testing.T) {
+	ch := loadChain(t, "clipper")
+	r, err := Sine(context.Background(), ch, 1000, 0.01, Options{Probe: "v+"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := json.Marshal(r)
+	if err != nil {
+		t.Fatalf("marshal: %v", err)
+	}
+	var doc struct {
+		THD         *float64 `json:"thd_percent"`
+		THDN        *float64 `json:"thdn_percent"`
+		Fundamental struct {
+			DBV     *float64 `json:"dbv"`
+			Percent *float64 `json:"percent"`
+		} `json:"fundamental"`
+	}
+	if err := json.Unmarshal(b, &doc); err != nil {
+		t.Fatal(err)
+	}
+	if doc.THD != nil || doc.THDN != nil || doc.Fundamental.DBV != nil || doc.Fundamental.Percent != nil {
+		t.Errorf("thd %v thdn %v dbv %v percent %v; want all null", doc.THD, doc.THDN, doc.Fundamental.DBV, doc.Fundamental.Percent)
+	}
+	var buf bytes.Buffer
+	if err := (&Report{Measurements: []*Result{r}}).WriteTable(&buf); err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(buf.String(), "+180.0") || strings.Contains(buf.String(), "NaN") {
+		t.Errorf("table shows a phase or NaN for absent lines:\n%s", buf.String())
 	}
 }

@@ -49,17 +49,17 @@ func TestRunLevelSweepDeterministic(t *testing.T) {
 	for i := range one.Measurements {
 		a, b := one.Measurements[i], two.Measurements[i]
 		if !reflect.DeepEqual(a, b) {
-			t.Errorf("step %d differs between 1 and 2 workers: THD %.9g vs %.9g", i, a.THDPercent, b.THDPercent)
+			t.Errorf("step %d differs between 1 and 2 workers: THD %.9g vs %.9g", i, float64(a.THDPercent), float64(b.THDPercent))
 		}
 		if a.AmplitudeV != sw.StepList[i] || *a.SweepValue != sw.StepList[i] {
 			t.Errorf("step %d at %g V, want %g V", i, a.AmplitudeV, sw.StepList[i])
 		}
-		if i > 0 && a.THDPercent <= one.Measurements[i-1].THDPercent {
-			t.Errorf("THD_F fell from %.4g %% to %.4g %% as the level rose to %g V", one.Measurements[i-1].THDPercent, a.THDPercent, a.AmplitudeV)
+		if i > 0 && float64(a.THDPercent) <= float64(one.Measurements[i-1].THDPercent) {
+			t.Errorf("THD_F fell from %.4g %% to %.4g %% as the level rose to %g V", float64(one.Measurements[i-1].THDPercent), float64(a.THDPercent), a.AmplitudeV)
 		}
 	}
-	if low := one.Measurements[0]; low.THDPercent > 0.1 {
-		t.Errorf("10 mV: THD_F %.3g %%, want under 0.1 %% (far below the knee)", low.THDPercent)
+	if low := one.Measurements[0]; float64(low.THDPercent) > 0.1 {
+		t.Errorf("10 mV: THD_F %.3g %%, want under 0.1 %% (far below the knee)", float64(low.THDPercent))
 	}
 }
 

@@ -137,13 +137,13 @@ func checkSignal(freq, amplitude, fs float64) error {
 
 // Line is one spectral line of the output.
 type Line struct {
-	Order   int          `json:"order"`
-	Hz      float64      `json:"hz"`
-	VPeak   float64      `json:"v_peak"`
-	VRMS    float64      `json:"v_rms"`
-	DBV     report.Level `json:"dbv"`
-	DBc     report.Level `json:"dbc"`
-	Percent float64      `json:"percent"`
+	Order   int           `json:"order"`
+	Hz      float64       `json:"hz"`
+	VPeak   float64       `json:"v_peak"`
+	VRMS    float64       `json:"v_rms"`
+	DBV     report.Level  `json:"dbv"`
+	DBc     report.Level  `json:"dbc"`
+	Percent report.Number `json:"percent"`
 	// PhaseDeg is the line's phase relative to the source sine's phase
 	// at the same order: h·φ_source subtracted, wrapped to (−180, 180].
 	PhaseDeg float64 `json:"phase_deg"`
@@ -225,12 +225,12 @@ type Result struct {
 	GainDB      report.Level `json:"gain_db"` // output fundamental over source amplitude
 	Harmonics   []Line       `json:"harmonics"`
 
-	THDPercent  float64      `json:"thd_percent"` // THD_F
-	THDDB       report.Level `json:"thd_db"`
-	THDRPercent float64      `json:"thd_r_percent"`
-	THDNPercent float64      `json:"thdn_percent"`
-	THDNDB      report.Level `json:"thdn_db"`
-	THDNBandHz  [2]float64   `json:"thdn_band_hz"`
+	THDPercent  report.Number `json:"thd_percent"` // THD_F
+	THDDB       report.Level  `json:"thd_db"`
+	THDRPercent report.Number `json:"thd_r_percent"`
+	THDNPercent report.Number `json:"thdn_percent"`
+	THDNDB      report.Level  `json:"thdn_db"`
+	THDNBandHz  [2]float64    `json:"thdn_band_hz"`
 	// AnalysisFloorDB is the level, relative to the fundamental, under
 	// which a harmonic or a distortion figure cannot be told from the
 	// measurement's own residue (AnalysisFloor). Tables print figures
@@ -347,10 +347,10 @@ func newResult(p *engine.Prepared, node int, freq, amplitude float64, opt Option
 			Tolerance: opt.SettleTolerance, FadeIn: float64(rec.Sine.Fade) / fs},
 		Record: Record{Samples: n, Seconds: float64(n) / fs, Cycles: an.Cycles, Coherent: an.Method == spectrum.MethodBins,
 			Method: map[spectrum.Method]string{spectrum.MethodBins: "bins", spectrum.MethodFit: "fit"}[an.Method]},
-		THDPercent:      100 * an.THDF,
+		THDPercent:      report.Number(100 * an.THDF),
 		THDDB:           report.Level(report.DB(an.THDF)),
-		THDRPercent:     100 * an.THDR,
-		THDNPercent:     100 * an.THDN,
+		THDRPercent:     report.Number(100 * an.THDR),
+		THDNPercent:     report.Number(100 * an.THDN),
 		THDNDB:          report.Level(report.DB(an.THDN)),
 		THDNBandHz:      [2]float64{an.BandLow, an.BandHigh},
 		AnalysisFloorDB: report.Level(report.DB(AnalysisFloor(opt.SettleTolerance))),
@@ -366,7 +366,7 @@ func newResult(p *engine.Prepared, node int, freq, amplitude float64, opt Option
 	line := func(h spectrum.Harmonic) Line {
 		ph := h.Phase - float64(h.Order)*phaseIn
 		return Line{Order: h.Order, Hz: h.Frequency, VPeak: h.Amplitude, VRMS: h.Amplitude / math.Sqrt2,
-			DBV: report.Level(report.DB(h.Amplitude / math.Sqrt2)), DBc: report.Level(h.DBc), Percent: h.Percent,
+			DBV: report.Level(report.DB(h.Amplitude / math.Sqrt2)), DBc: report.Level(h.DBc), Percent: report.Number(h.Percent),
 			PhaseDeg: wrapDeg(ph * 180 / math.Pi), Attenuated: h.Frequency > passband}
 	}
 	r.Fundamental = line(an.Fundamental)

@@ -62,7 +62,7 @@ func TestSineLinearRC(t *testing.T) {
 		wantDeg := cmplx.Phase(h) * 180 / math.Pi
 		gotDB := float64(r.GainDB)
 		t.Logf("%7g Hz: gain %.5f dB (analytic %.5f, error %.2e dB), phase %.4f° (analytic %.4f°), THD_F %.2e, THD+N %.2e, %s, settled at %.2f s",
-			tc.freq, gotDB, wantDB, gotDB-wantDB, r.Fundamental.PhaseDeg, wantDeg, r.THDPercent/100, r.THDNPercent/100, r.Record.Method, r.Settle.Seconds)
+			tc.freq, gotDB, wantDB, gotDB-wantDB, r.Fundamental.PhaseDeg, wantDeg, float64(r.THDPercent)/100, float64(r.THDNPercent)/100, r.Record.Method, r.Settle.Seconds)
 		// Tolerance: the rate converter's passband ripple bound, 0.01 dB.
 		if math.Abs(gotDB-wantDB) > rippleLimit {
 			t.Errorf("%g Hz: gain %.5f dB, want %.5f ± %g dB", tc.freq, gotDB, wantDB, rippleLimit)
@@ -75,8 +75,8 @@ func TestSineLinearRC(t *testing.T) {
 		// A linear circuit makes no harmonics; what the render path can
 		// add is bounded by the converter's 100 dB stopband: THD_F below
 		// 1e-5 (−100 dB).
-		if r.THDPercent/100 > 1e-5 || r.THDNPercent/100 > 1e-5 {
-			t.Errorf("%g Hz: THD_F %.2e, THD+N %.2e; want both below 1e-5", tc.freq, r.THDPercent/100, r.THDNPercent/100)
+		if float64(r.THDPercent)/100 > 1e-5 || float64(r.THDNPercent)/100 > 1e-5 {
+			t.Errorf("%g Hz: THD_F %.2e, THD+N %.2e; want both below 1e-5", tc.freq, float64(r.THDPercent)/100, float64(r.THDNPercent)/100)
 		}
 		if r.Record.Coherent != tc.coherent || !r.Settle.Settled || r.Clipping.Clips {
 			t.Errorf("%g Hz: coherent %v (want %v), settled %v, clips %v", tc.freq, r.Record.Coherent, tc.coherent, r.Settle.Settled, r.Clipping.Clips)
@@ -120,7 +120,7 @@ func TestSineClipperOddOnly(t *testing.T) {
 		}
 		h3 := harmonicDBc(r, 3)
 		t.Logf("%g V peak: THD_F %.3f %%, H3 %.1f dBc, worst even %.1f dBc, even/odd %.1f dB, asymmetry %.1e, dwell %.2f/%.2f, clips %v",
-			amp, r.THDPercent, h3, worstEven, float64(r.EvenOddDB), float64(r.PeakAsymmetry),
+			amp, float64(r.THDPercent), h3, worstEven, float64(r.EvenOddDB), float64(r.PeakAsymmetry),
 			float64(r.Clipping.DwellPositive), float64(r.Clipping.DwellNegative), r.Clipping.Clips)
 		if worstEven > -80 {
 			t.Errorf("%g V: worst even harmonic %.1f dBc, want below −80 dBc", amp, worstEven)
@@ -162,10 +162,10 @@ func TestSineFuzzTemplateTrimmerLevel(t *testing.T) {
 			t.Fatal(err)
 		}
 		t.Logf("fuzz %s: THD_F %.4g %%, THD+N %.4g %%, gain %.2f dB, output %.3f V rms, H2 %.1f dBc, H3 %.1f dBc, clips %v, settled %v at %.2f s",
-			tc.fuzz, r.THDPercent, r.THDNPercent, float64(r.GainDB), r.Fundamental.VRMS, harmonicDBc(r, 2), harmonicDBc(r, 3),
+			tc.fuzz, float64(r.THDPercent), float64(r.THDNPercent), float64(r.GainDB), r.Fundamental.VRMS, harmonicDBc(r, 2), harmonicDBc(r, 3),
 			r.Clipping.Clips, r.Settle.Settled, r.Settle.Seconds)
-		if r.THDPercent < tc.min || r.THDPercent > tc.max {
-			t.Errorf("fuzz %s: THD_F %.4g %%, want between %g %% and %g %%", tc.fuzz, r.THDPercent, tc.min, tc.max)
+		if float64(r.THDPercent) < tc.min || float64(r.THDPercent) > tc.max {
+			t.Errorf("fuzz %s: THD_F %.4g %%, want between %g %% and %g %%", tc.fuzz, float64(r.THDPercent), tc.min, tc.max)
 		}
 	}
 }

@@ -162,7 +162,7 @@ func harmonicsFigure(t *testing.T, ch *chains.Chain) *plotting.Figure {
 	spec := plotting.HarmonicsSpec{Stimulus: "220 Hz sine, 10 mV peak at the source", Chain: ch.Name}
 	for i, v := range variants {
 		r := must(measure.Sine(context.Background(), variant(t, ch, v.set), 220, 0.01, measure.Options{}))
-		hs := plotting.HarmonicSet{Label: v.label, Style: i, THDPercent: r.THDPercent}
+		hs := plotting.HarmonicSet{Label: v.label, Style: i, THDPercent: float64(r.THDPercent)}
 		for _, h := range r.Harmonics {
 			for len(hs.DBc) < h.Order-2 {
 				hs.DBc = append(hs.DBc, math.Inf(-1))
