@@ -1,0 +1,183 @@
+package wdf_test
+
+import (
+	"fmt"
+	"slices"
+	"sync"
+	"testing"
+
+	"renderchain/chains"
+	"renderchain/dsp/mna"
+	"renderchain/dsp/resample"
+	"renderchain/dsp/synth"
+	"renderchain/dsp/wdf"
+)
+
+// Whole-chain benchmarks: a chain file flattened to one circuit, its DC
+// operating point, the wave digital solver at factor·48 kHz inside the
+// polyphase oversampler, driven by the first 2 s of the demo's synthesized
+// phrase (chords, single notes and a decaying note: music-like material
+// with many switching edges in a fuzz). Each reports
+//
+//	ns/sample    wall time per input (48 kHz) sample, oversampler included
+//	x-realtime   input seconds rendered per second on one core
+//	ns/tick      wall time per internal sample
+//	newton/tick  mean Newton iterations per internal sample (wdf.Stats)
+
+const benchRate = 48000.0
+
+// benchBlock is the number of base-rate samples per Process call, the
+// block size the renderer uses.
+const benchBlock = 4096
+
+var phrase = sync.OnceValues(func() ([]float64, error) {
+	x, err := synth.DemoPhrase(benchRate, 1)
+	if err != nil {
+		return nil, err
+	}
+	return x[:2*int(benchRate)], nil
+})
+
+// rig is one channel of a chain: solver and oversampler.
+type rig struct {
+	s  *wdf.Solver
+	os *resample.Oversampler
+}
+
+// loadChain reads a chain file and applies edit (nil for none).
+func loadChain(tb testing.TB, path string, edit func(*chains.Chain)) *chains.Chain {
+	tb.Helper()
+	ch, err := chains.Load(path)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	if edit != nil {
+		edit(ch)
+	}
+	return ch
+}
+
+// newRig compiles ch at factor× the benchmark rate.
+func newRig(tb testing.TB, ch *chains.Chain, factor int) *rig {
+	tb.Helper()
+	c, err := ch.Build()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	op, err := mna.SolveDC(c, mna.DCOptions{})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	s, err := wdf.Compile(c, op, wdf.Options{SampleRate: benchRate * float64(factor)})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	s.InputGain = ch.InputPeak
+	s.OutputGain = 1 / ch.FullScale
+	os, err := resample.NewOversampler(factor, benchRate, s, benchBlock)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return &rig{s, os}
+}
+
+// run renders x from rest.
+func (r *rig) run(x, dst []float64) {
+	r.s.Reset()
+	r.os.Reset()
+	for k := 0; k < len(x); k += benchBlock {
+		n := min(benchBlock, len(x)-k)
+		r.os.Process(dst[:n], x[k:k+n])
+	}
+}
+
+// benchRig renders the phrase b.N times and reports the metrics above.
+func benchRig(b *testing.B, r *rig, factor int) {
+	x, err := phrase()
+	if err != nil {
+		b.Fatal(err)
+	}
+	dst := make([]float64, benchBlock)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		r.run(x, dst)
+	}
+	ns := float64(b.Elapsed().Nanoseconds()) / float64(b.N*len(x))
+	b.ReportMetric(ns, "ns/sample")
+	b.ReportMetric(1e9/ns/benchRate, "x-realtime")
+	b.ReportMetric(ns/float64(factor), "ns/tick")
+	b.ReportMetric(r.s.Stats().MeanIterations(), "newton/tick")
+}
+
+// BenchmarkChainDemo is chains/demo.toml (pickup, two-transistor fuzz at
+// its chain setting, blend tone, volume, amplifier input; 4 root ports) at
+// the oversampling factors 2, 4, 8 and 16.
+func BenchmarkChainDemo(b *testing.B) {
+	ch := loadChain(b, "../../chains/demo.toml", nil)
+	for _, f := range []int{2, 4, 8, 16} {
+		b.Run(fmt.Sprintf("x%d", f), func(b *testing.B) {
+			benchRig(b, newRig(b, ch, f), f)
+		})
+	}
+}
+
+// BenchmarkChainCascade12 is testdata/cascade12.toml: four transistors and
+// four diodes, twelve root ports, at 4×.
+func BenchmarkChainCascade12(b *testing.B) {
+	r := newRig(b, loadChain(b, "testdata/cascade12.toml", nil), 4)
+	if _, k := r.s.States(); k != 12 {
+		b.Fatalf("%d root ports, want 12", k)
+	}
+	benchRig(b, r, 4)
+}
+
+// BenchmarkChainLinear is testdata/linear.toml: pickup, cable and
+// amplifier input, no devices, at 4×.
+func BenchmarkChainLinear(b *testing.B) {
+	r := newRig(b, loadChain(b, "testdata/linear.toml", nil), 4)
+	if _, k := r.s.States(); k != 0 {
+		b.Fatalf("%d root ports, want 0", k)
+	}
+	benchRig(b, r, 4)
+}
+
+// cascadeSubset keeps the first n stages of the cascade, without diodes
+// unless diodes is set.
+func cascadeSubset(n int, diodes bool) func(*chains.Chain) {
+	return func(ch *chains.Chain) {
+		ch.Stages = ch.Stages[:n]
+		if diodes {
+			return
+		}
+		for _, st := range ch.Stages {
+			st.Parts = slices.DeleteFunc(st.Parts, func(p *chains.Part) bool { return p.Kind == "diode" })
+		}
+	}
+}
+
+// BenchmarkRootPorts is the cost against the number of nonlinear root
+// ports, at 4× on the phrase: the cascade's first one to four stages
+// without diodes (2, 4, 6, 8 ports: one to four transistors) and the whole
+// cascade (12 ports).
+func BenchmarkRootPorts(b *testing.B) {
+	cases := []struct {
+		ports int
+		edit  func(*chains.Chain)
+	}{
+		{2, cascadeSubset(1, false)},
+		{4, cascadeSubset(2, false)},
+		{6, cascadeSubset(3, false)},
+		{8, cascadeSubset(4, false)},
+		{12, nil},
+	}
+	for _, tc := range cases {
+		b.Run(fmt.Sprintf("ports=%d", tc.ports), func(b *testing.B) {
+			r := newRig(b, loadChain(b, "testdata/cascade12.toml", tc.edit), 4)
+			if _, k := r.s.States(); k != tc.ports {
+				b.Fatalf("%d root ports, want %d", k, tc.ports)
+			}
+			benchRig(b, r, 4)
+		})
+	}
+}
