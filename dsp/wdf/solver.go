@@ -86,91 +86,130 @@ type Solver struct {
 	stats       Stats
 }
 
+// newSolver derives the solver's matrices from the adaptor, in the steps
+// below, and starts it at the operating point.
 func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, opt Options) (*Solver, error) {
+	lv := reactiveLeaves(ad, nE)
+	w, err := rootInverse(ad, nE)
+	if err != nil {
+		return nil, err
+	}
+	src := sourceColumns(c, ad)
+	sh := &shared{ns: len(lv.ports), k: len(ad.ports) - nE, maxIter: opt.MaxIter, tol: opt.Tol, adaptor: ad, probe: opt.Probe, circuit: c, rate: opt.SampleRate}
+	sh.rootRelation(ad, nE, lv, w, src)
+	sh.stateUpdate(ad, nE, lv, src, opt.Probe)
+	sh.startAt(op, ad, lv)
+	return sh.newChannel(), nil
+}
+
+// leaves lists the reactive leaf ports (the states) in port order, with
+// the sign that turns a port's incident wave into its state: +1 for a
+// capacitor (b[n] = a[n−1]), −1 for an inductor (b[n] = −a[n−1]).
+type leaves struct {
+	ports []int
+	sign  []float64
+}
+
+// reactiveLeaves picks the states among the nE adapted ports.
+func reactiveLeaves(ad *Adaptor, nE int) leaves {
+	var lv leaves
+	for j := 0; j < nE; j++ {
+		switch ad.ports[j].leaf {
+		case leafCapacitor:
+			lv.ports = append(lv.ports, j)
+			lv.sign = append(lv.sign, 1)
+		case leafInductor:
+			lv.ports = append(lv.ports, j)
+			lv.sign = append(lv.sign, -1)
+		}
+	}
+	return lv
+}
+
+// rootInverse returns W = (I − M_II)⁻¹ (k×k, row-major), M_II the block of
+// M between the root's nonlinear ports, solved column by column.
+func rootInverse(ad *Adaptor, nE int) ([]float64, error) {
 	P := len(ad.ports)
 	k := P - nE
-	var xs []int // reactive leaf ports
-	for j := 0; j < nE; j++ {
-		if ad.ports[j].leaf != leafResistor {
-			xs = append(xs, j)
-		}
-	}
-	ns := len(xs)
-	sign := make([]float64, ns)
-	for a, j := range xs {
-		sign[a] = 1
-		if ad.ports[j].leaf == leafInductor {
-			sign[a] = -1
-		}
-	}
-	m := func(r, c int) float64 { return ad.M[r*P+c] }
-	nsrc := len(ad.sources)
-	mu := func(r, c int) float64 { return ad.Mu[r*nsrc+c] }
-	// W = (I − M_II)⁻¹, by solving column by column.
 	w := make([]float64, k*k)
-	{
-		a := make([]float64, k*k)
-		for r := 0; r < k; r++ {
-			for c := 0; c < k; c++ {
-				a[r*k+c] = -m(nE+r, nE+c)
-			}
-			a[r*k+r]++
-		}
-		lu := mna.NewLU(k)
-		if err := lu.Factor(a); err != nil {
-			return nil, &models.CircuitError{What: "circuit", Reason: "a node is reached only by nonlinear device terminals (call Circuit.AddLeaks, as chains do)"}
-		}
-		col := make([]float64, k)
+	a := make([]float64, k*k)
+	for r := 0; r < k; r++ {
 		for c := 0; c < k; c++ {
-			clear(col)
-			col[c] = 1
-			lu.Solve(col)
-			for r := 0; r < k; r++ {
-				w[r*k+c] = col[r]
-			}
+			a[r*k+c] = -ad.M[(nE+r)*P+nE+c]
+		}
+		a[r*k+r]++
+	}
+	lu := mna.NewLU(k)
+	if err := lu.Factor(a); err != nil {
+		return nil, &models.CircuitError{What: "circuit", Reason: "a node is reached only by nonlinear device terminals (call Circuit.AddLeaks, as chains do)"}
+	}
+	col := make([]float64, k)
+	for c := 0; c < k; c++ {
+		clear(col)
+		col[c] = 1
+		lu.Solve(col)
+		for r := 0; r < k; r++ {
+			w[r*k+c] = col[r]
 		}
 	}
-	sh := &shared{ns: ns, k: k, maxIter: opt.MaxIter, tol: opt.Tol, adaptor: ad, probe: opt.Probe, circuit: c, rate: opt.SampleRate}
+	return w, nil
+}
+
+// sources holds the absorbed sources' values at DC (udc) and the column of
+// the signal source (sig, −1 for none).
+type sources struct {
+	udc []float64
+	sig int
+}
+
+func sourceColumns(c *models.Circuit, ad *Adaptor) sources {
+	src := sources{udc: make([]float64, len(ad.sources)), sig: -1}
+	for j, e := range ad.sources {
+		src.udc[j] = c.Elements[e].Value
+		if c.Elements[e].Signal {
+			src.sig = j
+		}
+	}
+	return src
+}
+
+// rootRelation writes the Kirchhoff-domain relation at the root (the
+// K-method form of the joint solve of Werner et al. 2015; derived here
+// directly): with a_I = v + R_I·i and b_I = v − R_I·i substituted in
+// a_I = S_IE·b_E + S_II·b_I + T_I·u,
+//
+//	v = W·(M_IE·b_E + Mu_I·u) − W·M_II·R_I·i,   W = (I − M_II)⁻¹,
+//
+// that is v = p + K·i with p = pz·[x…, 1, vin] (k rows over the states, a
+// constant 1 carrying the DC sources, and the signal) and K = −W·M_II·R_I.
+func (sh *shared) rootRelation(ad *Adaptor, nE int, lv leaves, w []float64, src sources) {
+	P, k, ns := len(ad.ports), sh.k, sh.ns
+	nsrc := len(ad.sources)
+	m := func(r, c int) float64 { return ad.M[r*P+c] }
+	mu := func(r, c int) float64 { return ad.Mu[r*nsrc+c] }
 	sh.rI = make([]float64, k)
 	for r := 0; r < k; r++ {
 		sh.rI[r] = ad.ports[nE+r].r
 	}
-	// Source values at DC, and the column of the signal source.
-	sig := -1
-	udc := make([]float64, nsrc)
-	for j, e := range ad.sources {
-		udc[j] = c.Elements[e].Value
-		if c.Elements[e].Signal {
-			sig = j
-		}
-	}
-	// Kirchhoff-domain relation at the root (the K-method form of the
-	// joint solve of Werner et al. 2015; derived here directly): with
-	// a_I = v + R_I·i and b_I = v − R_I·i substituted in
-	// a_I = S_IE·b_E + S_II·b_I + T_I·u,
-	//   v = W·(M_IE·b_E + Mu_I·u) − W·M_II·R_I·i,   W = (I − M_II)⁻¹.
-	// The hot loop works over z = [x…, 1, vin, bI…] (states, a constant
-	// 1, the signal, the root's waves): p = pz·z[:ns+2] (k rows) and
-	// [x_next; out] = nz·z (ns+1 rows), contiguous dot products.
-	zp, w2 := ns+2, ns+2+k
+	zp := ns + 2
 	sh.pz = make([]float64, k*zp)
 	sh.kk = make([]float64, k*k)
 	for r := 0; r < k; r++ {
 		row := sh.pz[r*zp : (r+1)*zp]
-		for a, j := range xs {
+		for a, j := range lv.ports {
 			s := 0.0
 			for q := 0; q < k; q++ {
 				s += w[r*k+q] * m(nE+q, j)
 			}
-			row[a] = s * sign[a]
+			row[a] = s * lv.sign[a]
 		}
-		for src := 0; src < nsrc; src++ {
+		for j := 0; j < nsrc; j++ {
 			s := 0.0
 			for q := 0; q < k; q++ {
-				s += w[r*k+q] * mu(nE+q, src)
+				s += w[r*k+q] * mu(nE+q, j)
 			}
-			row[ns] += s * udc[src]
-			if src == sig {
+			row[ns] += s * src.udc[j]
+			if j == src.sig {
 				row[ns+1] = s
 			}
 		}
@@ -182,46 +221,63 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 			sh.kk[r*k+c] = -s * sh.rI[c]
 		}
 	}
-	// Reflected waves into the reactive leaves, the next states: a =
-	// 2·v_port − b, i.e. a_X = (2M_XX − I)·b_X + 2M_XI·b_I + 2Mu_X·u.
+}
+
+// stateUpdate writes the reflected waves into the reactive leaves, which
+// are the next states, a = 2·v_port − b, i.e.
+//
+//	a_X = (2M_XX − I)·b_X + 2M_XI·b_I + 2Mu_X·u,
+//
+// and, as the last row, the probe node's voltage, both over z = [x…, 1,
+// vin, b_I…]: [x_next; out] = nz·z (ns+1 rows).
+func (sh *shared) stateUpdate(ad *Adaptor, nE int, lv leaves, src sources, probe int) {
+	P, k, ns := len(ad.ports), sh.k, sh.ns
+	nsrc := len(ad.sources)
+	m := func(r, c int) float64 { return ad.M[r*P+c] }
+	mu := func(r, c int) float64 { return ad.Mu[r*nsrc+c] }
+	w2 := ns + 2 + k
 	sh.nz = make([]float64, (ns+1)*w2)
-	for r, jr := range xs {
+	for r, jr := range lv.ports {
 		row := sh.nz[r*w2 : (r+1)*w2]
-		for a, j := range xs {
+		for a, j := range lv.ports {
 			v := 2 * m(jr, j)
 			if a == r {
 				v--
 			}
-			row[a] = v * sign[a]
+			row[a] = v * lv.sign[a]
 		}
-		for src := 0; src < nsrc; src++ {
-			row[ns] += 2 * mu(jr, src) * udc[src]
-			if src == sig {
-				row[ns+1] = 2 * mu(jr, src)
+		for j := 0; j < nsrc; j++ {
+			row[ns] += 2 * mu(jr, j) * src.udc[j]
+			if j == src.sig {
+				row[ns+1] = 2 * mu(jr, j)
 			}
 		}
 		for c := 0; c < k; c++ {
 			row[ns+2+c] = 2 * m(jr, nE+c)
 		}
 	}
-	// The last row: the probe node's voltage.
 	out := sh.nz[ns*w2:]
-	for a, j := range xs {
-		out[a] = ad.N[opt.Probe*P+j] * sign[a]
+	for a, j := range lv.ports {
+		out[a] = ad.N[probe*P+j] * lv.sign[a]
 	}
-	for src := 0; src < nsrc; src++ {
-		u := ad.Nu[opt.Probe*nsrc+src]
-		out[ns] += u * udc[src]
-		if src == sig {
+	for j := 0; j < nsrc; j++ {
+		u := ad.Nu[probe*nsrc+j]
+		out[ns] += u * src.udc[j]
+		if j == src.sig {
 			out[ns+1] = u
 		}
 	}
 	for c := 0; c < k; c++ {
-		out[ns+2+c] = ad.N[opt.Probe*P+nE+c]
+		out[ns+2+c] = ad.N[probe*P+nE+c]
 	}
-	// Devices and initial state from the operating point.
+}
+
+// startAt records the devices and the states and device voltages at the
+// DC operating point op (capacitor waves from their voltages, inductor
+// waves from their currents).
+func (sh *shared) startAt(op *mna.OperatingPoint, ad *Adaptor, lv leaves) {
 	off := 0
-	sh.v0 = make([]float64, k)
+	sh.v0 = make([]float64, sh.k)
 	for _, d := range op.Devices {
 		if e, ok := d.Model.(interface{ EmissionVoltage() float64 }); ok {
 			sh.curv = math.Max(sh.curv, 1/(2*e.EmissionVoltage()))
@@ -234,8 +290,8 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 		copy(sh.v0[off:], d.V)
 		off += n
 	}
-	sh.x0 = make([]float64, ns)
-	for a, j := range xs {
+	sh.x0 = make([]float64, sh.ns)
+	for a, j := range lv.ports {
 		pt := ad.ports[j]
 		switch pt.leaf {
 		case leafCapacitor:
@@ -244,7 +300,6 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 			sh.x0[a] = pt.r * op.Branch[pt.elem] // a = v + R·i with v = 0
 		}
 	}
-	return sh.newChannel(), nil
 }
 
 // dot returns Σ a[i]·b[i] over len(a), four lanes at a time.
