@@ -1,0 +1,338 @@
+package wdf
+
+import "math"
+
+// evalDevices evaluates every device at s.v into s.i and s.jd.
+func (s *Solver) evalDevices() {
+	o := 0
+	v, i, jd := s.v, s.i, s.jd
+	for _, d := range s.devs {
+		switch {
+		case d.bjt != nil:
+			var j [4]float64
+			i[d.off], i[d.off+1], j = d.bjt.Eval2(v[d.off], v[d.off+1])
+			copy(jd[o:o+4], j[:])
+		case d.dio != nil:
+			i[d.off], jd[o] = d.dio.Current(v[d.off])
+		default:
+			d.model.Eval(v[d.off:d.off+d.n], i[d.off:d.off+d.n], jd[o:o+d.n*d.n])
+		}
+		o += d.n * d.n
+	}
+}
+
+// newton solves v = p + K·f(v) from the current s.v, for at most maxIter
+// iterations; it returns the iterations used and whether it converged.
+// On success s.i holds f(v) (updated to first order in the last step).
+//
+// Convergence: the step is below Tol, or the Newton error estimate for the
+// next step, Δ²/(2·nVt) (the quadratic term of an exponential junction of
+// emission voltage nVt, the stiffest in the circuit), is below Tol/10.
+func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
+	k := s.k
+	if k == 0 {
+		return 0, true // a linear circuit: nothing to solve
+	}
+	v, i, f, dv, kk := s.v[:k], s.i[:k], s.f[:k], s.dv[:k], s.kk[:k*k]
+	p = p[:k]
+	best := inf
+	for it := 1; it <= maxIter; it++ {
+		s.evalDevices()
+		// Residual F = v − p − K·i and Newton matrix J = I − K·Jf.
+		res := 0.0
+		for r := 0; r < k; r++ {
+			acc := v[r] - p[r] - dot(kk[r*k:r*k+k], i)
+			f[r] = -acc
+			if acc < 0 {
+				acc = -acc
+			}
+			if acc > res {
+				res = acc
+			}
+		}
+		if res < best {
+			best = res
+			copy(s.vBest, v)
+		}
+		s.buildJacobian()
+		if !solveInPlace(s.jac, f, k) {
+			return it, false
+		}
+		// Limited step.
+		copy(dv, v)
+		for r := 0; r < k; r++ {
+			v[r] += f[r]
+		}
+		s.limit(v, dv)
+		step := 0.0
+		for r := 0; r < k; r++ {
+			d := v[r] - dv[r]
+			dv[r] = d
+			if d < 0 {
+				d = -d
+			}
+			if d > step {
+				step = d
+			}
+		}
+		if !(step < inf) { // NaN or Inf
+			return it, false
+		}
+		if (step < s.tol || step*step*s.curv < s.tol*0.1) && s.physical() {
+			// First-order update of the currents to the accepted v (the
+			// error is O(step²), below the tolerance by the test above).
+			o := 0
+			jd := s.jd
+			for _, d := range s.devs {
+				switch d.n {
+				case 1:
+					i[d.off] += jd[o] * dv[d.off]
+				case 2:
+					a, b := dv[d.off], dv[d.off+1]
+					i[d.off] += jd[o]*a + jd[o+1]*b
+					i[d.off+1] += jd[o+2]*a + jd[o+3]*b
+				default:
+					n := d.n
+					for r := 0; r < n; r++ {
+						acc := 0.0
+						for c := 0; c < n; c++ {
+							acc += jd[o+r*n+c] * dv[d.off+c]
+						}
+						i[d.off+r] += acc
+					}
+				}
+				o += d.n * d.n
+			}
+			return it, true
+		}
+	}
+	return maxIter, false
+}
+
+// limit applies each device's junction limiting to the step vold → v.
+func (s *Solver) limit(v, vold []float64) {
+	for _, d := range s.devs {
+		switch {
+		case d.bjt != nil:
+			v[d.off], v[d.off+1] = d.bjt.Limit2(v[d.off], v[d.off+1], vold[d.off], vold[d.off+1])
+		case d.dio != nil:
+			v[d.off] = d.dio.Limit1(v[d.off], vold[d.off])
+		default:
+			d.model.Limit(v[d.off:d.off+d.n], vold[d.off:d.off+d.n])
+		}
+	}
+}
+
+var inf = math.Inf(1)
+
+// physical reports whether every device's port voltages are physically
+// reachable (models' Physical): a root outside that range (a junction
+// forward-biased past the exponential's range, or kilovolts of reverse
+// bias) is a spurious solution of the linearly continued device
+// equations, and is not accepted.
+func (s *Solver) physical() bool {
+	for _, d := range s.devs {
+		switch {
+		case d.bjt != nil:
+			if !d.bjt.Physical(s.v[d.off], s.v[d.off+1]) {
+				return false
+			}
+		case d.dio != nil:
+			if !d.dio.Physical(s.v[d.off]) {
+				return false
+			}
+		}
+	}
+	return true
+}
+
+// substepIter is the Newton budget of each continuation sub-step.
+const substepIter = 100
+
+// predictorTrust bounds the curvature correction of the predictor, and
+// predictorMaxMove the last move of a port beyond which it is not
+// extrapolated at all, volts.
+const (
+	predictorTrust   = 1e-2
+	predictorMaxMove = 0.1
+)
+
+// buildJacobian writes J = I − K·Jf, Jf block-diagonal by device.
+func (s *Solver) buildJacobian() {
+	k, kk, jac, jd := s.k, s.kk, s.jac, s.jd
+	o := 0
+	for _, d := range s.devs {
+		c0 := d.off
+		switch d.n {
+		case 1:
+			g := jd[o]
+			for r := 0; r < k; r++ {
+				jac[r*k+c0] = -kk[r*k+c0] * g
+			}
+		case 2:
+			j00, j01, j10, j11 := jd[o], jd[o+1], jd[o+2], jd[o+3]
+			for r := 0; r < k; r++ {
+				k0, k1 := kk[r*k+c0], kk[r*k+c0+1]
+				jac[r*k+c0] = -(k0*j00 + k1*j10)
+				jac[r*k+c0+1] = -(k0*j01 + k1*j11)
+			}
+		default:
+			n := d.n
+			blk := jd[o : o+n*n]
+			for r := 0; r < k; r++ {
+				for c := 0; c < n; c++ {
+					acc := 0.0
+					for q := 0; q < n; q++ {
+						acc += kk[r*k+c0+q] * blk[q*n+c]
+					}
+					jac[r*k+c0+c] = -acc
+				}
+			}
+		}
+		o += d.n * d.n
+	}
+	for r := 0; r < k; r++ {
+		jac[r*k+r]++
+	}
+}
+
+// solveInPlace solves a·x = b for the row-major k×k matrix a by Gaussian
+// elimination with partial pivoting, overwriting a and leaving x in b. It
+// reports false for a singular or non-finite matrix. The pivots'
+// reciprocals are kept on a's diagonal, so back substitution multiplies
+// instead of dividing (k divisions in all).
+func solveInPlace(a, b []float64, k int) bool {
+	a = a[:k*k]
+	b = b[:k]
+	for c := 0; c < k; c++ {
+		p, pv := c, abs(a[c*k+c])
+		for r := c + 1; r < k; r++ {
+			if v := abs(a[r*k+c]); v > pv {
+				p, pv = r, v
+			}
+		}
+		if !(pv > 1e-300) || pv == inf {
+			return false
+		}
+		if p != c {
+			for j := c; j < k; j++ {
+				a[c*k+j], a[p*k+j] = a[p*k+j], a[c*k+j]
+			}
+			b[c], b[p] = b[p], b[c]
+		}
+		inv := 1 / a[c*k+c]
+		a[c*k+c] = inv
+		bc := b[c]
+		for r := c + 1; r < k; r++ {
+			l := a[r*k+c] * inv
+			if l == 0 {
+				continue
+			}
+			for j := c + 1; j < k; j++ {
+				a[r*k+j] -= l * a[c*k+j]
+			}
+			b[r] -= l * bc
+		}
+	}
+	for r := k - 1; r >= 0; r-- {
+		acc := b[r]
+		for j := r + 1; j < k; j++ {
+			acc -= a[r*k+j] * b[j]
+		}
+		b[r] = acc * a[r*k+r]
+	}
+	return true
+}
+
+func abs(x float64) float64 {
+	if x < 0 {
+		return -x
+	}
+	return x
+}
+
+// solve finds the root's device voltages for s.p, falling back to a
+// sub-stepped continuation from the previous sample's p when plain Newton
+// fails: p(λ) = pPrev + λ·(p − pPrev) over 4, then 16 sub-steps, each with
+// a larger iteration budget. What still fails keeps the iterate with the
+// smallest residual (finite by construction) and is counted.
+func (s *Solver) solve() {
+	// Predictor: quadratic extrapolation of the last three solutions,
+	// trusted only while it stays within predictorTrust of the linear one
+	// (near a clipping corner the curvature term overshoots). A device
+	// whose port moved more than predictorMaxMove in the last sample (a
+	// switching edge) starts from its last solution instead, and the
+	// prediction is junction-limited against that solution, so that no
+	// start puts a junction far into forward bias.
+	for r := range s.v {
+		lin := 2*s.vPrev[r] - s.vOld[r]
+		quad := 3*(s.vPrev[r]-s.vOld[r]) + s.vOld2[r]
+		if d := quad - lin; d < predictorTrust && d > -predictorTrust {
+			s.v[r] = quad
+		} else {
+			s.v[r] = lin
+		}
+	}
+	for _, d := range s.devs {
+		for r := d.off; r < d.off+d.n; r++ {
+			if m := s.vPrev[r] - s.vOld[r]; m > predictorMaxMove || m < -predictorMaxMove {
+				copy(s.v[d.off:d.off+d.n], s.vPrev[d.off:d.off+d.n])
+				break
+			}
+		}
+	}
+	s.limit(s.v, s.vPrev)
+	it, ok := s.newton(s.p, s.maxIter)
+	total := it
+	if !ok {
+		// Restart from the last solution, without extrapolation.
+		copy(s.v, s.vPrev)
+		it, ok = s.newton(s.p, s.maxIter)
+		total += it
+	}
+	if !ok {
+		s.stats.Fallbacks++
+		ok = s.substep(&total)
+	}
+	if !ok {
+		s.stats.NonConverged++
+		copy(s.v, s.vBest)
+		for r := range s.v {
+			if math.IsNaN(s.v[r]) || math.IsInf(s.v[r], 0) {
+				copy(s.v, s.vPrev)
+				break
+			}
+		}
+		s.evalDevices()
+	}
+	s.stats.Iterations += int64(total)
+	if total > s.stats.MaxIterations {
+		s.stats.MaxIterations = total
+	}
+	copy(s.vOld2, s.vOld)
+	copy(s.vOld, s.vPrev)
+	copy(s.vPrev, s.v)
+	copy(s.pPrev, s.p)
+}
+
+// substep runs the continuation from the last sample's p to s.p.
+func (s *Solver) substep(total *int) bool {
+	k, pl := s.k, s.pSub
+	for _, n := range [...]int{4, 16} {
+		copy(s.v, s.vPrev)
+		ok := true
+		for step := 1; step <= n && ok; step++ {
+			lam := float64(step) / float64(n)
+			for r := 0; r < k; r++ {
+				pl[r] = s.pPrev[r] + lam*(s.p[r]-s.pPrev[r])
+			}
+			it, conv := s.newton(pl, substepIter)
+			*total += it
+			ok = conv
+		}
+		if ok {
+			return true
+		}
+	}
+	return false
+}
