@@ -11,7 +11,8 @@ func (s *Solver) evalDevices() {
 		case d.bjt != nil:
 			var j [4]float64
 			i[d.off], i[d.off+1], j = d.bjt.Eval2(v[d.off], v[d.off+1])
-			copy(jd[o:o+4], j[:])
+			b := jd[o : o+4 : o+4]
+			b[0], b[1], b[2], b[3] = j[0], j[1], j[2], j[3]
 		case d.dio != nil:
 			i[d.off], jd[o] = d.dio.Current(v[d.off])
 		default:
@@ -34,13 +35,14 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 		return 0, true // a linear circuit: nothing to solve
 	}
 	v, i, f, dv, kk := s.v[:k], s.i[:k], s.f[:k], s.dv[:k], s.kk[:k*k]
+	vBest := s.vBest[:k]
 	p = p[:k]
 	best := inf
 	for it := 1; it <= maxIter; it++ {
 		s.evalDevices()
 		// Residual F = v − p − K·i and Newton matrix J = I − K·Jf.
 		res := 0.0
-		for r := 0; r < k; r++ {
+		for r := range f {
 			acc := v[r] - p[r] - dot(kk[r*k:r*k+k], i)
 			f[r] = -acc
 			if acc < 0 {
@@ -52,20 +54,20 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 		}
 		if res < best {
 			best = res
-			copy(s.vBest, v)
+			copyVec(vBest, v)
 		}
 		s.buildJacobian()
 		if !solveInPlace(s.jac, f, k) {
 			return it, false
 		}
 		// Limited step.
-		copy(dv, v)
-		for r := 0; r < k; r++ {
+		for r := range dv {
+			dv[r] = v[r]
 			v[r] += f[r]
 		}
 		s.limit(v, dv)
 		step := 0.0
-		for r := 0; r < k; r++ {
+		for r := range dv {
 			d := v[r] - dv[r]
 			dv[r] = d
 			if d < 0 {
@@ -264,19 +266,21 @@ func (s *Solver) solve() {
 	// switching edge) starts from its last solution instead, and the
 	// prediction is junction-limited against that solution, so that no
 	// start puts a junction far into forward bias.
-	for r := range s.v {
-		lin := 2*s.vPrev[r] - s.vOld[r]
-		quad := 3*(s.vPrev[r]-s.vOld[r]) + s.vOld2[r]
+	v := s.v
+	vp, vo, vo2 := s.vPrev[:len(v)], s.vOld[:len(v)], s.vOld2[:len(v)]
+	for r := range v {
+		lin := 2*vp[r] - vo[r]
+		quad := 3*(vp[r]-vo[r]) + vo2[r]
 		if d := quad - lin; d < predictorTrust && d > -predictorTrust {
-			s.v[r] = quad
+			v[r] = quad
 		} else {
-			s.v[r] = lin
+			v[r] = lin
 		}
 	}
 	for _, d := range s.devs {
 		for r := d.off; r < d.off+d.n; r++ {
-			if m := s.vPrev[r] - s.vOld[r]; m > predictorMaxMove || m < -predictorMaxMove {
-				copy(s.v[d.off:d.off+d.n], s.vPrev[d.off:d.off+d.n])
+			if m := vp[r] - vo[r]; m > predictorMaxMove || m < -predictorMaxMove {
+				copyVec(v[d.off:d.off+d.n], vp[d.off:d.off+d.n])
 				break
 			}
 		}
@@ -309,10 +313,10 @@ func (s *Solver) solve() {
 	if total > s.stats.MaxIterations {
 		s.stats.MaxIterations = total
 	}
-	copy(s.vOld2, s.vOld)
-	copy(s.vOld, s.vPrev)
-	copy(s.vPrev, s.v)
-	copy(s.pPrev, s.p)
+	// Shift the history by rotating its buffers, then keep this sample.
+	s.vOld2, s.vOld, s.vPrev = s.vOld, s.vPrev, s.vOld2
+	copyVec(s.vPrev, s.v)
+	s.p, s.pPrev = s.pPrev, s.p
 }
 
 // substep runs the continuation from the last sample's p to s.p.

@@ -72,7 +72,7 @@ type Solver struct {
 	InputGain, OutputGain float64
 
 	z           []float64 // [x…, 1, vin, bI…]: states, constant, input, root waves
-	xn          []float64 // next states
+	zn          []float64 // the next sample's z, while the states are updated
 	v, i        []float64 // device port voltages and currents
 	p, pPrev    []float64
 	pSub        []float64 // continuation target of a sub-step
@@ -309,7 +309,7 @@ func (sh *shared) newChannel() *Solver {
 		jdLen += d.n * d.n
 	}
 	s := &Solver{shared: sh, InputGain: 1, OutputGain: 1,
-		z: make([]float64, ns+2+k), xn: make([]float64, ns),
+		z: make([]float64, ns+2+k), zn: make([]float64, ns+2+k),
 		v: make([]float64, k), i: make([]float64, k), p: make([]float64, k), pPrev: make([]float64, k), pSub: make([]float64, k),
 		vPrev: make([]float64, k), vOld: make([]float64, k), vOld2: make([]float64, k), vBest: make([]float64, k), f: make([]float64, k), dv: make([]float64, k),
 		jd: make([]float64, jdLen), jac: make([]float64, k*k)}
@@ -330,6 +330,7 @@ func (s *Solver) Clone() *Solver {
 func (s *Solver) Reset() {
 	copy(s.z, s.x0)
 	s.z[s.ns] = 1
+	s.zn[s.ns] = 1
 	copy(s.v, s.v0)
 	copy(s.vPrev, s.v0)
 	copy(s.vOld, s.v0)
@@ -356,9 +357,7 @@ func (s *Solver) SampleRate() float64 { return s.rate }
 func (s *Solver) computeP(vin float64) {
 	ns := s.ns
 	s.z[ns+1] = vin
-	for r := range s.p {
-		s.p[r] = dot(s.pz[r*(ns+2):(r+1)*(ns+2)], s.z[:ns+2])
-	}
+	matVec(s.p, s.pz, s.z[:ns+2])
 }
 
 // Tick advances one sample with the signal source at vin volts above its
@@ -367,28 +366,27 @@ func (s *Solver) Tick(vin float64) float64 {
 	ns, k := s.ns, s.k
 	z := s.z
 	z[ns+1] = vin
-	zp := z[:ns+2]
-	for r := range s.p {
-		s.p[r] = dot(s.pz[r*(ns+2):(r+1)*(ns+2)], zp)
+	if k > 0 {
+		matVec(s.p, s.pz, z[:ns+2])
+		s.solve()
+		bI := z[ns+2 : ns+2+k]
+		v, i, rI := s.v[:len(bI)], s.i[:len(bI)], s.rI[:len(bI)]
+		for r := range bI {
+			bI[r] = v[r] - rI[r]*i[r]
+		}
 	}
-	s.solve()
 	s.stats.Samples++
-	bI := z[ns+2:]
-	for r := 0; r < k; r++ {
-		bI[r] = s.v[r] - s.rI[r]*s.i[r]
-	}
 	w := len(z)
 	out := dot(s.nz[ns*w:(ns+1)*w], z)
-	xn := s.xn
-	for r := 0; r < ns; r++ {
-		xn[r] = dot(s.nz[r*w:(r+1)*w], z)
-	}
 	if math.IsNaN(out) || math.IsInf(out, 0) {
 		// Cannot happen with finite device voltages; guard the file anyway.
 		s.stats.NonConverged++
 		return s.lastOut
 	}
-	copy(z[:ns], xn)
+	// The next states go to the other buffer, which becomes z.
+	zn := s.zn
+	matVec(zn[:ns], s.nz, z)
+	s.z, s.zn = zn, z
 	s.lastOut = out
 	return out
 }
