@@ -30,6 +30,9 @@ func (s *Solver) evalDevices() {
 // next step, Δ²/(2·nVt) (the quadratic term of an exponential junction of
 // emission voltage nVt, the stiffest in the circuit), is below Tol/10.
 func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
+	if s.small != nil {
+		return s.newtonSmall(p, maxIter)
+	}
 	k := s.k
 	if k == 0 {
 		return 0, true // a linear circuit: nothing to solve

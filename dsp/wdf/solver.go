@@ -53,7 +53,8 @@ type shared struct {
 	// [x_next; out] = nz·z (ns+1 rows).
 	pz, nz  []float64
 	devs    []devSlot
-	x0, v0  []float64 // states and device voltages at the operating point
+	small   *smallRoot // the fixed-size kernel's data; nil: the general kernel
+	x0, v0  []float64  // states and device voltages at the operating point
 	maxIter int
 	curv    float64 // 1/(2·nVt) of the stiffest junction, for the error estimate
 	tol     float64
@@ -99,6 +100,7 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 	sh.rootRelation(ad, nE, lv, w, src)
 	sh.stateUpdate(ad, nE, lv, src, opt.Probe)
 	sh.startAt(op, ad, lv)
+	sh.small = newSmallRoot(sh)
 	return sh.newChannel(), nil
 }
 
@@ -308,10 +310,13 @@ func (sh *shared) newChannel() *Solver {
 	for _, d := range sh.devs {
 		jdLen += d.n * d.n
 	}
+	// Root vectors have room for the fixed-size kernel's smallK entries;
+	// those beyond k stay zero.
+	vec := func() []float64 { return make([]float64, k, max(k, smallK)) }
 	s := &Solver{shared: sh, InputGain: 1, OutputGain: 1,
 		z: make([]float64, ns+2+k), zn: make([]float64, ns+2+k),
-		v: make([]float64, k), i: make([]float64, k), p: make([]float64, k), pPrev: make([]float64, k), pSub: make([]float64, k),
-		vPrev: make([]float64, k), vOld: make([]float64, k), vOld2: make([]float64, k), vBest: make([]float64, k), f: make([]float64, k), dv: make([]float64, k),
+		v: vec(), i: vec(), p: vec(), pPrev: vec(), pSub: vec(),
+		vPrev: vec(), vOld: vec(), vOld2: vec(), vBest: vec(), f: vec(), dv: vec(),
 		jd: make([]float64, jdLen), jac: make([]float64, k*k)}
 	s.Reset()
 	return s
@@ -376,16 +381,18 @@ func (s *Solver) Tick(vin float64) float64 {
 		}
 	}
 	s.stats.Samples++
-	w := len(z)
-	out := dot(s.nz[ns*w:(ns+1)*w], z)
+	// The next states and the output in one product, into the other
+	// buffer: its slot ns (the constant 1 of z) takes the output for a
+	// moment.
+	zn := s.zn
+	matVec(zn[:ns+1], s.nz, z)
+	out := zn[ns]
+	zn[ns] = 1
 	if math.IsNaN(out) || math.IsInf(out, 0) {
 		// Cannot happen with finite device voltages; guard the file anyway.
 		s.stats.NonConverged++
 		return s.lastOut
 	}
-	// The next states go to the other buffer, which becomes z.
-	zn := s.zn
-	matVec(zn[:ns], s.nz, z)
 	s.z, s.zn = zn, z
 	s.lastOut = out
 	return out
