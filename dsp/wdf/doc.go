@@ -19,11 +19,13 @@
 // Nonlinear root. With a = v + R·i and b = v − R·i at the root's ports the
 // scattering relation becomes the Kirchhoff-domain relation v = p + K·i (the
 // K-method form of the joint solve), p linear in the leaves' waves and the
-// inputs, K constant. Newton solves v = p + K·f(v) from a predictor
-// (quadratic extrapolation of the last solutions), with classical junction
-// limiting and a step / error-estimate convergence test; a failed sample is
-// retried from the last solution, then by continuation in p over 4 and 16
-// sub-steps; what still fails keeps the best finite iterate and is counted
+// inputs, K constant. Newton solves v = p + K·f(v) from a predictor (the
+// last solution moved along the linearised solution map by the change in
+// p, with the last Newton matrix's factors, plus the last sample's error
+// of that linear step), with classical junction limiting and a step /
+// error-estimate convergence test; a failed sample is retried from the
+// last solution, then by continuation in p over 4 and 16 sub-steps; what
+// still fails keeps the best finite iterate and is counted
 // (Stats.NonConverged), so nothing non-finite reaches the output. The
 // device Jacobians are analytic (models package) and are checked against
 // central differences in that package's tests.

@@ -10,6 +10,7 @@ import "renderchain/models"
 // column in K, so its row of the Newton matrix is the identity row and its
 // step is zero; every sum of the general kernel gains only exact zeros, so
 // both kernels give the same numbers (a test checks this bit for bit).
+// This includes the predictor, which reuses each kernel's factors.
 
 // smallK is the port count of the fixed-size kernel.
 const smallK = 4
@@ -116,6 +117,7 @@ func (s *Solver) physicalSmall(v *[smallK]float64) bool {
 // same iteration, limiting, convergence test and first-order current
 // update, on arrays.
 func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
+	s.haveLU = false
 	sr := s.small
 	K := &sr.kk
 	var i, f, vOld, jd, jo [smallK]float64
@@ -141,7 +143,9 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 			best = res
 			*(*[smallK]float64)(s.vBest[:smallK]) = v
 		}
-		var a [smallK][smallK]float64
+		// J is built and factored in the solver's lu4, so that after
+		// convergence its factors remain for the next sample's predictor.
+		a := &s.lu4
 		for r := 0; r < smallK; r++ {
 			kr, pr := &K[r], &sr.kp[r]
 			a[r] = [smallK]float64{
@@ -152,7 +156,7 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 			}
 			a[r][r]++
 		}
-		if !solve4(&a, &f) {
+		if !solve4(a, &f, &s.piv4) {
 			*(*[smallK]float64)(s.v[:smallK]) = v
 			return it, false
 		}
@@ -186,6 +190,7 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 			}
 			*(*[smallK]float64)(s.v[:smallK]) = v
 			*(*[smallK]float64)(s.i[:smallK]) = i
+			s.haveLU = true
 			return it, true
 		}
 	}
@@ -193,50 +198,9 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 	return maxIter, false
 }
 
-// solveSmall is solveInPlace for the fixed-size matrix: Gaussian
-// elimination with partial pivoting, the same operations in the same order.
-func solveSmall(a *[smallK][smallK]float64, b *[smallK]float64) bool {
-	for c := 0; c < smallK; c++ {
-		p, pv := c, abs(a[c][c])
-		for r := c + 1; r < smallK; r++ {
-			if v := abs(a[r][c]); v > pv {
-				p, pv = r, v
-			}
-		}
-		if !(pv > 1e-300) || pv == inf {
-			return false
-		}
-		p &= smallK - 1
-		if p != c {
-			a[c], a[p] = a[p], a[c]
-			b[c], b[p] = b[p], b[c]
-		}
-		inv := 1 / a[c][c]
-		a[c][c] = inv
-		bc := b[c]
-		for r := c + 1; r < smallK; r++ {
-			l := a[r][c] * inv
-			if l == 0 {
-				continue
-			}
-			for j := c + 1; j < smallK; j++ {
-				a[r][j] -= l * a[c][j]
-			}
-			b[r] -= l * bc
-		}
-	}
-	for r := smallK - 1; r >= 0; r-- {
-		acc := b[r]
-		for j := r + 1; j < smallK; j++ {
-			acc -= a[r][j] * b[j]
-		}
-		b[r] = acc * a[r][r]
-	}
-	return true
-}
-
-// solve4 is solveSmall written out for four ports.
-func solve4(a *[4][4]float64, b *[4]float64) bool {
+// solve4 is solveInPlace written out for four ports; piv receives the
+// pivot row of the first three columns, for applyLU4.
+func solve4(a *[4][4]float64, b *[4]float64, piv *[3]int) bool {
 	// Column 0.
 	p, pv := 0, abs(a[0][0])
 	if v := abs(a[1][0]); v > pv {
@@ -251,6 +215,7 @@ func solve4(a *[4][4]float64, b *[4]float64) bool {
 	if !(pv > 1e-300) || pv == inf {
 		return false
 	}
+	piv[0] = p
 	if p != 0 {
 		p &= 3
 		a[0], a[p] = a[p], a[0]
@@ -288,6 +253,7 @@ func solve4(a *[4][4]float64, b *[4]float64) bool {
 	if !(pv > 1e-300) || pv == inf {
 		return false
 	}
+	piv[1] = p
 	if p != 1 {
 		p &= 3
 		a[1], a[p] = a[p], a[1]
@@ -314,6 +280,7 @@ func solve4(a *[4][4]float64, b *[4]float64) bool {
 	if !(pv > 1e-300) || pv == inf {
 		return false
 	}
+	piv[2] = p
 	if p != 2 {
 		a[2], a[3] = a[3], a[2]
 		b[2], b[3] = b[3], b[2]
@@ -335,4 +302,24 @@ func solve4(a *[4][4]float64, b *[4]float64) bool {
 	b[1] = ((b[1] - a[1][2]*b[2]) - a[1][3]*b[3]) * a[1][1]
 	b[0] = (((b[0] - a[0][1]*b[1]) - a[0][2]*b[2]) - a[0][3]*b[3]) * a[0][0]
 	return true
+}
+
+// applyLU4 overwrites d with J⁻¹·d, J factored by solve4 into a and piv:
+// the row exchanges, then forward and back substitution with the same
+// multipliers, in the order applyLU uses.
+func applyLU4(a *[4][4]float64, piv *[3]int, d *[4]float64) {
+	for c := 0; c < 3; c++ {
+		p := piv[c] & 3
+		d[c], d[p] = d[p], d[c]
+	}
+	d[1] -= a[1][0] * a[0][0] * d[0]
+	d[2] -= a[2][0] * a[0][0] * d[0]
+	d[3] -= a[3][0] * a[0][0] * d[0]
+	d[2] -= a[2][1] * a[1][1] * d[1]
+	d[3] -= a[3][1] * a[1][1] * d[1]
+	d[3] -= a[3][2] * a[2][2] * d[2]
+	d[3] = d[3] * a[3][3]
+	d[2] = (d[2] - a[2][3]*d[3]) * a[2][2]
+	d[1] = ((d[1] - a[1][2]*d[2]) - a[1][3]*d[3]) * a[1][1]
+	d[0] = (((d[0] - a[0][1]*d[1]) - a[0][2]*d[2]) - a[0][3]*d[3]) * a[0][0]
 }

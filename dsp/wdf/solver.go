@@ -72,14 +72,25 @@ type Solver struct {
 	// probe voltage to dst samples. Both default to 1.
 	InputGain, OutputGain float64
 
-	z           []float64 // [x…, 1, vin, bI…]: states, constant, input, root waves
-	zn          []float64 // the next sample's z, while the states are updated
-	v, i        []float64 // device port voltages and currents
-	p, pPrev    []float64
-	pSub        []float64 // continuation target of a sub-step
-	vPrev, vOld []float64 // the last two solutions
-	vOld2       []float64 // and the one before
-	vBest       []float64
+	z        []float64 // [x…, 1, vin, bI…]: states, constant, input, root waves
+	zn       []float64 // the next sample's z, while the states are updated
+	v, i     []float64 // device port voltages and currents
+	p, pPrev []float64
+	pSub     []float64 // continuation target of a sub-step
+	vPrev    []float64 // the last solution
+	vBest    []float64
+	// Predictor (see predict): the factors of the Newton matrix of the last
+	// converged solve (jac and piv for the general kernel, lu4 and piv4 for
+	// the fixed-size one), whether they are valid, the change in p mapped
+	// through them, this sample's linear prediction and the last one's
+	// error.
+	piv         []int
+	lu4         [smallK][smallK]float64
+	piv4        [smallK - 1]int
+	haveLU      bool
+	predicted   bool
+	dp          []float64
+	lin, linErr []float64
 	f, dv       []float64
 	jd          []float64 // per-device Jacobian blocks, packed
 	jac         []float64 // k×k Newton matrix
@@ -316,8 +327,8 @@ func (sh *shared) newChannel() *Solver {
 	s := &Solver{shared: sh, InputGain: 1, OutputGain: 1,
 		z: make([]float64, ns+2+k), zn: make([]float64, ns+2+k),
 		v: vec(), i: vec(), p: vec(), pPrev: vec(), pSub: vec(),
-		vPrev: vec(), vOld: vec(), vOld2: vec(), vBest: vec(), f: vec(), dv: vec(),
-		jd: make([]float64, jdLen), jac: make([]float64, k*k)}
+		vPrev: vec(), vBest: vec(), f: vec(), dv: vec(), dp: vec(), lin: vec(), linErr: vec(),
+		jd: make([]float64, jdLen), jac: make([]float64, k*k), piv: make([]int, k)}
 	s.Reset()
 	return s
 }
@@ -338,8 +349,8 @@ func (s *Solver) Reset() {
 	s.zn[s.ns] = 1
 	copy(s.v, s.v0)
 	copy(s.vPrev, s.v0)
-	copy(s.vOld, s.v0)
-	copy(s.vOld2, s.v0)
+	s.haveLU = false
+	clear(s.linErr)
 	s.evalDevices()
 	s.computeP(0)
 	copy(s.pPrev, s.p)
