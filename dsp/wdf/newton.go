@@ -216,34 +216,44 @@ func solveInPlace(a, b []float64, piv []int, k int) bool {
 			return false
 		}
 		piv[c] = p
+		rc := a[c*k : c*k+k]
 		if p != c {
 			// Whole rows, the multipliers left of the diagonal included,
 			// so that applyLU can apply every exchange first.
-			for j := 0; j < k; j++ {
-				a[c*k+j], a[p*k+j] = a[p*k+j], a[c*k+j]
+			rp := a[p*k : p*k+k]
+			rp = rp[:len(rc)]
+			for j, x := range rc {
+				rc[j], rp[j] = rp[j], x
 			}
 			b[c], b[p] = b[p], b[c]
 		}
-		inv := 1 / a[c*k+c]
-		a[c*k+c] = inv
+		inv := 1 / rc[c]
+		rc[c] = inv
+		tail := rc[c+1:]
 		bc := b[c]
 		for r := c + 1; r < k; r++ {
-			l := a[r*k+c] * inv
+			rr := a[r*k+c : r*k+k]
+			l := rr[0] * inv
 			if l == 0 {
 				continue
 			}
-			for j := c + 1; j < k; j++ {
-				a[r*k+j] -= l * a[c*k+j]
+			rr = rr[1:]
+			rr = rr[:len(tail)]
+			for j, x := range tail {
+				rr[j] -= l * x
 			}
 			b[r] -= l * bc
 		}
 	}
 	for r := k - 1; r >= 0; r-- {
+		ra := a[r*k+r : r*k+k]
+		bt := b[r+1:]
+		bt = bt[:len(ra)-1]
 		acc := b[r]
-		for j := r + 1; j < k; j++ {
-			acc -= a[r*k+j] * b[j]
+		for j, x := range bt {
+			acc -= ra[j+1] * x
 		}
-		b[r] = acc * a[r*k+r]
+		b[r] = acc * ra[0]
 	}
 	return true
 }
