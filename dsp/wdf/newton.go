@@ -117,7 +117,22 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 }
 
 // limit applies each device's junction limiting to the step vold → v.
+// A step of at most freeStep on every port is left alone: no junction
+// limiting acts on it (see shared.freeStep).
 func (s *Solver) limit(v, vold []float64) {
+	if s.freeStep > 0 {
+		vold = vold[:len(v)]
+		big := false
+		for r, x := range v {
+			if d := x - vold[r]; d > s.freeStep || d < -s.freeStep {
+				big = true
+				break
+			}
+		}
+		if !big {
+			return
+		}
+	}
 	for _, d := range s.devs {
 		switch {
 		case d.bjt != nil:

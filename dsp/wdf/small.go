@@ -161,10 +161,14 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 			return it, false
 		}
 		vOld = v
+		big := false
 		for r := 0; r < smallK; r++ {
 			v[r] += f[r]
+			big = big || f[r] > s.freeStep || f[r] < -s.freeStep
 		}
-		s.limitSmall(&v, &vOld)
+		if big {
+			s.limitSmall(&v, &vOld)
+		}
 		step := 0.0
 		var dv [smallK]float64
 		for r := 0; r < smallK; r++ {

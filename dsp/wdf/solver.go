@@ -57,11 +57,18 @@ type shared struct {
 	x0, v0  []float64  // states and device voltages at the operating point
 	maxIter int
 	curv    float64 // 1/(2·nVt) of the stiffest junction, for the error estimate
-	tol     float64
-	adaptor *Adaptor
-	probe   int
-	circuit *models.Circuit
-	rate    float64
+	// freeStep is the largest Newton step on which no junction limiting
+	// acts, so the kernels skip the limiting call: the smallest emission
+	// voltage nVt when every device is a diode or a transistor (classical
+	// limiting leaves a junction step of up to 2·nVt alone, and a
+	// transistor's base–collector step is at most the sum of its two port
+	// steps); 0, never skip, when another device is present.
+	freeStep float64
+	tol      float64
+	adaptor  *Adaptor
+	probe    int
+	circuit  *models.Circuit
+	rate     float64
 }
 
 // Solver runs one channel of a compiled circuit. It is not safe for
@@ -291,6 +298,7 @@ func (sh *shared) stateUpdate(ad *Adaptor, nE int, lv leaves, src sources, probe
 func (sh *shared) startAt(op *mna.OperatingPoint, ad *Adaptor, lv leaves) {
 	off := 0
 	sh.v0 = make([]float64, sh.k)
+	sh.freeStep = inf
 	for _, d := range op.Devices {
 		if e, ok := d.Model.(interface{ EmissionVoltage() float64 }); ok {
 			sh.curv = math.Max(sh.curv, 1/(2*e.EmissionVoltage()))
@@ -299,9 +307,20 @@ func (sh *shared) startAt(op *mna.OperatingPoint, ad *Adaptor, lv leaves) {
 		slot := devSlot{model: d.Model, off: off, n: n}
 		slot.bjt, _ = d.Model.(*models.BJT)
 		slot.dio, _ = d.Model.(*models.Diode)
+		switch {
+		case slot.bjt != nil:
+			sh.freeStep = min(sh.freeStep, slot.bjt.EmissionVoltage())
+		case slot.dio != nil:
+			sh.freeStep = min(sh.freeStep, slot.dio.EmissionVoltage())
+		default:
+			sh.freeStep = 0
+		}
 		sh.devs = append(sh.devs, slot)
 		copy(sh.v0[off:], d.V)
 		off += n
+	}
+	if sh.freeStep == inf {
+		sh.freeStep = 0
 	}
 	sh.x0 = make([]float64, sh.ns)
 	for a, j := range lv.ports {
