@@ -1,6 +1,10 @@
 package wdf
 
-import "math"
+import (
+	"math"
+
+	"gonum.org/v1/gonum/blas/gonum"
+)
 
 // evalDevices evaluates every device at s.v into s.i and s.jd.
 func (s *Solver) evalDevices() {
@@ -246,6 +250,17 @@ func solveInPlace(a, b []float64, piv []int, k int) bool {
 		rc[c] = inv
 		tail := rc[c+1:]
 		bc := b[c]
+		if m := k - 1 - c; m >= gerMin {
+			// The trailing block's update a[r][j] −= (a[r][c]·inv)·a[c][j]
+			// as one rank-one update: gonum's kernel forms (−inv·a[r][c])
+			// and adds its product with a[c][j], the same roundings as the
+			// loop below (negation is exact).
+			gonum.Implementation{}.Dger(m, m, -inv, a[(c+1)*k+c:], k, tail, 1, a[(c+1)*k+c+1:], k)
+			for r := c + 1; r < k; r++ {
+				b[r] -= a[r*k+c] * inv * bc
+			}
+			continue
+		}
 		for r := c + 1; r < k; r++ {
 			rr := a[r*k+c : r*k+k]
 			l := rr[0] * inv
@@ -298,6 +313,11 @@ func applyLU(a []float64, piv []int, d []float64, k int) {
 		d[r] = acc * a[r*k+r]
 	}
 }
+
+// gerMin is the trailing block size from which solveInPlace hands the
+// update to gonum: below it the call's checks cost more than its kernel
+// saves (instruction counts of the twelve-port benchmark).
+const gerMin = 4
 
 func abs(x float64) float64 {
 	if x < 0 {
