@@ -50,8 +50,16 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 		s.evalDevices()
 		// Residual F = v − p − K·i and Newton matrix J = I − K·Jf.
 		res := 0.0
+		ki := s.ki[:k]
+		if k*k >= gemvMin {
+			matVec(ki, kk, i)
+		} else {
+			for r := range ki {
+				ki[r] = dot(kk[r*k:r*k+k], i)
+			}
+		}
 		for r := range f {
-			acc := v[r] - p[r] - dot(kk[r*k:r*k+k], i)
+			acc := v[r] - p[r] - ki[r]
 			f[r] = -acc
 			if acc < 0 {
 				acc = -acc
@@ -177,6 +185,10 @@ const substepIter = 100
 
 // buildJacobian writes J = I − K·Jf, Jf block-diagonal by device.
 func (s *Solver) buildJacobian() {
+	if s.kp != nil {
+		s.buildJacobianPairs()
+		return
+	}
 	k, kk, jac, jd := s.k, s.kk, s.jac, s.jd
 	o := 0
 	for _, d := range s.devs {
@@ -211,6 +223,38 @@ func (s *Solver) buildJacobian() {
 	}
 	for r := 0; r < k; r++ {
 		jac[r*k+r]++
+	}
+}
+
+// buildJacobianPairs is buildJacobian when every device has one or two
+// ports: column c of Jf then holds ∂i_c/∂v_c (jd) and ∂i_q/∂v_c (jo) for
+// the other port q of its device (none for a diode), so that
+// J[r][c] = δ_rc − (K[r][c]·jd[c] + K[r][q]·jo[c]), the second product
+// from K with its columns permuted (kp). The same products and sums as
+// buildJacobian, in a loop over whole rows.
+func (s *Solver) buildJacobianPairs() {
+	k, jd := s.k, s.jd
+	pd, po := s.pd[:k], s.po[:k]
+	o := 0
+	for _, d := range s.devs {
+		c := d.off
+		if d.n == 2 {
+			b := jd[o : o+4 : o+4]
+			pd[c], po[c], pd[c+1], po[c+1] = b[0], b[2], b[3], b[1]
+			o += 4
+		} else {
+			pd[c], po[c] = jd[o], 0
+			o++
+		}
+	}
+	kk, kp, jac := s.kk[:k*k], s.kp[:k*k], s.jac[:k*k]
+	for r := 0; r < k; r++ {
+		jr, kr, pr := jac[r*k:r*k+k], kk[r*k:r*k+k], kp[r*k:r*k+k]
+		kr, pr = kr[:len(jr)], pr[:len(jr)]
+		for c := range jr {
+			jr[c] = -(kr[c]*pd[c] + pr[c]*po[c])
+		}
+		jr[r]++
 	}
 }
 

@@ -51,10 +51,14 @@ type shared struct {
 	rI    []float64 // root port resistances
 	// Over z = [x…, 1, vin, bI…]: p = pz·z[:ns+2] (k rows) and
 	// [x_next; out] = nz·z (ns+1 rows).
-	pz, nz  []float64
-	devs    []devSlot
-	small   *smallRoot // the fixed-size kernel's data; nil: the general kernel
-	x0, v0  []float64  // states and device voltages at the operating point
+	pz, nz []float64
+	devs   []devSlot
+	small  *smallRoot // the fixed-size kernel's data; nil: the general kernel
+	// kp is K with its columns permuted to each port's device partner,
+	// kp[r·k+c] = K[r][q(c)] (q(c) = c for a diode), when every device has
+	// one or two ports; nil otherwise (see buildJacobianPairs).
+	kp      []float64
+	x0, v0  []float64 // states and device voltages at the operating point
 	maxIter int
 	curv    float64 // 1/(2·nVt) of the stiffest junction, for the error estimate
 	// freeStep is the largest Newton step on which no junction limiting
@@ -101,6 +105,8 @@ type Solver struct {
 	f, dv       []float64
 	jd          []float64 // per-device Jacobian blocks, packed
 	jac         []float64 // k×k Newton matrix
+	ki          []float64 // K·i
+	pd, po      []float64 // Jf by columns, for buildJacobianPairs
 	lastOut     float64
 	stats       Stats
 }
@@ -119,6 +125,7 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 	sh.stateUpdate(ad, nE, lv, src, opt.Probe)
 	sh.startAt(op, ad, lv)
 	sh.small = newSmallRoot(sh)
+	sh.kp = pairedK(sh)
 	return sh.newChannel(), nil
 }
 
@@ -292,6 +299,30 @@ func (sh *shared) stateUpdate(ad *Adaptor, nE int, lv leaves, src sources, probe
 	}
 }
 
+// pairedK returns K with its columns permuted to each port's device
+// partner (see shared.kp), or nil when a device has more than two ports.
+func pairedK(sh *shared) []float64 {
+	k := sh.k
+	partner := make([]int, k)
+	for _, d := range sh.devs {
+		switch d.n {
+		case 1:
+			partner[d.off] = d.off
+		case 2:
+			partner[d.off], partner[d.off+1] = d.off+1, d.off
+		default:
+			return nil
+		}
+	}
+	kp := make([]float64, k*k)
+	for r := 0; r < k; r++ {
+		for c, q := range partner {
+			kp[r*k+c] = sh.kk[r*k+q]
+		}
+	}
+	return kp
+}
+
 // startAt records the devices and the states and device voltages at the
 // DC operating point op (capacitor waves from their voltages, inductor
 // waves from their currents).
@@ -347,7 +378,8 @@ func (sh *shared) newChannel() *Solver {
 		z: make([]float64, ns+2+k), zn: make([]float64, ns+2+k),
 		v: vec(), i: vec(), p: vec(), pPrev: vec(), pSub: vec(),
 		vPrev: vec(), vBest: vec(), f: vec(), dv: vec(), dp: vec(), lin: vec(), linErr: vec(),
-		jd: make([]float64, jdLen), jac: make([]float64, k*k), piv: make([]int, k)}
+		jd: make([]float64, jdLen), jac: make([]float64, k*k), piv: make([]int, k),
+		ki: vec(), pd: vec(), po: vec()}
 	s.Reset()
 	return s
 }
