@@ -39,7 +39,20 @@
 // dense dot products over [states, 1, input, root waves] and the small
 // Newton solve.
 //
+// Device charges. A device that stores charge (models.Charged: junction
+// depletion and diffusion charge) adds its capacitive currents to the
+// Newton residual with the trapezoidal rule, the bilinear discretisation of
+// every linear reactive leaf, and (2/T)·C(v) to the Jacobian; the charge
+// and current of each accepted solution are the state of the next sample,
+// starting from the operating point's charge at Reset. Devices without
+// charges cost nothing for it (charge.go).
+//
+// Kernels. Roots of up to four ports whose devices have one or two ports
+// each run in a fixed-size kernel (arrays, written-out elimination); others
+// in the general one. Both do the same arithmetic in the same order (a test
+// checks them bit for bit on the same circuits).
+//
 // Non-goals: time-varying knobs within a render (recompile per setting),
-// noise analysis, reactive parasitics of the devices (junction
-// capacitances), and the Early effect.
+// noise analysis. Device physics (which charges, the Early effect) belongs
+// to the models package.
 package wdf

@@ -22,6 +22,9 @@ func (s *Solver) evalDevices() {
 		default:
 			d.model.Eval(v[d.off:d.off+d.n], i[d.off:d.off+d.n], jd[o:o+d.n*d.n])
 		}
+		if d.chg != nil {
+			s.addCharges(&d, v[d.off:d.off+d.n], i[d.off:d.off+d.n], jd[o:o+d.n*d.n])
+		}
 		o += d.n * d.n
 	}
 }
@@ -454,6 +457,9 @@ func (s *Solver) solve() {
 		}
 	} else {
 		clear(linErr)
+	}
+	if s.charged {
+		s.commitCharges()
 	}
 	copyVec(s.vPrev, s.v)
 	s.p, s.pPrev = s.pPrev, s.p

@@ -3,7 +3,8 @@ package wdf
 import "renderchain/models"
 
 // The Newton kernel for small roots: at most smallK nonlinear ports, every
-// device a diode or a transistor. Its vectors and matrices are fixed-size
+// device one with one or two ports (diodes and transistors are called
+// directly, others through models.Nonlinear). Its vectors and matrices are fixed-size
 // arrays on the stack, so every index is a constant or masked and needs no
 // bounds check, and the loops have constant trip counts. A root with fewer
 // ports is padded: a padded port has p = v = i = 0 and a zero row and
@@ -25,12 +26,15 @@ type smallRoot struct {
 	devs    []smallDev
 }
 
-// smallDev is one device of the fixed-size kernel: a transistor on ports
-// c, c+1 or a diode on port c.
+// smallDev is one device of the fixed-size kernel on port c (and c+1 for
+// two ports): a transistor (bjt), a diode (dio), or another device (model,
+// n ports).
 type smallDev struct {
-	bjt *models.BJT
-	dio *models.Diode
-	c   int
+	bjt   *models.BJT
+	dio   *models.Diode
+	model models.Nonlinear
+	chg   models.Charged // nil: no charges
+	c, n  int
 }
 
 // newSmallRoot returns the fixed-size kernel's data, or nil when the root
@@ -44,14 +48,14 @@ func newSmallRoot(sh *shared) *smallRoot {
 		sr.partner[c] = c
 	}
 	for _, d := range sh.devs {
-		switch {
-		case d.bjt != nil:
+		switch d.n {
+		case 1:
+		case 2:
 			sr.partner[d.off], sr.partner[d.off+1] = d.off+1, d.off
-		case d.dio != nil:
 		default:
 			return nil
 		}
-		sr.devs = append(sr.devs, smallDev{d.bjt, d.dio, d.off})
+		sr.devs = append(sr.devs, smallDev{d.bjt, d.dio, d.model, d.chg, d.off, d.n})
 	}
 	for r := 0; r < sh.k; r++ {
 		for c := 0; c < sh.k; c++ {
@@ -77,10 +81,45 @@ func (s *Solver) evalSmall(v, i, jd, jo *[smallK]float64) {
 			var j [4]float64
 			i[c], i[c1], j = d.bjt.Eval2(v[c], v[c1])
 			jd[c], jo[c], jd[c1], jo[c1] = j[0], j[2], j[3], j[1]
-		} else {
+		} else if d.dio != nil {
 			i[c], jd[c] = d.dio.Current(v[c])
+		} else {
+			s.evalOther(d, v, i, jd, jo)
+		}
+		if d.chg != nil {
+			s.addChargesSmall(d, v, i, jd, jo)
 		}
 	}
+}
+
+// evalOther evaluates a device other than a diode or transistor through
+// models.Nonlinear, with the solver's scratch buffers (a slice of a stack
+// array handed to an interface method would escape and allocate).
+func (s *Solver) evalOther(d *smallDev, v, i, jd, jo *[smallK]float64) {
+	c := d.c & (smallK - 1)
+	gv, gi, gj := s.gv[:d.n], s.gi[:d.n], s.gj[:d.n*d.n]
+	if d.n == 1 {
+		gv[0] = v[c]
+		d.model.Eval(gv, gi, gj)
+		i[c], jd[c] = gi[0], gj[0]
+		return
+	}
+	c1 := (c + 1) & (smallK - 1)
+	gv[0], gv[1] = v[c], v[c1]
+	d.model.Eval(gv, gi, gj)
+	i[c], i[c1] = gi[0], gi[1]
+	jd[c], jo[c], jd[c1], jo[c1] = gj[0], gj[2], gj[3], gj[1]
+}
+
+// limitOther is Limit for a device evaluated by evalOther.
+func (s *Solver) limitOther(d *smallDev, v, vold *[smallK]float64) {
+	c := d.c & (smallK - 1)
+	c1 := (c + d.n - 1) & (smallK - 1)
+	gv, go0 := s.gv[:d.n], s.gi[:d.n]
+	gv[0], go0[0] = v[c], vold[c]
+	gv[d.n-1], go0[d.n-1] = v[c1], vold[c1]
+	d.model.Limit(gv, go0)
+	v[c], v[c1] = gv[0], gv[d.n-1]
 }
 
 // limitSmall is limit on the fixed-size vectors.
@@ -88,11 +127,14 @@ func (s *Solver) limitSmall(v, vold *[smallK]float64) {
 	for n := range s.small.devs {
 		d := &s.small.devs[n]
 		c := d.c & (smallK - 1)
-		if d.bjt != nil {
+		switch {
+		case d.bjt != nil:
 			c1 := (c + 1) & (smallK - 1)
 			v[c], v[c1] = d.bjt.Limit2(v[c], v[c1], vold[c], vold[c1])
-		} else {
+		case d.dio != nil:
 			v[c] = d.dio.Limit1(v[c], vold[c])
+		default:
+			s.limitOther(d, v, vold)
 		}
 	}
 }
@@ -102,12 +144,15 @@ func (s *Solver) physicalSmall(v *[smallK]float64) bool {
 	for n := range s.small.devs {
 		d := &s.small.devs[n]
 		c := d.c & (smallK - 1)
-		if d.bjt != nil {
+		switch {
+		case d.bjt != nil:
 			if !d.bjt.Physical(v[c], v[(c+1)&(smallK-1)]) {
 				return false
 			}
-		} else if !d.dio.Physical(v[c]) {
-			return false
+		case d.dio != nil:
+			if !d.dio.Physical(v[c]) {
+				return false
+			}
 		}
 	}
 	return true

@@ -9,8 +9,8 @@ import (
 
 // The fixed-size kernel against the general one on the same circuits, one,
 // two, three and four root ports (a diode, an antiparallel pair, a
-// transistor with a diode, the two-transistor stage), driven hard enough to
-// clip: the two must agree bit for bit, samples and statistics, because the
+// transistor with a diode, the two-transistor stage, and the transistor
+// with a diode again with charges on both), driven hard enough to clip: the two must agree bit for bit, samples and statistics, because the
 // fixed-size kernel does the same operations in the same order and the
 // padding adds only exact zeros.
 func TestSmallKernelMatchesGeneral(t *testing.T) {
@@ -45,21 +45,31 @@ func TestSmallKernelMatchesGeneral(t *testing.T) {
 		b.out("out")
 		return b
 	}
+	// Charged devices (charge_test.go), evaluated through models.Nonlinear
+	// and with their charge terms, in both kernels.
+	charged := map[int]func(models.Nonlinear) models.Nonlinear{
+		0: func(m models.Nonlinear) models.Nonlinear {
+			return &transBJT{capBJT{m.(*models.BJT), 22e-12, 4.7e-12}, 100e-12}
+		},
+		1: func(m models.Nonlinear) models.Nonlinear { return &capDiode{m.(*models.Diode), 1e-9} },
+	}
 	cases := []struct {
 		name  string
 		build func() *bench
+		wrap  map[int]func(models.Nonlinear) models.Nonlinear
 		ports int
 		amp   float64
 	}{
-		{"diode", clipper(false), 1, 3},
-		{"pair", clipper(true), 2, 3},
-		{"follower+diode", followerClip, 3, 2},
-		{"two transistors", twoTransistor, 4, 0.5},
+		{"diode", clipper(false), nil, 1, 3},
+		{"pair", clipper(true), nil, 2, 3},
+		{"follower+diode", followerClip, nil, 3, 2},
+		{"two transistors", twoTransistor, nil, 4, 0.5},
+		{"charged follower+diode", followerClip, charged, 3, 2},
 	}
 	const fs = 96000.0
 	for _, tc := range cases {
-		fast, _ := tc.build().compile(t, fs)
-		gen, _ := tc.build().compile(t, fs)
+		fast, _ := tc.build().compileWith(t, fs, tc.wrap)
+		gen, _ := tc.build().compileWith(t, fs, tc.wrap)
 		if fast.small == nil {
 			t.Fatalf("%s: the fixed-size kernel was not chosen", tc.name)
 		}

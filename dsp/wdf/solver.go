@@ -37,9 +37,10 @@ func (s *Stats) Add(o Stats) {
 
 type devSlot struct {
 	model models.Nonlinear
-	bjt   *models.BJT   // set for a transistor: called directly in the hot loop
-	dio   *models.Diode // set for a diode
-	off   int           // first port in the root's nonlinear port vector
+	bjt   *models.BJT    // set for a transistor: called directly in the hot loop
+	dio   *models.Diode  // set for a diode
+	chg   models.Charged // set for a device that stores charge (charge.go)
+	off   int            // first port in the root's nonlinear port vector
 	n     int
 }
 
@@ -68,6 +69,9 @@ type shared struct {
 	// transistor's base–collector step is at most the sum of its two port
 	// steps); 0, never skip, when another device is present.
 	freeStep float64
+	twoOverT float64 // 2/T, the trapezoidal rule's factor for device charges
+	charged  bool    // some device stores charge
+	maxPorts int     // the most ports of one device
 	tol      float64
 	adaptor  *Adaptor
 	probe    int
@@ -107,8 +111,13 @@ type Solver struct {
 	jac         []float64 // k×k Newton matrix
 	ki          []float64 // K·i
 	pd, po      []float64 // Jf by columns, for buildJacobianPairs
-	lastOut     float64
-	stats       Stats
+	// Device charges (charge.go): per port the last sample's charge and
+	// capacitive current, and scratch for one device's evaluation.
+	qPrev, iqPrev []float64
+	chv, chq, chc []float64
+	gv, gi, gj    []float64 // scratch for devices called through models.Nonlinear
+	lastOut       float64
+	stats         Stats
 }
 
 // newSolver derives the solver's matrices from the adaptor, in the steps
@@ -120,7 +129,8 @@ func newSolver(c *models.Circuit, op *mna.OperatingPoint, ad *Adaptor, nE int, o
 		return nil, err
 	}
 	src := sourceColumns(c, ad)
-	sh := &shared{ns: len(lv.ports), k: len(ad.ports) - nE, maxIter: opt.MaxIter, tol: opt.Tol, adaptor: ad, probe: opt.Probe, circuit: c, rate: opt.SampleRate}
+	sh := &shared{ns: len(lv.ports), k: len(ad.ports) - nE, maxIter: opt.MaxIter, tol: opt.Tol, adaptor: ad, probe: opt.Probe, circuit: c, rate: opt.SampleRate,
+		twoOverT: 2 * opt.SampleRate}
 	sh.rootRelation(ad, nE, lv, w, src)
 	sh.stateUpdate(ad, nE, lv, src, opt.Probe)
 	sh.startAt(op, ad, lv)
@@ -338,6 +348,9 @@ func (sh *shared) startAt(op *mna.OperatingPoint, ad *Adaptor, lv leaves) {
 		slot := devSlot{model: d.Model, off: off, n: n}
 		slot.bjt, _ = d.Model.(*models.BJT)
 		slot.dio, _ = d.Model.(*models.Diode)
+		slot.chg = chargedModel(d.Model)
+		sh.charged = sh.charged || slot.chg != nil
+		sh.maxPorts = max(sh.maxPorts, n)
 		switch {
 		case slot.bjt != nil:
 			sh.freeStep = min(sh.freeStep, slot.bjt.EmissionVoltage())
@@ -379,7 +392,9 @@ func (sh *shared) newChannel() *Solver {
 		v: vec(), i: vec(), p: vec(), pPrev: vec(), pSub: vec(),
 		vPrev: vec(), vBest: vec(), f: vec(), dv: vec(), dp: vec(), lin: vec(), linErr: vec(),
 		jd: make([]float64, jdLen), jac: make([]float64, k*k), piv: make([]int, k),
-		ki: vec(), pd: vec(), po: vec()}
+		ki: vec(), pd: vec(), po: vec(), qPrev: vec(), iqPrev: vec(),
+		chv: make([]float64, sh.maxPorts), chq: make([]float64, sh.maxPorts), chc: make([]float64, sh.maxPorts*sh.maxPorts),
+		gv: make([]float64, sh.maxPorts), gi: make([]float64, sh.maxPorts), gj: make([]float64, sh.maxPorts*sh.maxPorts)}
 	s.Reset()
 	return s
 }
@@ -402,6 +417,7 @@ func (s *Solver) Reset() {
 	copy(s.vPrev, s.v0)
 	s.haveLU = false
 	clear(s.linErr)
+	s.resetCharges()
 	s.evalDevices()
 	s.computeP(0)
 	copy(s.pPrev, s.p)
