@@ -1,8 +1,8 @@
 // Package spectrum measures what a circuit did to a test signal: the
 // harmonic analysis of a settled sine response (THD in its IEC forms,
 // THD+N, harmonic lines, DC, peaks and their asymmetry), one-third-octave
-// band levels of a long-term-average spectrum, the spectral centroid and
-// the crest factor.
+// band levels of a long-term-average spectrum, the spectral centroid, the
+// crest factor, and the signal-to-alias ratio of a sine's response.
 //
 // # Harmonic analysis
 //
@@ -28,6 +28,14 @@
 // AES17 notch), then keeps the residual's DFT bins inside the band
 // (default 20 Hz – 20 kHz), so it counts harmonics, noise and anything
 // else in the band.
+//
+// # Aliasing
+//
+// SignalToAlias takes the coherent record of a sine's response and
+// returns the power in the harmonic bins (every order below Nyquist, the
+// fundamental included) over the power in all other bins except DC: the
+// signal-to-alias ratio of a system that makes harmonics at a finite
+// internal rate, whose folded lines fall between the harmonic bins.
 //
 // # Band analysis
 //
