@@ -253,7 +253,7 @@ func (s *Solver) buildJacobianPairs() {
 	kk, kp, jac := s.kk[:k*k], s.kp[:k*k], s.jac[:k*k]
 	for r := 0; r < k; r++ {
 		jr, kr, pr := jac[r*k:r*k+k], kk[r*k:r*k+k], kp[r*k:r*k+k]
-		kr, pr = kr[:len(jr)], pr[:len(jr)]
+		kr, pr, pd, po := kr[:len(jr)], pr[:len(jr)], pd[:len(jr)], po[:len(jr)]
 		for c := range jr {
 			jr[c] = -(kr[c]*pd[c] + pr[c]*po[c])
 		}
