@@ -8,6 +8,7 @@ require (
 	github.com/go-audio/wav v1.1.0
 	github.com/schollz/progressbar/v3 v3.19.1
 	github.com/urfave/cli/v2 v2.27.7
+	golang.org/x/sync v0.25.0
 	golang.org/x/term v0.44.0
 	gonum.org/v1/gonum v0.17.0
 	gonum.org/v1/plot v0.17.0

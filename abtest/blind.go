@@ -1,6 +1,11 @@
 package abtest
 
-import "math/rand/v2"
+import (
+	"math/rand/v2"
+
+	"renderchain/analyze"
+	"renderchain/report"
+)
 
 // NeutralLabel returns the i-th neutral label of a blind set (i ≥ 0):
 // A, B, …, Z, AA, AB, … (bijective base 26, like spreadsheet columns).
@@ -33,14 +38,14 @@ type Key struct {
 
 // KeyClip is one entry of a Key.
 type KeyClip struct {
-	Blind     string   `json:"blind_label"`
-	File      string   `json:"file"`
-	Label     string   `json:"label"`
-	Bypass    bool     `json:"bypass"`
-	ChainFile string   `json:"chain_file,omitempty"`
-	Settings  []string `json:"settings"`
-	GainDB    DB       `json:"gain_db"`
-	TruePeak  DB       `json:"true_peak_dbtp"` // as written
-	Before    Levels   `json:"before_gain"`
-	LRA       DB       `json:"loudness_range_lu"`
+	Blind     string         `json:"blind_label"`
+	File      string         `json:"file"`
+	Label     string         `json:"label"`
+	Bypass    bool           `json:"bypass"`
+	ChainFile string         `json:"chain_file,omitempty"`
+	Settings  []string       `json:"settings"`
+	GainDB    report.Level   `json:"gain_db"`
+	TruePeak  report.Level   `json:"true_peak_dbtp"` // as written
+	Before    analyze.Levels `json:"before_gain"`
+	LRA       report.Level   `json:"loudness_range_lu"`
 }

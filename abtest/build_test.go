@@ -13,6 +13,8 @@ import (
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/engine"
+	"renderchain/models"
 	"renderchain/render"
 )
 
@@ -156,7 +158,7 @@ func TestMatchedSet(t *testing.T) {
 			// Gain only: one rendered clip against the render command's
 			// own path, float32 output, times the recorded gain.
 			ref := filepath.Join(dir, "ref.wav")
-			eng, err := render.Prepare(ch, 2)
+			eng, err := engine.Prepare(ch, 2)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -384,8 +386,8 @@ func TestForceReplaces(t *testing.T) {
 	opt.Sequence = SequenceOptions{Off: true}
 	_, err := Build(context.Background(), opt)
 	var ee *ExistsError
-	if !errors.As(err, &ee) || !strings.Contains(err.Error(), "--force") {
-		t.Fatalf("second set without Force: %v, want an *ExistsError asking for --force", err)
+	if !errors.As(err, &ee) || !strings.Contains(err.Error(), "force option") {
+		t.Fatalf("second set without Force: %v, want an *ExistsError asking for the force option", err)
 	}
 	if got := entries(t, out); !slices.Equal(got, before) {
 		t.Errorf("refused set changed the folder: %q → %q", before, got)
@@ -422,7 +424,7 @@ func TestBadInput(t *testing.T) {
 	var (
 		ve *VariantError
 		le *LabelError
-		pe *ParamError
+		pe *models.FieldError
 		ee *ExistsError
 		se *ShortTakeError
 		ce *chains.SetError
@@ -443,16 +445,18 @@ func TestBadInput(t *testing.T) {
 			o.Variants = append(o.Variants, Variant{Label: "As Built", Settings: []string{"fuzz.fuzz=1"}})
 		}, &le, "As Built"},
 		{"label of the bypass", func(o *Options) { o.Variants = append(o.Variants, Variant{Label: "bypass"}) }, &le, "bypass"},
-		{"older clips without force", func(o *Options) { o.OutDir = older }, &ee, "--force"},
+		{"older clips without force", func(o *Options) { o.OutDir = older }, &ee, "force option"},
 		{"take shorter than a segment", func(o *Options) { o.Sequence.Segment = 1.0 }, &se, "1.010 s"},
 		{"segment start past the take", func(o *Options) { o.Sequence.Start = 0.6 }, &se, "dry.wav"},
 		{"take shorter than a loudness block", func(o *Options) { o.Dry = short }, &se, "400 ms"},
-		{"crossfade over half a segment", func(o *Options) { o.Sequence.Crossfade = 0.3 }, &pe, "--crossfade"},
-		{"ceiling above full scale", func(o *Options) { o.CeilingDBTP = 0.5 }, &pe, "--ceiling"},
+		// Library errors name the option's field; the command maps it to
+		// its flag.
+		{"crossfade over half a segment", func(o *Options) { o.Sequence.Crossfade = 0.3 }, &pe, `crossfade "0.3s"`},
+		{"ceiling above full scale", func(o *Options) { o.CeilingDBTP = 0.5 }, &pe, `ceiling "0.5"`},
 		{"unknown label in the order", func(o *Options) { o.Sequence.Order = []string{"as built", "nobody"} }, &pe, "nobody"},
 		{"key inside the set", func(o *Options) {
 			o.Blind, o.Seed, o.KeyPath = true, 1, filepath.Join(o.OutDir, "key.json")
-		}, &pe, "--key"},
+		}, &pe, `key "`},
 		{"missing chain file", func(o *Options) {
 			o.Variants = []Variant{{Label: "other", ChainFile: "nowhere.toml"}}
 		}, &ve, "nowhere.toml"},
@@ -528,8 +532,10 @@ func TestOtherChainFile(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if jobs[0].ch.Name != ge.Name || jobs[0].ch.Supply != 9.5 || ge.Supply == 9.5 {
-		t.Errorf("variant chain %q supply %g; want %q with the 9.5 V override", jobs[0].ch.Name, jobs[0].ch.Supply, ge.Name)
+	// The germanium chain is a positive-ground build (supply = "-9V"): the
+	// override sets the magnitude and keeps the file's polarity.
+	if jobs[0].ch.Name != ge.Name || jobs[0].ch.Supply != -9.5 || ge.Supply != -9 {
+		t.Errorf("variant chain %q supply %g; want %q with the 9.5 V override at the file's polarity, -9.5 V", jobs[0].ch.Name, jobs[0].ch.Supply, ge.Name)
 	}
 	if !jobs[1].bypass || len(jobs) != 2 {
 		t.Errorf("want the variant and the bypass, got %d jobs", len(jobs))

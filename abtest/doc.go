@@ -2,8 +2,8 @@
 // chain: the same dry take rendered through each variant, the clips brought
 // to one loudness, a sequence file that plays them back to back from the
 // same point of the phrase, an optional blind shuffle with a separate key,
-// and a self-contained listening page. It also holds AnalyzeFile, the level,
-// loudness and spectrum report of a WAV file.
+// and a self-contained listening page. Loudness is measured by package
+// analyze.
 //
 // # Variants
 //
@@ -16,9 +16,18 @@
 // factor. Labels must differ, ignoring case; the dry bypass clip (the take
 // itself, no circuit) has a label of its own, "bypass" unless changed.
 //
-// Variants are rendered in parallel, one per core (Options.Jobs), each
-// streaming the take through render.Engine channels into a float64 work file,
-// so nothing clips before the gain is known.
+// Variants are rendered in parallel on the worker pool of package parallel,
+// one per core (Options.Jobs), each streaming the take through the engine
+// (engine.Prepared.Stream) into a float64 work file, so nothing clips
+// before the gain is known. Build runs in steps: plan (options, take,
+// variants, blind order, sequence), a workspace beside the folder, pass 1
+// (render and measure), the loudness match, pass 2 (gain and write), the
+// description with its sequence file and plots, the key, ab.json and the
+// page, and the commit.
+//
+// Options out of range are *models.FieldError naming the option's field
+// ("ceiling", "crossfade", "key", …); a set already in the folder is an
+// *ExistsError (os.ErrExist), a take too short a *ShortTakeError.
 //
 // # Loudness matching
 //
@@ -95,7 +104,6 @@
 //   - EBU Tech 3341 (2016), Loudness metering: "EBU Mode" metering to
 //     supplement EBU R 128 loudness normalization (test cases used in tests).
 //   - EBU Tech 3342 (2016), Loudness range.
-//   - IEC 61260-1:2014, one-third-octave bands (AnalyzeFile's spectrum).
 //   - R. A. Fisher, F. Yates, Statistical Tables, 1938; D. E. Knuth, The Art
 //     of Computer Programming vol. 2, §3.4.2 (the shuffle).
 //   - Equal-power (sine/cosine) crossfades: common practice in audio editing.

@@ -17,7 +17,7 @@ func ExampleParseVariant() {
 	fmt.Println(err)
 	// Output:
 	// "hotter Q2" ["fuzz.Q2.hfe=250" "supply=9.6V"]
-	// --variant "hotter Q2 fuzz.Q2.hfe=250": want "LABEL: KEY=VALUE …" (a colon after the label)
+	// variant "hotter Q2 fuzz.Q2.hfe=250": want "LABEL: KEY=VALUE …" (a colon after the label)
 }
 
 func ExampleMatch() {

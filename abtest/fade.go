@@ -34,10 +34,10 @@ type Fade struct {
 // channels interleaved channels (1…8).
 func NewFade(frames int64, channels int, out bool) (*Fade, error) {
 	if frames < 1 {
-		return nil, &ParamError{Param: "fade length", Value: fmt.Sprint(frames), Want: "at least 1 frame"}
+		return nil, paramErr("fade_length", fmt.Sprint(frames), "at least 1 frame")
 	}
 	if channels < 1 || channels > 8 {
-		return nil, &ParamError{Param: "fade channels", Value: fmt.Sprint(channels), Want: "1…8"}
+		return nil, paramErr("fade_channels", fmt.Sprint(channels), "1…8")
 	}
 	return &Fade{frames: frames, channels: channels, out: out}, nil
 }

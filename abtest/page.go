@@ -6,6 +6,8 @@ import (
 	"html"
 	"path/filepath"
 	"strings"
+
+	"renderchain/report"
 )
 
 //go:embed page.html
@@ -16,34 +18,34 @@ var pageTemplate string
 // loudness range: a peaky dry take keeps a higher true peak at the same
 // loudness).
 type pageClip struct {
-	Label        string   `json:"label"`
-	File         string   `json:"file"`
-	LUFS         DB       `json:"lufs"`
-	TruePeakDBTP *DB      `json:"true_peak_dbtp,omitempty"`
-	GainDB       *DB      `json:"gain_db,omitempty"`
-	LRA          *DB      `json:"loudness_range_lu,omitempty"`
-	Settings     []string `json:"settings,omitempty"`
-	ChainFile    string   `json:"chain_file,omitempty"`
-	Bypass       bool     `json:"bypass,omitempty"`
-	Plots        []Plot   `json:"plots"`
+	Label        string        `json:"label"`
+	File         string        `json:"file"`
+	LUFS         report.Level  `json:"lufs"`
+	TruePeakDBTP *report.Level `json:"true_peak_dbtp,omitempty"`
+	GainDB       *report.Level `json:"gain_db,omitempty"`
+	LRA          *report.Level `json:"loudness_range_lu,omitempty"`
+	Settings     []string      `json:"settings,omitempty"`
+	ChainFile    string        `json:"chain_file,omitempty"`
+	Bypass       bool          `json:"bypass,omitempty"`
+	Plots        []Plot        `json:"plots"`
 }
 
 type pageData struct {
-	Title          string     `json:"title"`
-	Chain          string     `json:"chain"`
-	Dry            string     `json:"dry"`
-	Seconds        float64    `json:"seconds"`
-	SampleRate     int        `json:"sample_rate"`
-	Channels       int        `json:"channels"`
-	TargetLUFS     DB         `json:"target_lufs"`
-	RequestedLUFS  DB         `json:"requested_target_lufs"`
-	CeilingDBTP    DB         `json:"ceiling_dbtp"`
-	CeilingLimited bool       `json:"ceiling_limited"`
-	Blind          bool       `json:"blind"`
-	HearingCaution string     `json:"hearing_caution"`
-	Clips          []pageClip `json:"clips"`
-	Sequence       *Sequence  `json:"sequence"`
-	Warnings       []string   `json:"warnings"`
+	Title          string       `json:"title"`
+	Chain          string       `json:"chain"`
+	Dry            string       `json:"dry"`
+	Seconds        float64      `json:"seconds"`
+	SampleRate     int          `json:"sample_rate"`
+	Channels       int          `json:"channels"`
+	TargetLUFS     report.Level `json:"target_lufs"`
+	RequestedLUFS  report.Level `json:"requested_target_lufs"`
+	CeilingDBTP    report.Level `json:"ceiling_dbtp"`
+	CeilingLimited bool         `json:"ceiling_limited"`
+	Blind          bool         `json:"blind"`
+	HearingCaution string       `json:"hearing_caution"`
+	Clips          []pageClip   `json:"clips"`
+	Sequence       *Sequence    `json:"sequence"`
+	Warnings       []string     `json:"warnings"`
 }
 
 // Page returns the listening page of a set: one HTML file with its styles,

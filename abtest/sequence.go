@@ -7,6 +7,7 @@ import (
 	"math"
 
 	"renderchain/dsp/wavio"
+	"renderchain/report"
 )
 
 // Defaults of the sequence file.
@@ -45,19 +46,19 @@ type SequenceOptions struct {
 // final F frames. Each segment thus plays its clip from the same phrase
 // frame P, keeps playing S + F frames and overlaps the next segment by F.
 type Sequence struct {
-	File             string    `json:"file"`
-	Order            []string  `json:"order"` // labels of one round
-	Rounds           int       `json:"rounds"`
-	SegmentFrames    int64     `json:"segment_frames"`
-	CrossfadeFrames  int64     `json:"crossfade_frames"`
-	PhraseStartFrame int64     `json:"phrase_start_frame"`
-	Frames           int64     `json:"frames"`
-	SegmentSeconds   float64   `json:"segment_s"`
-	CrossfadeSeconds float64   `json:"crossfade_s"`
-	StartSeconds     float64   `json:"phrase_start_s"`
-	GainDB           DB        `json:"gain_db"` // applied to the whole file; 0 unless crossfades would pass the ceiling
-	TruePeakDBTP     DB        `json:"true_peak_dbtp"`
-	Segments         []Segment `json:"segments"`
+	File             string       `json:"file"`
+	Order            []string     `json:"order"` // labels of one round
+	Rounds           int          `json:"rounds"`
+	SegmentFrames    int64        `json:"segment_frames"`
+	CrossfadeFrames  int64        `json:"crossfade_frames"`
+	PhraseStartFrame int64        `json:"phrase_start_frame"`
+	Frames           int64        `json:"frames"`
+	SegmentSeconds   float64      `json:"segment_s"`
+	CrossfadeSeconds float64      `json:"crossfade_s"`
+	StartSeconds     float64      `json:"phrase_start_s"`
+	GainDB           report.Level `json:"gain_db"` // applied to the whole file; 0 unless crossfades would pass the ceiling
+	TruePeakDBTP     report.Level `json:"true_peak_dbtp"`
+	Segments         []Segment    `json:"segments"`
 }
 
 // Segment is one segment of the sequence file.
@@ -81,17 +82,17 @@ func (p seqPlan) frames() int64 { return int64(len(p.clips))*p.S + p.F }
 func planSequence(o SequenceOptions, fs float64, n int64, dry string, round []int) (seqPlan, error) {
 	switch {
 	case !(o.Segment > 0) || math.IsInf(o.Segment, 0):
-		return seqPlan{}, &ParamError{Param: "--segment", Value: fmt.Sprintf("%gs", o.Segment), Want: "a length above 0 s"}
+		return seqPlan{}, paramErr("segment", fmt.Sprintf("%gs", o.Segment), "a length above 0 s")
 	case !(o.Crossfade >= 0) || 2*o.Crossfade > o.Segment:
-		return seqPlan{}, &ParamError{Param: "--crossfade", Value: fmt.Sprintf("%gs", o.Crossfade), Want: fmt.Sprintf("0 s to half the segment (%gs)", o.Segment/2)}
+		return seqPlan{}, paramErr("crossfade", fmt.Sprintf("%gs", o.Crossfade), fmt.Sprintf("0 s to half the segment (%gs)", o.Segment/2))
 	case !(o.Start >= 0) || math.IsInf(o.Start, 0):
-		return seqPlan{}, &ParamError{Param: "--segment-start", Value: fmt.Sprintf("%gs", o.Start), Want: "0 s or later"}
+		return seqPlan{}, paramErr("segment_start", fmt.Sprintf("%gs", o.Start), "0 s or later")
 	case o.Rounds < 1 || o.Rounds > 1000:
-		return seqPlan{}, &ParamError{Param: "--rounds", Value: fmt.Sprint(o.Rounds), Want: "1…1000"}
+		return seqPlan{}, paramErr("rounds", fmt.Sprint(o.Rounds), "1…1000")
 	}
 	p := seqPlan{S: int64(math.Round(o.Segment * fs)), F: int64(math.Round(o.Crossfade * fs)), P: int64(math.Round(o.Start * fs))}
 	if p.S < 1 {
-		return seqPlan{}, &ParamError{Param: "--segment", Value: fmt.Sprintf("%gs", o.Segment), Want: "at least one frame"}
+		return seqPlan{}, paramErr("segment", fmt.Sprintf("%gs", o.Segment), "at least one frame")
 	}
 	if 2*p.F > p.S {
 		p.F = p.S / 2

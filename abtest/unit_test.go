@@ -244,10 +244,3 @@ func TestSlug(t *testing.T) {
 		}
 	}
 }
-
-func TestDBJSON(t *testing.T) {
-	b, err := json.Marshal([]DB{DB(math.Inf(-1)), DB(math.NaN()), -18.1234567, 0})
-	if err != nil || string(b) != "[null,null,-18.123457,0]" {
-		t.Errorf("got %s, %v", b, err)
-	}
-}

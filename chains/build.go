@@ -6,83 +6,14 @@ import (
 	"renderchain/models"
 )
 
-// Build flattens the chain into one circuit: stage k's out is stage k+1's
-// in (one node, so every stage loads the one before it), the signal source
-// drives "in", the supply is an ideal source on "v+", and the output load
-// hangs on "out". A stage with buffer = true is fed through an ideal
-// unity-gain buffer instead. A stage whose parts never use "out" is a shunt
-// stage: its out is its in.
+// Build flattens the chain into one circuit (see Flatten), for callers
+// that need the circuit only; its findings short of errors are dropped.
 func (ch *Chain) Build() (*models.Circuit, error) {
-	c := models.NewCircuit(ch.Name, ch.Temperature)
-	in := c.Node("in")
-	vplus := c.Node("v+")
-	c.Input = in
-	c.Add(models.Element{Ref: "input.source", Kind: models.VoltageSourceKind, Nodes: []int{in, models.Ground}, Signal: true})
-	c.Add(models.Element{Ref: "supply", Kind: models.VoltageSourceKind, Nodes: []int{vplus, models.Ground}, Value: ch.Supply})
-	// Each stage's out node is "STAGE.out", except the one that ends up as
-	// the chain's output, which is "out": the last stage's, or, behind
-	// trailing shunt stages (which pass their in through), the last
-	// out-driving stage's.
-	outName := make([]string, len(ch.Stages))
-	for k, st := range ch.Stages {
-		outName[k] = st.ID + ".out"
+	f, err := ch.Flatten()
+	if err != nil {
+		return nil, err
 	}
-	bufferedOut := -1 // a buffered shunt stage whose buffer output is the chain's output
-	for k := len(ch.Stages) - 1; k >= 0; k-- {
-		st := ch.Stages[k]
-		outName[k] = "out"
-		if st.usesPin("out") {
-			break
-		}
-		if st.Buffer {
-			bufferedOut = k
-			break
-		}
-	}
-	prev := "in"
-	for k, st := range ch.Stages {
-		stageIn := prev
-		if st.Buffer {
-			stageIn = st.ID + ".in"
-			if k == bufferedOut {
-				stageIn = "out"
-			}
-			c.Add(models.Element{Ref: st.ID + ".buffer", Kind: models.BufferKind, Nodes: []int{c.Node(stageIn), c.Node(prev)}})
-		}
-		stageOut := outName[k]
-		if !st.usesPin("out") {
-			stageOut = stageIn
-		}
-		node := func(name string) int {
-			switch name {
-			case "gnd":
-				return models.Ground
-			case "v+":
-				return vplus
-			case "in":
-				return c.Node(stageIn)
-			case "out":
-				return c.Node(stageOut)
-			}
-			return c.Node(st.ID + "." + name)
-		}
-		for _, p := range st.Parts {
-			if err := ch.addPart(c, st, p, node); err != nil {
-				return nil, err
-			}
-		}
-		prev = stageOut
-	}
-	out := c.Node(prev) // "out", or "in" when every stage is a shunt
-	c.Output = out
-	if ch.Load > 0 {
-		c.Add(models.Element{Ref: "output.load", Kind: models.ResistorKind, Nodes: []int{out, models.Ground}, Value: ch.Load})
-	}
-	if err := c.Check(); err != nil {
-		return nil, &Error{File: ch.File, Msg: err.Error()}
-	}
-	c.AddLeaks()
-	return c, nil
+	return f.Circuit, nil
 }
 
 func (st *Stage) usesPin(name string) bool {
@@ -102,15 +33,15 @@ func (ch *Chain) addPart(c *models.Circuit, st *Stage, p *Part, node func(string
 		c.Add(models.Element{Ref: ref, Kind: kind, Nodes: []int{node(p.Pins["1"]), node(p.Pins["2"])}, Value: v})
 	}
 	switch p.Kind {
-	case "resistor":
+	case Resistor:
 		two(models.ResistorKind, p.Value)
-	case "capacitor":
+	case Capacitor:
 		two(models.CapacitorKind, p.Value)
-	case "cable":
+	case Cable:
 		two(models.CapacitorKind, p.Value*p.PerMetre)
-	case "inductor":
+	case Inductor:
 		two(models.InductorKind, p.Value)
-	case "pot":
+	case Pot:
 		x := st.Knobs[p.Knob]
 		lower, upper := models.PotSections(p.Value, p.Taper, x)
 		ccw, wiper := node(p.Pins["ccw"]), node(p.Pins["wiper"])
@@ -124,20 +55,20 @@ func (ch *Chain) addPart(c *models.Circuit, st *Stage, p *Part, node func(string
 				c.Add(models.Element{Ref: ref + ".cw", Kind: models.ResistorKind, Nodes: []int{wiper, cw}, Value: upper})
 			}
 		}
-	case "diode":
+	case Diode:
 		dp := p.DiodeParams()
 		a, k := node(p.Pins["anode"]), node(p.Pins["cathode"])
 		if dp.Rs > 0 {
-			j := c.Node(ref + ".junction")
+			j := c.Node(internalName(st.ID, p.Ref, "junction"))
 			c.Add(models.Element{Ref: ref + ".rs", Kind: models.ResistorKind, Nodes: []int{a, j}, Value: dp.Rs})
 			a = j
 		}
 		c.Add(models.Element{Ref: ref, Kind: models.DiodeKind, Nodes: []int{a, k}, Diode: dp})
-	case "npn", "pnp":
+	case NPN, PNP:
 		c.Add(models.Element{Ref: ref, Kind: models.BJTKind,
 			Nodes: []int{node(p.Pins["c"]), node(p.Pins["b"]), node(p.Pins["e"])}, BJT: p.BJTParams()})
 	default:
-		return &Error{File: ch.File, Where: "part " + ref, Msg: fmt.Sprintf("kind %q cannot be built", p.Kind)}
+		return &Error{File: ch.File, Where: "part " + ref, Msg: fmt.Sprintf("kind %s cannot be built", p.Kind)}
 	}
 	return nil
 }
@@ -157,16 +88,25 @@ func (ch *Chain) Clone() *Chain {
 	d := *ch
 	d.Stages = nil
 	for _, st := range ch.Stages {
-		s := *st
-		s.Knobs = map[string]float64{}
-		for k, v := range st.Knobs {
-			s.Knobs[k] = v
-		}
-		s.Parts = nil
-		for _, p := range st.Parts {
-			s.Parts = append(s.Parts, clonePart(p))
-		}
-		d.Stages = append(d.Stages, &s)
+		d.Stages = append(d.Stages, st.clone())
 	}
+	if ch.Power != nil {
+		d.Power = ch.Power.clone()
+	}
+	d.Nets = append([]string(nil), ch.Nets...)
 	return &d
+}
+
+// clone returns a deep copy of the stage.
+func (st *Stage) clone() *Stage {
+	s := *st
+	s.Knobs = map[string]float64{}
+	for k, v := range st.Knobs {
+		s.Knobs[k] = v
+	}
+	s.Parts = nil
+	for _, p := range st.Parts {
+		s.Parts = append(s.Parts, clonePart(p))
+	}
+	return &s
 }

@@ -27,7 +27,13 @@ type Chain struct {
 	Load        float64 // Ω from out to gnd; 0 for none
 	FullScale   float64 // output volts written as 0 dBFS
 	Stages      []*Stage
-	loc         *locator
+	// Nets are the node names shared by every stage besides gnd, v+, in
+	// and out, declared once by the top-level nets list (see nets.go).
+	Nets []string
+	// Power is the supply network between the ideal supply and v+, from
+	// the [power] table; nil for an ideal supply straight on v+.
+	Power *Stage
+	loc   *locator
 }
 
 // Stage is one stage of a chain, its parts resolved (template expanded and
@@ -35,15 +41,22 @@ type Chain struct {
 type Stage struct {
 	ID, Template, About string
 	Buffer              bool
-	Knobs               map[string]float64 // rotation 0..1
-	KnobAbout           map[string]string
-	Parts               []*Part
-	index               int // position among [[stage]] tables, −1 if implicit
+	// Environment marks a stage that models what the build plugs into
+	// (the instrument's pickup, the amplifier's input) rather than the
+	// build itself: declared by environment = true in its template or its
+	// [[stage]] table. Parts lists and tolerance spreads leave such stages
+	// out unless asked.
+	Environment bool
+	Knobs       map[string]float64 // rotation 0..1
+	KnobAbout   map[string]string
+	Parts       []*Part
+	index       int // position among [[stage]] tables, −1 if implicit
 }
 
 // Part is one component of a stage.
 type Part struct {
-	Ref, Kind string
+	Ref       string
+	Kind      PartKind
 	Value     float64 // Ω, F, H; a cable's length in metres
 	Text      string  // the value as written
 	Taper     models.Taper
@@ -57,31 +70,14 @@ type Part struct {
 	About     string
 }
 
-// Part kinds and their pins.
-var kindPins = map[string][]string{
-	"resistor":  nil,
-	"capacitor": nil,
-	"inductor":  nil,
-	"cable":     nil,
-	"pot":       {"ccw", "wiper", "cw"},
-	"diode":     {"anode", "cathode"},
-	"npn":       {"c", "b", "e"},
-	"pnp":       {"c", "b", "e"},
-}
-
-var kindQuantity = map[string]models.Quantity{
-	"resistor": models.Resistance, "pot": models.Resistance,
-	"capacitor": models.Capacitance, "inductor": models.Inductance, "cable": models.Length,
-}
-
 // Device parameters a part may carry, with their quantities.
-var deviceParams = map[string]map[string]models.Quantity{
-	"diode": {"is": models.Current, "n": models.Dimensionless, "rs": models.Resistance, "eg": models.Dimensionless, "xti": models.Dimensionless},
-	"npn": {"is": models.Current, "hfe": models.Dimensionless, "br": models.Dimensionless, "icbo": models.Current,
+var deviceParams = map[PartKind]map[string]models.Quantity{
+	Diode: {"is": models.Current, "n": models.Dimensionless, "rs": models.Resistance, "eg": models.Dimensionless, "xti": models.Dimensionless},
+	NPN: {"is": models.Current, "hfe": models.Dimensionless, "br": models.Dimensionless, "icbo": models.Current,
 		"leak_doubling": models.Dimensionless, "eg": models.Dimensionless, "xti": models.Dimensionless},
 }
 
-func init() { deviceParams["pnp"] = deviceParams["npn"] }
+func init() { deviceParams[PNP] = deviceParams[NPN] }
 
 var commonKeys = map[string]bool{"ref": true, "kind": true, "value": true, "pins": true, "tolerance": true,
 	"taper": true, "knob": true, "per_metre": true, "model": true, "adjusts": true, "about": true}
@@ -94,6 +90,8 @@ type rawChain struct {
 	Input       rawInput   `toml:"input"`
 	Output      rawOutput  `toml:"output"`
 	Stages      []rawStage `toml:"stage"`
+	Nets        any        `toml:"nets"`
+	Power       *rawPower  `toml:"power"`
 }
 
 type rawInput struct {
@@ -111,6 +109,7 @@ type rawStage struct {
 	Template string           `toml:"template"`
 	About    string           `toml:"about"`
 	Buffer   bool             `toml:"buffer"`
+	Env      bool             `toml:"environment"`
 	Knobs    map[string]any   `toml:"knobs"`
 	Values   map[string]any   `toml:"values"`
 	Parts    []map[string]any `toml:"parts"`
@@ -118,11 +117,11 @@ type rawStage struct {
 
 // Load reads and checks a chain file.
 func Load(path string) (*Chain, error) {
-	src, err := os.ReadFile(path)
+	src, err := ReadFile(path) // bounded: limits.go
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot read chain file: " + errText(err)}
+		return nil, err
 	}
-	return Parse(filepath.Base(path), string(src))
+	return Parse(filepath.Base(path), src)
 }
 
 func errText(err error) string {
@@ -135,6 +134,9 @@ func errText(err error) string {
 
 // Parse reads a chain from TOML text; name is used in messages.
 func Parse(name, src string) (*Chain, error) {
+	if err := CheckText(name, src); err != nil { // before the parser sees it: limits.go
+		return nil, err
+	}
 	var raw rawChain
 	md, err := toml.Decode(src, &raw)
 	if err != nil {
@@ -146,47 +148,47 @@ func Parse(name, src string) (*Chain, error) {
 	}
 	loc := newLocator(src)
 	if und := undecoded(md); len(und) > 0 {
-		k := und[0]
-		line := loc.findKey(strings.Join(k[:len(k)-1], "."), k[len(k)-1])
-		if k[0] == "stage" {
-			line = 0
-		}
-		return nil, &Error{File: name, Line: line, Msg: fmt.Sprintf("unknown key %q", k.String())}
+		return nil, unknownChainKey(name, loc, und[0])
 	}
 	ch := &Chain{Name: raw.Name, File: name, Oversample: raw.Oversample, loc: loc, Source: raw.Input.Source}
-	top := func(table, key string, v any, q models.Quantity, def string) (float64, error) {
+	top := func(table, key string, v any, q models.Quantity, r models.Range, def string) (float64, error) {
 		if v == nil {
 			v = def
 		}
 		x, err := valueOf(v, q)
+		if err == nil && q == models.Voltage && r == models.SupplyRange {
+			err = r.Check(math.Abs(x))
+		} else if err == nil {
+			err = r.Check(x)
+		}
 		if err != nil {
 			where := key
 			if table != "" {
 				where = table + "." + key
 			}
-			return 0, &Error{File: name, Line: loc.findKey(table, key), Where: where, Msg: err.Error()}
+			return 0, &Error{File: name, Line: loc.findKey(table, key), Where: where, Msg: valueMessage(v, err), Err: err}
 		}
 		return x, nil
 	}
-	if ch.Supply, err = top("", "supply", raw.Supply, models.Voltage, "9V"); err != nil {
+	if ch.Supply, err = top("", "supply", raw.Supply, models.Voltage, models.SupplyRange, "9V"); err != nil {
 		return nil, err
 	}
-	if ch.Temperature, err = top("", "temperature", raw.Temperature, models.Temperature, "25C"); err != nil {
+	if ch.Temperature, err = top("", "temperature", raw.Temperature, models.Temperature, models.TemperatureRange, "25C"); err != nil {
 		return nil, err
 	}
-	if ch.InputPeak, err = top("input", "peak", raw.Input.Peak, models.Voltage, "300mV"); err != nil {
+	if ch.InputPeak, err = top("input", "peak", raw.Input.Peak, models.Voltage, models.SignalRange, "300mV"); err != nil {
 		return nil, err
 	}
 	if s, ok := raw.Output.Load.(string); ok && (s == "none" || s == "open") {
 		ch.Load = 0
-	} else if ch.Load, err = top("output", "load", raw.Output.Load, models.Resistance, "1M"); err != nil {
+	} else if ch.Load, err = top("output", "load", raw.Output.Load, models.Resistance, models.LoadRange, "1M"); err != nil {
 		return nil, err
 	}
-	if ch.FullScale, err = top("output", "full_scale", raw.Output.FullScale, models.Voltage, "1V"); err != nil {
+	if ch.FullScale, err = top("output", "full_scale", raw.Output.FullScale, models.Voltage, models.SignalRange, "1V"); err != nil {
 		return nil, err
 	}
-	if err := ch.checkScalars(); err != nil {
-		return nil, err
+	if err := models.OversampleRange.Check(float64(ch.Oversample)); ch.Oversample != 0 && err != nil {
+		return nil, &Error{File: name, Line: loc.findKey("", "oversample"), Where: "oversample", Msg: err.Error(), Err: err}
 	}
 	switch ch.Source {
 	case "":
@@ -205,6 +207,12 @@ func Parse(name, src string) (*Chain, error) {
 	if len(raw.Stages) == 0 {
 		return nil, &Error{File: name, Msg: "no [[stage]] tables: a chain needs at least one stage"}
 	}
+	if err := ch.parseNets(raw.Nets); err != nil {
+		return nil, err
+	}
+	if err := ch.parsePower(raw.Power); err != nil {
+		return nil, err
+	}
 	seen := map[string]bool{}
 	for k, rs := range raw.Stages {
 		st, err := ch.parseStage(k, rs)
@@ -213,6 +221,9 @@ func Parse(name, src string) (*Chain, error) {
 		}
 		if seen[st.ID] {
 			return nil, &Error{File: name, Line: loc.find(k), Where: "stage " + st.ID, Msg: "duplicate stage id"}
+		}
+		if err := ch.checkStageTemplate(k, st); err != nil {
+			return nil, err
 		}
 		seen[st.ID] = true
 		ch.Stages = append(ch.Stages, st)
@@ -236,27 +247,6 @@ func undecoded(md toml.MetaData) []toml.Key {
 	return out
 }
 
-func (ch *Chain) checkScalars() error {
-	bad := func(key, table, msg string) error {
-		return &Error{File: ch.File, Line: ch.loc.findKey(table, key), Where: strings.TrimPrefix(table+"."+key, "."), Msg: msg}
-	}
-	switch {
-	case ch.Supply == 0 || math.Abs(ch.Supply) > 60:
-		return bad("supply", "", fmt.Sprintf("%s is outside ±60 V and not 0", models.FormatValue(ch.Supply, "V")))
-	case ch.Temperature < models.ZeroCelsius-60 || ch.Temperature > models.ZeroCelsius+150:
-		return bad("temperature", "", fmt.Sprintf("%.1f °C is outside −60…150 °C", ch.Temperature-models.ZeroCelsius))
-	case !(ch.InputPeak > 0) || ch.InputPeak > 100:
-		return bad("peak", "input", "input peak must be above 0 V and at most 100 V")
-	case !(ch.FullScale > 0):
-		return bad("full_scale", "output", "full scale must be above 0 V")
-	case ch.Load < 0:
-		return bad("load", "output", "load must be positive (or \"none\")")
-	case ch.Oversample < 0 || ch.Oversample > 16:
-		return bad("oversample", "", "oversample must be 1 to 16")
-	}
-	return nil
-}
-
 func firstLine(s string) string {
 	s = strings.TrimSpace(s)
 	if i := strings.IndexByte(s, '\n'); i >= 0 {
@@ -265,25 +255,45 @@ func firstLine(s string) string {
 	return s
 }
 
-// valueOf turns a TOML value (string or number) into SI units.
+// valueOf turns a TOML value (string or number) into SI units; a number
+// must be finite (TOML can write nan and inf).
 func valueOf(v any, q models.Quantity) (float64, error) {
-	switch x := v.(type) {
-	case string:
-		return models.ParseValue(x, q)
-	case int64:
-		if q == models.Temperature {
-			return float64(x) + models.ZeroCelsius, nil
-		}
-		return float64(x), nil
-	case float64:
-		if q == models.Temperature {
-			return x + models.ZeroCelsius, nil
-		}
-		return x, nil
+	if s, ok := v.(string); ok {
+		return models.ParseValue(s, q)
 	}
-	return 0, fmt.Errorf("value %v is not %s", v, q)
+	x, ok := number(v)
+	if !ok {
+		return 0, fmt.Errorf("value %v is not %s", v, q)
+	}
+	if err := finite(x); err != nil {
+		return 0, err
+	}
+	if q == models.Temperature {
+		x += models.ZeroCelsius // a plain number is degrees Celsius
+	}
+	return x, nil
 }
 
+// finite refuses NaN and infinities.
+func finite(x float64) error {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return &models.RangeError{Value: x, Range: models.Range{Lo: math.Inf(-1), Hi: math.Inf(1)}}
+	}
+	return nil
+}
+
+// valueMessage words a value error for a chain-file key: the value as
+// written and why.
+func valueMessage(v any, err error) string {
+	var ve *models.ValueError
+	if errors.As(err, &ve) {
+		return err.Error()
+	}
+	return fmt.Sprintf("value %v %s", v, models.Reason(err))
+}
+
+// number reads a TOML number (integer or float, NaN and infinities
+// included: callers check).
 func number(v any) (float64, bool) {
 	switch x := v.(type) {
 	case int64:
@@ -292,6 +302,19 @@ func number(v any) (float64, bool) {
 		return x, true
 	}
 	return 0, false
+}
+
+// rotation reads a knob setting from a TOML value: a number within
+// models.RotationRange.
+func rotation(name string, v any) (float64, error) {
+	x, ok := number(v)
+	if !ok {
+		return 0, fmt.Errorf("knob %s = %v is not a number", name, v)
+	}
+	if err := models.RotationRange.Check(x); err != nil {
+		return 0, fmt.Errorf("knob %s = %v %s (0 fully counter-clockwise, 1 fully clockwise)", name, v, models.Reason(err))
+	}
+	return x, nil
 }
 
 func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
@@ -316,12 +339,9 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 	}
 	knobs := map[string]float64{}
 	for name, v := range rs.Knobs {
-		x, ok := number(v)
-		if !ok {
-			return nil, fail(ch.loc.find(k, "knobs", name), fmt.Sprintf("knob %s = %v is not a number", name, v))
-		}
-		if x < 0 || x > 1 {
-			return nil, fail(ch.loc.find(k, "knobs", name), fmt.Sprintf("knob %s = %g is outside 0…1 (0 fully counter-clockwise, 1 fully clockwise)", name, x))
+		x, err := rotation(name, v)
+		if err != nil {
+			return nil, fail(ch.loc.find(k, "knobs", name), err.Error())
 		}
 		knobs[name] = x
 	}
@@ -329,7 +349,14 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 		if len(rs.Parts) > 0 {
 			return nil, fail(ch.loc.find(k, "parts"), "a stage takes either template or parts, not both")
 		}
-		st, err := expandTemplate(rs.Template, rs.ID, knobs, rs.Values, func(needles ...string) int { return ch.loc.find(k, needles...) })
+		st, err := expandTemplate(rs.Template, rs.ID, knobs, rs.Values, func(needles ...string) int {
+			if len(needles) == 1 { // a knob or part name: the line that assigns it
+				if line := ch.loc.findAssign(k, needles[0]); line > 0 {
+					return line
+				}
+			}
+			return ch.loc.find(k, needles...)
+		})
 		if err != nil {
 			var ce *Error
 			if errors.As(err, &ce) && ce.File == "" {
@@ -337,11 +364,12 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 				if ce.Line == 0 {
 					ce.Line = ch.loc.find(k, "template")
 				}
-				ce.Where = strings.TrimPrefix(where+": "+ce.Where, ": ")
+				ce.Where = strings.TrimSuffix(where+": "+ce.Where, ": ")
 			}
 			return nil, err
 		}
 		st.Buffer = rs.Buffer
+		st.Environment = st.Environment || rs.Env
 		st.index = k
 		if rs.About != "" {
 			st.About = rs.About
@@ -354,7 +382,7 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 	if len(rs.Parts) == 0 {
 		return nil, fail(0, "needs a template or a parts list")
 	}
-	st := &Stage{ID: rs.ID, About: rs.About, Buffer: rs.Buffer, Knobs: knobs, KnobAbout: map[string]string{}, index: k}
+	st := &Stage{ID: rs.ID, About: rs.About, Buffer: rs.Buffer, Environment: rs.Env, Knobs: knobs, KnobAbout: map[string]string{}, index: k}
 	for _, rp := range rs.Parts {
 		ref, _ := rp["ref"].(string)
 		p, err := parsePart(rp)
@@ -396,7 +424,7 @@ func (st *Stage) addPart(p *Part) error {
 func (st *Stage) checkKnobs() error {
 	used := map[string]bool{}
 	for _, p := range st.Parts {
-		if p.Kind == "pot" {
+		if p.Kind == Pot {
 			used[p.Knob] = true
 			if _, ok := st.Knobs[p.Knob]; !ok {
 				return fmt.Errorf("part %s: knob %q has no setting (add it to knobs)", p.Ref, p.Knob)
@@ -430,7 +458,7 @@ func listOr(s []string) string {
 // parsePart reads one part table.
 func parsePart(rp map[string]any) (*Part, error) {
 	ref, _ := rp["ref"].(string)
-	kind, _ := rp["kind"].(string)
+	kindName, _ := rp["kind"].(string)
 	if ref == "" {
 		return nil, errors.New("part without ref")
 	}
@@ -440,10 +468,11 @@ func parsePart(rp map[string]any) (*Part, error) {
 	fail := func(format string, a ...any) (*Part, error) {
 		return nil, fmt.Errorf("part %s: %s", ref, fmt.Sprintf(format, a...))
 	}
-	pinRoles, known := kindPins[kind]
+	kind, known := ParsePartKind(kindName)
 	if !known {
-		return fail("kind %q is not one of %s", kind, strings.Join(keys(kindPins), ", "))
+		return fail("kind %q is not one of %s", kindName, strings.Join(PartKindNames(), ", "))
 	}
+	pinRoles := kind.Pins()
 	p := &Part{Ref: ref, Kind: kind, Params: map[string]float64{}, Pins: map[string]string{}}
 	for key := range rp {
 		if commonKeys[key] {
@@ -452,7 +481,7 @@ func parsePart(rp map[string]any) (*Part, error) {
 		if _, ok := deviceParams[kind][key]; ok {
 			continue
 		}
-		return fail("unknown key %q for a %s", key, kind)
+		return fail("unknown key %q for a %s%s", key, kind, didYouMean(key, partKeys(kind)))
 	}
 	// Pins.
 	switch pins := rp["pins"].(type) {
@@ -489,7 +518,7 @@ func parsePart(rp map[string]any) (*Part, error) {
 			p.Pins[role] = s
 		}
 		for _, r := range pinRoles {
-			if _, ok := p.Pins[r]; !ok && !(kind == "pot" && r == "cw") {
+			if _, ok := p.Pins[r]; !ok && !(kind == Pot && r == "cw") {
 				return fail("pin %s is not connected", r)
 			}
 		}
@@ -519,17 +548,16 @@ func (p *Part) apply(t map[string]any, full bool) error {
 				return fail("%s cannot be overridden", key)
 			}
 		case "value":
-			q, ok := kindQuantity[p.Kind]
-			if !ok {
-				if s, isStr := v.(string); isStr && (p.Kind == "diode" || p.Kind == "npn" || p.Kind == "pnp") {
+			if !p.Kind.Valued() {
+				if s, isStr := v.(string); isStr && p.Kind.Device() {
 					p.Model = s // a device's "value" names its model
 					continue
 				}
 				return fail("a %s has no value; set its parameters", p.Kind)
 			}
-			x, err := valueOf(v, q)
+			x, err := valueOf(v, p.Kind.Quantity())
 			if err != nil {
-				return fail("%v", err)
+				return fail("%s", valueMessage(v, err))
 			}
 			p.Value = x
 			p.Text = fmt.Sprint(v)
@@ -555,18 +583,13 @@ func (p *Part) apply(t map[string]any, full bool) error {
 		case "per_metre":
 			x, err := valueOf(v, models.Capacitance)
 			if err != nil {
-				return fail("per_metre: %v", err)
+				return fail("per_metre: %s", valueMessage(v, err))
 			}
 			p.PerMetre = x
 		case "tolerance":
-			x, ok := number(v)
-			if s, isStr := v.(string); isStr {
-				var err error
-				x, err = parsePercent(s)
-				ok = err == nil
-			}
-			if !ok || x < 0 || x >= 1 {
-				return fail("tolerance %v must be a fraction or percentage below 100 %%", v)
+			x, err := tolerance(v)
+			if err != nil {
+				return fail("tolerance %v %s (a fraction or a percentage below 100 %%)", v, models.Reason(err))
 			}
 			p.Tolerance = x
 		case "adjusts":
@@ -578,11 +601,11 @@ func (p *Part) apply(t map[string]any, full bool) error {
 		default:
 			q, ok := deviceParams[p.Kind][key]
 			if !ok {
-				return fail("unknown key %q for a %s", key, p.Kind)
+				return fail("unknown key %q for a %s%s", key, p.Kind, didYouMean(key, partKeys(p.Kind)))
 			}
 			x, err := valueOf(v, q)
 			if err != nil {
-				return fail("%s: %v", key, err)
+				return fail("%s: %s", key, valueMessage(v, err))
 			}
 			p.Params[key] = x
 		}
@@ -590,13 +613,17 @@ func (p *Part) apply(t map[string]any, full bool) error {
 	return nil
 }
 
-func parsePercent(s string) (float64, error) {
-	s = strings.TrimSpace(s)
-	if strings.HasSuffix(s, "%") {
-		x, err := models.ParseValue(strings.TrimSuffix(s, "%"), models.Dimensionless)
-		return x / 100, err
+// tolerance reads a part's tolerance from a TOML value: a fraction, or a
+// text such as "5%" (models.ParseTolerance).
+func tolerance(v any) (float64, error) {
+	if s, ok := v.(string); ok {
+		return models.ParseTolerance(s)
 	}
-	return models.ParseValue(s, models.Dimensionless)
+	x, ok := number(v)
+	if !ok {
+		return 0, fmt.Errorf("not a number")
+	}
+	return x, models.ToleranceRange.Check(x)
 }
 
 // complete checks a part's values after parsing or overriding.
@@ -604,36 +631,44 @@ func (p *Part) complete() error {
 	fail := func(format string, a ...any) error {
 		return fmt.Errorf("part %s: %s", p.Ref, fmt.Sprintf(format, a...))
 	}
-	switch p.Kind {
-	case "resistor", "capacitor", "inductor", "pot", "cable":
+	switch {
+	case p.Kind.Valued():
 		if !(p.Value > 0) {
 			if p.Text == "" {
 				return fail("no value")
 			}
 			return fail("value %s must be positive", p.Text)
 		}
-		if p.Kind == "resistor" && p.Value > 1e12 || p.Kind == "capacitor" && p.Value > 10 || p.Kind == "inductor" && p.Value > 1e4 || p.Kind == "cable" && p.Value > 1e3 {
+		if max := kinds[p.Kind].max; max > 0 && p.Value > max {
 			return fail("value %s is implausibly large for a %s", p.Text, p.Kind)
 		}
-		if p.Kind == "pot" && p.Knob == "" {
+		if p.Kind == Pot && p.Knob == "" {
 			return fail("a pot needs knob = \"name\"")
 		}
-		if p.Kind == "cable" && p.PerMetre == 0 {
+		if p.Kind == Cable && p.PerMetre == 0 {
 			p.PerMetre = 100e-12 // about 100 pF/m for instrument cable (common practice)
 		}
-	case "diode", "npn", "pnp":
+		if p.Kind == Cable && !(p.PerMetre > 0 && p.PerMetre < 1e-6) {
+			return fail("per_metre %s is not a cable's capacitance per metre", models.FormatValue(p.PerMetre, "F"))
+		}
+	case p.Kind.Device():
 		if p.Model != "" {
 			pr, ok := models.Presets[p.Model]
 			if !ok {
 				return fail("model %q is not one of %s", p.Model, strings.Join(models.PresetNames(), ", "))
 			}
-			if (p.Kind == "diode") != (pr.Diode != nil) || pr.BJT != nil && pr.BJT.PNP != (p.Kind == "pnp") {
+			if (p.Kind == Diode) != (pr.Diode != nil) || pr.BJT != nil && pr.BJT.PNP != (p.Kind == PNP) {
 				return fail("model %q is not a %s", p.Model, p.Kind)
 			}
 		}
 		for k, v := range p.Params {
-			if !(v > 0) && k != "icbo" || v < 0 {
-				return fail("%s = %g must be positive", k, v)
+			if err := finite(v); err != nil || !(v > 0) && k != "icbo" || v < 0 {
+				return fail("%s = %g must be a positive number", k, v)
+			}
+			if k == "hfe" {
+				if err := models.GainRange.Check(v); err != nil {
+					return fail("hfe = %g is outside %s", v, models.GainRange.Describe())
+				}
 			}
 		}
 	}
@@ -660,7 +695,7 @@ func (p *Part) DiodeParams() models.DiodeParams {
 func (p *Part) BJTParams() models.BJTParams {
 	name := p.Model
 	if name == "" {
-		name = "si-" + p.Kind
+		name = "si-" + p.Kind.String()
 	}
 	b := *models.Presets[name].BJT
 	if p.Model == "" {
@@ -668,7 +703,7 @@ func (p *Part) BJTParams() models.BJTParams {
 	}
 	p.setParams(map[string]*float64{"is": &b.Is, "hfe": &b.BetaF, "br": &b.BetaR, "icbo": &b.Icbo,
 		"leak_doubling": &b.LeakDoubling, "eg": &b.Eg, "xti": &b.XTI})
-	b.PNP = p.Kind == "pnp"
+	b.PNP = p.Kind == PNP
 	return b
 }
 

@@ -67,9 +67,10 @@ func TestParseErrors(t *testing.T) {
 // Circuit faults found when the chain is flattened.
 func TestBuildErrors(t *testing.T) {
 	cases := []struct{ name, parts, want string }{
-		{"floating node", `{ ref = "C1", kind = "capacitor", value = "1n", pins = ["in", "x"] },
-  { ref = "C2", kind = "capacitor", value = "1n", pins = ["x", "out"] },
-  { ref = "R1", kind = "resistor", value = "1k", pins = ["out", "gnd"] }`, "node x.x: has no DC path to ground"},
+		{"floating island", `{ ref = "C1", kind = "capacitor", value = "1n", pins = ["in", "x"] },
+  { ref = "R2", kind = "resistor", value = "1k", pins = ["x", "y"] },
+  { ref = "C2", kind = "capacitor", value = "1n", pins = ["y", "out"] },
+  { ref = "R1", kind = "resistor", value = "1k", pins = ["out", "gnd"] }`, "f.toml:5: stage x: part C1: pin 2 is on node x.x, which has no DC path to ground"},
 		{"short across the supply", `{ ref = "L1", kind = "inductor", value = "1m", pins = ["v+", "gnd"] },
   { ref = "R1", kind = "resistor", value = "1k", pins = ["in", "out"] }`, "short"},
 		{"both pins on one node", `{ ref = "R1", kind = "resistor", value = "1k", pins = ["in", "in"] },
@@ -310,17 +311,28 @@ func TestTemplatesBuild(t *testing.T) {
 		if tp.Name == "fuzz-ge" {
 			supply = "-9V"
 		}
-		src := "name = \"t\"\nsupply = \"" + supply + "\"\n[[stage]]\nid = \"s\"\ntemplate = \"" + tp.Name + "\"\n"
-		ch, err := chains.Parse("t.toml", src)
-		if err != nil {
-			t.Fatalf("%s: %v", tp.Name, err)
+		srcs := []string{"name = \"t\"\nsupply = \"" + supply + "\"\n[[stage]]\nid = \"s\"\ntemplate = \"" + tp.Name + "\"\n"}
+		if tp.Supply {
+			// A supply network behind each polarity, feeding a 1 kΩ load.
+			srcs = nil
+			for _, supply := range []string{"9V", "-9V"} {
+				srcs = append(srcs, "name = \"t\"\nsupply = \""+supply+"\"\n[power]\ntemplate = \""+tp.Name+"\"\n[[stage]]\nid = \"s\"\n"+
+					"parts = [\n  { ref = \"R1\", kind = \"resistor\", value = \"1k\", pins = [\"in\", \"out\"] },\n"+
+					"  { ref = \"RL\", kind = \"resistor\", value = \"1k\", pins = [\"v+\", \"gnd\"] },\n]\n")
+			}
 		}
-		c, err := ch.Build()
-		if err != nil {
-			t.Fatalf("%s: %v", tp.Name, err)
-		}
-		if _, err := mna.SolveDC(c, mna.DCOptions{}); err != nil {
-			t.Errorf("%s: %v", tp.Name, err)
+		for _, src := range srcs {
+			ch, err := chains.Parse("t.toml", src)
+			if err != nil {
+				t.Fatalf("%s: %v", tp.Name, err)
+			}
+			c, err := ch.Build()
+			if err != nil {
+				t.Fatalf("%s: %v", tp.Name, err)
+			}
+			if _, err := mna.SolveDC(c, mna.DCOptions{}); err != nil {
+				t.Errorf("%s: %v", tp.Name, err)
+			}
 		}
 	}
 }

@@ -1,6 +1,7 @@
 package chains
 
 import (
+	"errors"
 	"fmt"
 	"strconv"
 	"strings"
@@ -8,12 +9,25 @@ import (
 	"renderchain/models"
 )
 
-// SetError reports a bad --set override.
+// SetError reports an override that cannot be applied: the key as
+// written and why.
 type SetError struct {
 	Key, Msg string
+	Err      error // the underlying value error, if any
 }
 
-func (e *SetError) Error() string { return fmt.Sprintf("--set %s: %s", e.Key, e.Msg) }
+func (e *SetError) Error() string { return oneLine(fmt.Sprintf("override %s: %s", e.Key, e.Msg)) }
+
+// Unwrap returns the underlying error, else ErrChain.
+func (e *SetError) Unwrap() error {
+	if e.Err != nil {
+		return e.Err
+	}
+	return ErrChain
+}
+
+// SetKeys lists the chain's own override keys.
+var SetKeys = []string{"supply", "temperature", "oversample", "input.peak", "output.load", "output.full_scale"}
 
 // Set applies one override "KEY=VALUE" to the chain. Keys:
 //
@@ -21,6 +35,12 @@ func (e *SetError) Error() string { return fmt.Sprintf("--set %s: %s", e.Key, e.
 //	STAGE.KNOB        a knob's rotation, 0…1
 //	STAGE.REF         a part's value (or a device's model name)
 //	STAGE.REF.PARAM   a part's parameter (hfe, is, br, n, rs, taper, …)
+//	power.REF …       the same for the [power] table's supply network
+//
+// Every value goes through its quantity's parser in package models, so it
+// is finite and in range. A supply sets the magnitude and keeps the chain
+// file's polarity (models.ParseSupply): "supply=7V" on a positive-ground
+// build is −7 V, and a sign that contradicts the file is an error.
 func (ch *Chain) Set(kv string) error {
 	key, val, ok := strings.Cut(kv, "=")
 	key, val = strings.TrimSpace(key), strings.TrimSpace(val)
@@ -28,65 +48,69 @@ func (ch *Chain) Set(kv string) error {
 		return &SetError{Key: kv, Msg: "want KEY=VALUE"}
 	}
 	fail := func(format string, a ...any) error { return &SetError{Key: key, Msg: fmt.Sprintf(format, a...)} }
-	scalar := func(dst *float64, q models.Quantity) error {
-		x, err := models.ParseValue(val, q)
+	bad := func(err error) error {
+		var pe *models.PolarityError
+		var ve *models.ValueError
+		switch {
+		case errors.As(err, &pe):
+			return &SetError{Key: key, Msg: strconv.Quote(val) + ": " + pe.Advice(), Err: err}
+		case errors.As(err, &ve):
+			return &SetError{Key: key, Msg: err.Error(), Err: err}
+		}
+		return &SetError{Key: key, Msg: fmt.Sprintf("%q %s", val, models.Reason(err)), Err: err}
+	}
+	scalar := func(dst *float64, v float64, err error) error {
 		if err != nil {
-			return fail("%v", err)
+			return bad(err)
 		}
-		old := *dst
-		*dst = x
-		if err := ch.checkScalars(); err != nil {
-			*dst = old
-			if e, ok := err.(*Error); ok {
-				return fail("%s", e.Msg)
-			}
-			return fail("%v", err)
-		}
+		*dst = v
 		return nil
 	}
 	switch key {
 	case "supply":
-		return scalar(&ch.Supply, models.Voltage)
+		v, err := models.ParseSupply(val, ch.Supply)
+		return scalar(&ch.Supply, v, err)
 	case "temperature":
-		return scalar(&ch.Temperature, models.Temperature)
+		v, err := models.ParseTemperature(val)
+		return scalar(&ch.Temperature, v, err)
 	case "input.peak":
-		return scalar(&ch.InputPeak, models.Voltage)
+		v, err := models.ParseIn(val, models.Voltage, models.SignalRange)
+		return scalar(&ch.InputPeak, v, err)
 	case "output.full_scale":
-		return scalar(&ch.FullScale, models.Voltage)
+		v, err := models.ParseIn(val, models.Voltage, models.SignalRange)
+		return scalar(&ch.FullScale, v, err)
 	case "output.load":
 		if val == "none" || val == "open" {
 			ch.Load = 0
 			return nil
 		}
-		return scalar(&ch.Load, models.Resistance)
+		v, err := models.ParseIn(val, models.Resistance, models.LoadRange)
+		return scalar(&ch.Load, v, err)
 	case "oversample":
-		n, err := strconv.Atoi(val)
-		if err != nil || n < 1 || n > 16 {
-			return fail("oversample %q must be a whole number 1…16", val)
+		n, err := models.ParseWhole(val, models.OversampleRange)
+		if err != nil {
+			return bad(err)
 		}
 		ch.Oversample = n
 		return nil
 	}
 	parts := strings.Split(key, ".")
 	if len(parts) < 2 || len(parts) > 3 {
-		return fail("unknown key (want supply, temperature, input.peak, output.load, output.full_scale, STAGE.KNOB, STAGE.REF or STAGE.REF.PARAM)")
+		return fail("unknown key (want %s, STAGE.KNOB, STAGE.REF or STAGE.REF.PARAM)%s", strings.Join(SetKeys, ", "), didYouMean(key, SetKeys))
 	}
-	st := ch.Stage(parts[0])
+	st := ch.stageOrPower(parts[0])
 	if st == nil {
 		var ids []string
-		for _, s := range ch.Stages {
+		for _, s := range ch.allStages() {
 			ids = append(ids, s.ID)
 		}
-		return fail("no stage %q (stages: %s)", parts[0], strings.Join(ids, ", "))
+		return fail("no stage %q (stages: %s)%s", parts[0], strings.Join(ids, ", "), didYouMean(parts[0], ids))
 	}
 	if len(parts) == 2 {
 		if _, isKnob := st.Knobs[parts[1]]; isKnob {
-			x, err := strconv.ParseFloat(val, 64)
+			x, err := models.ParseRotation(val)
 			if err != nil {
-				return fail("knob value %q is not a number", val)
-			}
-			if x < 0 || x > 1 {
-				return fail("knob value %g is outside 0…1 (0 fully counter-clockwise, 1 fully clockwise)", x)
+				return &SetError{Key: key, Msg: fmt.Sprintf("knob value %q %s (0 fully counter-clockwise, 1 fully clockwise)", val, models.Reason(err)), Err: err}
 			}
 			st.Knobs[parts[1]] = x
 			return nil
@@ -94,7 +118,8 @@ func (ch *Chain) Set(kv string) error {
 	}
 	p := st.part(parts[1])
 	if p == nil {
-		return fail("stage %s has no knob or part %q (knobs: %s; parts: %s)", st.ID, parts[1], listOr(keys(st.Knobs)), strings.Join(st.refs(), ", "))
+		return fail("stage %s has no knob or part %q (knobs: %s; parts: %s)%s", st.ID, parts[1], listOr(keys(st.Knobs)), strings.Join(st.refs(), ", "),
+			didYouMean(parts[1], append(keys(st.Knobs), st.refs()...)))
 	}
 	field := "value"
 	if len(parts) == 3 {
@@ -105,7 +130,7 @@ func (ch *Chain) Set(kv string) error {
 	}
 	var v any = val
 	if f, err := strconv.ParseFloat(val, 64); err == nil && field != "value" {
-		v = f
+		v = f // a plain number; apply and complete refuse NaN and infinities
 	}
 	saved := clonePart(p)
 	if err := p.apply(map[string]any{field: v}, false); err != nil {

@@ -9,6 +9,8 @@ import (
 	"strings"
 
 	"github.com/BurntSushi/toml"
+
+	"renderchain/models"
 )
 
 //go:embed templates/*.toml
@@ -17,9 +19,16 @@ var templateFS embed.FS
 // Template is a built-in stage: a parts list with default knob settings.
 type Template struct {
 	Name, About string
-	Knobs       []KnobInfo
-	Parts       []*Part
-	src         string
+	// Environment marks a template that models what a build plugs into
+	// (environment = true in its file): the pickup, the amplifier input.
+	Environment bool
+	// Supply marks a supply-network template (supply = true in its file):
+	// it goes in a chain's [power] table, between the ideal supply and v+,
+	// and names the nodes emf and v+ instead of in and out.
+	Supply bool
+	Knobs  []KnobInfo
+	Parts  []*Part
+	src    string
 }
 
 // KnobInfo describes a template knob.
@@ -31,6 +40,8 @@ type KnobInfo struct {
 
 type rawTemplate struct {
 	About string                     `toml:"about"`
+	Env   bool                       `toml:"environment"`
+	Sup   bool                       `toml:"supply"`
 	Knobs map[string]rawTemplateKnob `toml:"knobs"`
 	Parts []map[string]any           `toml:"parts"`
 }
@@ -74,7 +85,7 @@ func LoadTemplate(name string) (*Template, error) {
 	file := "template " + name
 	b, err := templateFS.ReadFile(path.Join("templates", name+".toml"))
 	if err != nil {
-		return nil, &Error{Msg: fmt.Sprintf("unknown template %q (built-in: %s)", name, strings.Join(TemplateNames(), ", "))}
+		return nil, &Error{Msg: fmt.Sprintf("unknown template %q (built-in: %s)%s", name, strings.Join(TemplateNames(), ", "), didYouMean(name, TemplateNames()))}
 	}
 	var raw rawTemplate
 	md, err := toml.Decode(string(b), &raw)
@@ -85,8 +96,11 @@ func LoadTemplate(name string) (*Template, error) {
 		return nil, &Error{File: file, Msg: fmt.Sprintf("unknown key %q", und[0].String())}
 	}
 	loc := newLocator(string(b))
-	t := &Template{Name: name, About: raw.About, src: string(b)}
+	t := &Template{Name: name, About: raw.About, Environment: raw.Env, Supply: raw.Sup, src: string(b)}
 	for k, v := range raw.Knobs {
+		if err := models.RotationRange.Check(v.Default); err != nil {
+			return nil, &Error{File: file, Line: loc.find(-1, k), Msg: fmt.Sprintf("knob %s default %g is outside 0…1", k, v.Default)}
+		}
 		t.Knobs = append(t.Knobs, KnobInfo{Name: k, Default: v.Default, About: v.About})
 	}
 	sort.Slice(t.Knobs, func(i, j int) bool { return t.Knobs[i].Name < t.Knobs[j].Name })
@@ -129,14 +143,14 @@ func expandTemplate(name, id string, knobs map[string]float64, values map[string
 		}
 		return line(needles...)
 	}
-	st := &Stage{ID: id, Template: name, About: t.About, Knobs: map[string]float64{}, KnobAbout: map[string]string{}, index: -1}
+	st := &Stage{ID: id, Template: name, About: t.About, Environment: t.Environment, Knobs: map[string]float64{}, KnobAbout: map[string]string{}, index: -1}
 	for _, k := range t.Knobs {
 		st.Knobs[k.Name] = k.Default
 		st.KnobAbout[k.Name] = k.About
 	}
 	for k, v := range knobs {
 		if _, ok := st.Knobs[k]; !ok {
-			return nil, &Error{Line: at(k), Msg: fmt.Sprintf("template %s has no knob %q (knobs: %s)", name, k, listOr(keys(st.Knobs)))}
+			return nil, &Error{Line: at(k), Msg: fmt.Sprintf("template %s has no knob %q (knobs: %s)%s", name, k, listOr(keys(st.Knobs)), didYouMean(k, keys(st.Knobs)))}
 		}
 		st.Knobs[k] = v
 	}
@@ -146,7 +160,7 @@ func expandTemplate(name, id string, knobs map[string]float64, values map[string
 	for _, ref := range keys(values) {
 		p := st.part(ref)
 		if p == nil {
-			return nil, &Error{Line: at(ref), Msg: fmt.Sprintf("template %s has no part %q (parts: %s)", name, ref, strings.Join(st.refs(), ", "))}
+			return nil, &Error{Line: at(ref), Msg: fmt.Sprintf("template %s has no part %q (parts: %s)%s", name, ref, strings.Join(st.refs(), ", "), didYouMean(ref, st.refs()))}
 		}
 		v := values[ref]
 		tbl, isTable := v.(map[string]any)

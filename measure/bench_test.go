@@ -28,21 +28,6 @@ func BenchmarkSineFuzz(b *testing.B) {
 	}
 }
 
-// The settle detector on one 0.1 s window: it runs once per window of the
-// stream and must not allocate.
-func BenchmarkSettleDetector(b *testing.B) {
-	d := settleDetector{tol: 1e-5}
-	w := make([]float64, 4800)
-	for i := range w {
-		w[i] = float64(i%48) / 48
-	}
-	b.ReportAllocs()
-	b.SetBytes(int64(8 * len(w)))
-	for i := 0; i < b.N; i++ {
-		d.next(w)
-	}
-}
-
 // A 2 s swept-sine measurement of the RC low-pass, H1–H3.
 func BenchmarkSwept(b *testing.B) {
 	ch := loadChain(b, "rc-lowpass")

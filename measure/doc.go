@@ -8,31 +8,19 @@
 //
 // Sine renders a sine of known frequency and amplitude (volts peak at the
 // chain's source EMF, before any source impedance) through the chain's
-// circuit on exactly the path a render takes: render.Prepare solves the DC
-// operating point, and the signal runs through the oversampler, the wave
-// digital solver at the internal rate and the downsampler, with their
-// delay removed (render.Engine.NewChannel; for a probe other than the
-// output the same pieces around a solver compiled with that probe).
-//
-// Start-up: the sine begins with a raised-cosine fade-in over
-// max(4 cycles, 10 ms) (at most a quarter of the settle limit), which keeps
-// the linear part of the start-up transient small. The output is then cut
-// into consecutive windows of the record length, and each window's DC and
-// its RMS about the DC are compared with the previous window's. The output
-// counts as settled once two consecutive comparisons both change by less
-// than Options.SettleTolerance (default 1e-5) relative to the RMS; the
-// last window is then the analysed record. The wait is bounded by
-// Options.MaxSettle (default 3 s): past it the last window is analysed
-// anyway, Settle.Settled is false and the result carries a warning.
-//
-// Record: the shortest whole number of cycles that spans a whole number
-// of samples to within 1e-7 cycle (searched up to one second's worth per
-// unit) and at least Options.MinRecord (default 0.1 s). Such a coherent
-// record puts every harmonic exactly on a DFT bin, and the sine is
-// generated periodic over it. A frequency with no such unit (1000.3 Hz at
-// 48 kHz, say) is analysed over the nearest whole number of cycles by the
-// least-squares harmonic fit of dsp/spectrum, whose THD+N residual is
-// Blackman–Harris weighted.
+// circuit on exactly the path a render takes (package engine: the chain is
+// prepared once, the signal runs through the oversampler, the wave digital
+// solver at the internal rate and the downsampler, with their delay
+// removed), for the output or any node a user can name (chains.Wiring).
+// The test sine, its fade-in, the coherent record and the settle rule are
+// the engine's (engine.Prepared.Sine): the output counts as settled once
+// two consecutive record-length windows change by less than
+// Options.SettleTolerance (default 1e-5) relative to their RMS, bounded by
+// Options.MaxSettle (default 3 s); past it the last window is analysed
+// anyway, Settle.Settled is false and the result carries a warning. A
+// frequency with no coherent record (1000.3 Hz at 48 kHz, say) is analysed
+// over the nearest whole number of cycles by the least-squares harmonic fit
+// of dsp/spectrum, whose THD+N residual is Blackman–Harris weighted.
 //
 // Figures (dsp/spectrum.Analyze): the fundamental (V peak, V RMS, dBV,
 // phase against the source), harmonics 2…MaxOrder below Nyquist (dBV, dBc,
@@ -56,13 +44,18 @@
 // # Sweeps and conditions
 //
 // A Plan runs many measurements: variants of the chain (Expand turns
-// "--set key=a,b,c" families, and SupplySet and TemperatureSet the
-// "--supply" and "--temp" lists, into every combination) times the steps
-// of a Sweep (source level in logarithmic steps, or a knob in linear
-// steps). Run executes them on a bounded pool of workers, one goroutine per
-// core by default; every measurement builds its own circuit and solver, so
-// the results are the same whatever the scheduling, and come back in plan
-// order.
+// override families such as "tone.tone=a,b,c", and SupplyFamily and
+// TemperatureFamily write supply and temperature lists as such families,
+// into every combination) times the steps of a Sweep (source level in
+// logarithmic steps, or a knob in linear steps). Supplies keep the chain
+// file's polarity (models.ParseSupply). Run executes them on the bounded
+// pool of package parallel, one goroutine per core by default; every
+// measurement builds its own circuit and solver, so the results are the
+// same whatever the scheduling, and come back in plan order.
+//
+// Options that are out of range are *models.FieldError naming the option's
+// field ("amplitude", "harmonics", "sweep_level", "probe", …), never a
+// command-line flag.
 //
 // # Frequency response
 //
@@ -72,6 +65,7 @@
 // EMF, or from a reference node, to the probed node.
 //
 // Swept measures the large-signal response through the nonlinear circuit
+// (engine.Prepared.Render)
 // with an exponential sine sweep x(t) = A·sin(2π·f1·L·e^(t/L)), from f1 =
 // half the lowest frequency asked to f2 = 2·orders times the highest (at
 // most 98 % of Nyquist, so that the highest harmonic asked for stays in

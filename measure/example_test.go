@@ -24,16 +24,21 @@ parts = [
 ]
 `
 
-// Amplitudes are written the way a bench generator is set.
-func ExampleParseAmplitude() {
-	for _, s := range []string{"20mVpp", "100mV", "-20dBV"} {
-		v, _ := measure.ParseAmplitude(s)
-		fmt.Printf("%s = %.4f V peak\n", s, v)
+// A level sweep in logarithmic steps, its bounds written the way a bench
+// generator is set.
+func ExampleParseLevelSweep() {
+	s, err := measure.ParseLevelSweep("20mVpp..-20dBV", 3)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, v := range s.StepList {
+		fmt.Printf("%.4f V peak\n", v)
 	}
 	// Output:
-	// 20mVpp = 0.0100 V peak
-	// 100mV = 0.1000 V peak
-	// -20dBV = 0.1414 V peak
+	// 0.0100 V peak
+	// 0.0376 V peak
+	// 0.1414 V peak
 }
 
 // The small-signal response of an RC low-pass at its corner,

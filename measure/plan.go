@@ -5,12 +5,12 @@ import (
 	"math"
 	"strconv"
 	"strings"
-	"unicode"
 
 	"renderchain/chains"
+	"renderchain/models"
 )
 
-// Variant is one setting of a chain: the --set overrides that make it and a
+// Variant is one setting of a chain: the overrides that make it and a
 // label naming those that differ between variants.
 type Variant struct {
 	Label string   // e.g. "tone.tone=0.25 supply=9V"; empty for a lone variant
@@ -28,10 +28,11 @@ func (v Variant) Apply(ch *chains.Chain) (*chains.Chain, error) {
 	return c, nil
 }
 
-// Expand turns --set overrides into variants. An override whose value is a
+// Expand turns overrides into variants. An override whose value is a
 // comma-separated list ("tone.tone=0,0.5,1") is a family: one variant per
 // value. Several families give every combination, the first varying
-// slowest. Overrides without a comma apply to every variant.
+// slowest. Overrides without a comma apply to every variant. A malformed
+// override is a *models.FieldError on the field "set".
 func Expand(sets []string) ([]Variant, error) {
 	type fam struct {
 		key    string
@@ -42,11 +43,11 @@ func Expand(sets []string) ([]Variant, error) {
 		key, val, ok := strings.Cut(kv, "=")
 		key = strings.TrimSpace(key)
 		if !ok || key == "" {
-			return nil, inputErr("--set", kv, "want KEY=VALUE")
+			return nil, models.Fieldf("set", kv, "want KEY=VALUE")
 		}
-		vals, err := ParseList("--set "+key, val)
+		vals, err := models.ParseList(val)
 		if err != nil {
-			return nil, err
+			return nil, models.Fieldf("set", kv, "a comma list with an empty item")
 		}
 		fams = append(fams, fam{key, vals})
 	}
@@ -67,39 +68,24 @@ func Expand(sets []string) ([]Variant, error) {
 	return out, nil
 }
 
-// SupplySet turns a --supply list ("9.6,9,8,7"; plain numbers are volts)
-// into a --set family.
-func SupplySet(list string) (string, error) {
-	items, err := ParseList("--supply", list)
-	if err != nil {
-		return "", err
+// SupplyFamily writes supplies (volts, as models.ParseSupplies returns
+// them with the chain's polarity) as one override family, "supply=9.6V,9V".
+func SupplyFamily(volts []float64) string {
+	items := make([]string, len(volts))
+	for i, v := range volts {
+		items[i] = strconv.FormatFloat(roundTo(v, 12), 'g', -1, 64) + "V"
 	}
-	for i, it := range items {
-		if endsInDigit(it) {
-			items[i] = it + "V"
-		}
-	}
-	return "supply=" + strings.Join(items, ","), nil
+	return "supply=" + strings.Join(items, ",")
 }
 
-// TemperatureSet turns a --temp list ("0,25,40"; plain numbers are degrees
-// Celsius) into a --set family.
-func TemperatureSet(list string) (string, error) {
-	items, err := ParseList("--temp", list)
-	if err != nil {
-		return "", err
+// TemperatureFamily writes temperatures (kelvin) as one override family
+// in degrees Celsius, "temperature=0C,25C,40C".
+func TemperatureFamily(kelvin []float64) string {
+	items := make([]string, len(kelvin))
+	for i, k := range kelvin {
+		items[i] = strconv.FormatFloat(roundTo(k-models.ZeroCelsius, 9), 'g', -1, 64) + "C"
 	}
-	for i, it := range items {
-		if endsInDigit(it) {
-			items[i] = it + "C"
-		}
-	}
-	return "temperature=" + strings.Join(items, ","), nil
-}
-
-func endsInDigit(s string) bool {
-	r := []rune(s)
-	return len(r) > 0 && unicode.IsDigit(r[len(r)-1])
+	return "temperature=" + strings.Join(items, ",")
 }
 
 // SweepKind tells what a sweep steps.
@@ -126,55 +112,41 @@ type Sweep struct {
 // MaxSteps bounds a sweep's step count.
 const MaxSteps = 1000
 
-// ParseLevelSweep reads "FROM..TO" amplitudes (each in any ParseAmplitude
-// form, e.g. "1mV..1V" or "-60dBV..0dBV") and steps them logarithmically.
-func ParseLevelSweep(text string, steps int) (*Sweep, error) {
-	a, b, ok := strings.Cut(text, "..")
-	if !ok {
-		return nil, inputErr("--sweep-level", text, "want FROM..TO, e.g. 1mV..1V")
+func checkSteps(n int) error {
+	if n < 2 || n > MaxSteps {
+		return models.Fieldf("steps", strconv.Itoa(n), "must be between 2 and %d", MaxSteps)
 	}
-	from, err := ParseAmplitude(a)
-	if err != nil {
-		return nil, err
-	}
-	to, err := ParseAmplitude(b)
-	if err != nil {
-		return nil, err
-	}
-	if !(to > from) {
-		return nil, inputErr("--sweep-level", text, "bounds are reversed or equal: FROM must be below TO")
+	return nil
+}
+
+// NewLevelSweep steps the source amplitude from from to to volts peak
+// (both in models.SignalRange, from below to) in steps logarithmic steps.
+func NewLevelSweep(from, to float64, steps int) (*Sweep, error) {
+	text := fmt.Sprintf("%g..%g V", from, to)
+	switch {
+	case !models.SignalRange.Contains(from) || !models.SignalRange.Contains(to):
+		return nil, models.Fieldf("sweep_level", text, "bounds must be %s", models.SignalRange.Describe())
+	case !(to > from):
+		return nil, models.Fieldf("sweep_level", text, "bounds are reversed or equal: FROM must be below TO")
 	}
 	if err := checkSteps(steps); err != nil {
 		return nil, err
 	}
-	s := &Sweep{Kind: LevelSweep, From: from, To: to, Steps: steps, Spacing: "log", Unit: "V peak"}
-	s.StepList = LogGrid(from, to, steps)
-	return s, nil
+	return &Sweep{Kind: LevelSweep, From: from, To: to, Steps: steps, Spacing: "log", Unit: "V peak", StepList: LogGrid(from, to, steps)}, nil
 }
 
-// ParseKnobSweep reads "STAGE.KNOB=FROM..TO" (rotations 0…1) and steps it
-// linearly. Whether the stage and knob exist is checked when the sweep is
-// applied to a chain.
-func ParseKnobSweep(text string, steps int) (*Sweep, error) {
-	key, rng, ok := strings.Cut(text, "=")
-	key = strings.TrimSpace(key)
-	if !ok || !strings.Contains(key, ".") {
-		return nil, inputErr("--sweep-knob", text, "want STAGE.KNOB=FROM..TO, e.g. fuzz.fuzz=0..1")
-	}
-	a, b, ok := strings.Cut(rng, "..")
-	if !ok {
-		return nil, inputErr("--sweep-knob", text, "want STAGE.KNOB=FROM..TO, e.g. fuzz.fuzz=0..1")
-	}
-	from, err1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
-	to, err2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
-	if err1 != nil || err2 != nil {
-		return nil, inputErr("--sweep-knob", text, "bounds must be rotations between 0 and 1")
-	}
-	if from < 0 || to > 1 {
-		return nil, inputErr("--sweep-knob", text, "bounds must lie within 0…1")
-	}
-	if !(to > from) {
-		return nil, inputErr("--sweep-knob", text, "bounds are reversed or equal: FROM must be below TO")
+// NewKnobSweep steps the knob key (STAGE.KNOB) from from to to (rotations
+// 0…1, from below to) in steps linear steps. Whether the stage and knob
+// exist is checked when the sweep is applied to a chain.
+func NewKnobSweep(key string, from, to float64, steps int) (*Sweep, error) {
+	text := fmt.Sprintf("%s=%g..%g", key, from, to)
+	switch {
+	case !strings.Contains(key, "."):
+		return nil, models.Fieldf("sweep_knob", text, "want STAGE.KNOB=FROM..TO, e.g. fuzz.fuzz=0..1")
+	case !models.RotationRange.Contains(from) || !models.RotationRange.Contains(to):
+		return nil, models.Fieldf("sweep_knob", text, "bounds must lie within 0…1")
+	case !(to > from):
+		return nil, models.Fieldf("sweep_knob", text, "bounds are reversed or equal: FROM must be below TO")
 	}
 	if err := checkSteps(steps); err != nil {
 		return nil, err
@@ -187,11 +159,28 @@ func ParseKnobSweep(text string, steps int) (*Sweep, error) {
 	return s, nil
 }
 
-func checkSteps(n int) error {
-	if n < 2 || n > MaxSteps {
-		return inputErr("--steps", strconv.Itoa(n), "must be between 2 and %d", MaxSteps)
+// ParseLevelSweep reads "FROM..TO" amplitudes (each in any
+// models.ParseAmplitude form, e.g. "1mV..1V" or "-60dBV..0dBV").
+func ParseLevelSweep(text string, steps int) (*Sweep, error) {
+	from, to, err := models.ParseSpan(text, models.ParseAmplitude, false)
+	if err != nil {
+		return nil, models.FieldOf("sweep_level", text, err)
 	}
-	return nil
+	return NewLevelSweep(from, to, steps)
+}
+
+// ParseKnobSweep reads "STAGE.KNOB=FROM..TO" (rotations 0…1).
+func ParseKnobSweep(text string, steps int) (*Sweep, error) {
+	key, span, ok := strings.Cut(text, "=")
+	key = strings.TrimSpace(key)
+	if !ok || !strings.Contains(key, ".") {
+		return nil, models.Fieldf("sweep_knob", text, "want STAGE.KNOB=FROM..TO, e.g. fuzz.fuzz=0..1")
+	}
+	from, to, err := models.ParseSpan(span, models.ParseRotation, false)
+	if err != nil {
+		return nil, models.FieldOf("sweep_knob", text, err)
+	}
+	return NewKnobSweep(key, from, to, steps)
 }
 
 // knobSet writes the override of one knob-sweep step.
@@ -205,4 +194,19 @@ func roundTo(v float64, digits int) float64 {
 	}
 	p := math.Pow(10, float64(digits)-math.Ceil(math.Log10(math.Abs(v))))
 	return math.Round(v*p) / p
+}
+
+// LogGrid returns n frequencies spaced evenly on a logarithmic scale from
+// lo to hi inclusive (n ≥ 2), or [lo] for n = 1.
+func LogGrid(lo, hi float64, n int) []float64 {
+	if n <= 1 {
+		return []float64{lo}
+	}
+	out := make([]float64, n)
+	r := math.Log(hi / lo)
+	for i := range out {
+		out[i] = lo * math.Exp(r*float64(i)/float64(n-1))
+	}
+	out[n-1] = hi
+	return out
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -137,7 +138,7 @@ func (r *Report) writeRows(w io.Writer) error {
 			yesNo(m.Clipping.Clips), yesNo(m.Settle.Settled))
 		fmt.Fprintln(tw, row)
 		for _, warn := range m.Warnings {
-			if !contains(warned, warn) {
+			if !slices.Contains(warned, warn) {
 				warned = append(warned, warn)
 			}
 		}
@@ -156,15 +157,6 @@ func (r *Report) writeRows(w io.Writer) error {
 func (r *Report) hasLabels() bool {
 	for _, m := range r.Measurements {
 		if m.Label != "" {
-			return true
-		}
-	}
-	return false
-}
-
-func contains(list []string, s string) bool {
-	for _, x := range list {
-		if x == s {
 			return true
 		}
 	}

@@ -2,27 +2,26 @@ package measure
 
 import (
 	"context"
-	"errors"
-	"fmt"
 	"math"
 	"math/cmplx"
 	"strings"
 
 	"renderchain/chains"
 	"renderchain/dsp/mna"
+	"renderchain/engine"
 	"renderchain/models"
-	"renderchain/render"
+	"renderchain/report"
 )
 
 // Point is one frequency of a response curve.
 type Point struct {
-	Hz  float64 `json:"hz"`
-	DB  Num     `json:"db"`  // 20·log10|H|
-	Deg Num     `json:"deg"` // arg H in degrees, (−180, 180]
+	Hz  float64       `json:"hz"`
+	DB  report.Level  `json:"db"`  // 20·log10|H|
+	Deg report.Number `json:"deg"` // arg H in degrees, (−180, 180]
 	// DBc, on a harmonic curve of a swept measurement, is the harmonic's
 	// level relative to the linear response at the same excitation
 	// frequency.
-	DBc *Num `json:"dbc,omitempty"`
+	DBc *report.Level `json:"dbc,omitempty"`
 }
 
 // Curve is one labelled response.
@@ -47,7 +46,7 @@ type ResponseOptions struct {
 	Probe, Ref string
 	// SampleRate and Oversample give the internal rate whose Nyquist
 	// limit bounds the frequencies (defaults 48 kHz and the chain's own
-	// oversampling, else render.DefaultOversample).
+	// oversampling, else engine.DefaultOversample).
 	SampleRate float64
 	Oversample int
 }
@@ -68,28 +67,18 @@ type ResponseReport struct {
 // checkFreqs bounds every frequency to [MinFrequency, limit).
 func checkFreqs(freqs []float64, limit float64, rateText string) error {
 	if len(freqs) == 0 {
-		return inputErr("frequencies", "", "none given")
+		return models.Fieldf("frequencies", "", "none given")
 	}
 	for _, f := range freqs {
 		fv := models.FormatValue(f, "Hz")
 		if math.IsNaN(f) || f < MinFrequency {
-			return inputErr("frequency", fv, "is below the %g Hz limit", MinFrequency)
+			return models.Fieldf("frequency", fv, "is below the %g Hz limit", MinFrequency)
 		}
 		if f >= limit {
-			return inputErr("frequency", fv, "is at or above the Nyquist limit %s of the %s", models.FormatValue(limit, "Hz"), rateText)
+			return models.Fieldf("frequency", fv, "is at or above the Nyquist limit %s of the %s", models.FormatValue(limit, "Hz"), rateText)
 		}
 	}
 	return nil
-}
-
-func oversampleOf(ch *chains.Chain, n int) int {
-	if n == 0 {
-		n = ch.Oversample
-	}
-	if n == 0 {
-		n = render.DefaultOversample
-	}
-	return n
 }
 
 // SmallSignal returns the response of the chain at the given frequencies,
@@ -100,35 +89,31 @@ func SmallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Poin
 	if opt.SampleRate == 0 {
 		opt.SampleRate = DefaultSampleRate
 	}
-	internal := opt.SampleRate * float64(oversampleOf(ch, opt.Oversample))
-	if err := checkFreqs(freqs, internal/2, models.FormatValue(internal, "Hz")+" internal rate"); err != nil {
-		return nil, err
-	}
-	c, err := ch.Build()
+	os, err := engine.Oversample(ch, opt.Oversample)
 	if err != nil {
 		return nil, err
 	}
-	probe, err := ResolveNode(ch, c, opt.Probe)
+	internal := opt.SampleRate * float64(os)
+	if err := checkFreqs(freqs, internal/2, models.FormatValue(internal, "Hz")+" internal rate"); err != nil {
+		return nil, err
+	}
+	p, err := engine.Prepare(ch, os)
+	if err != nil {
+		return nil, err
+	}
+	probe, err := probeNode(p, "probe", opt.Probe)
 	if err != nil {
 		return nil, err
 	}
 	probes := []int{probe}
 	if opt.Ref != "" {
-		ref, err := ResolveNode(ch, c, opt.Ref)
+		ref, err := probeNode(p, "ref", opt.Ref)
 		if err != nil {
-			var ie *InputError
-			if errors.As(err, &ie) {
-				ie.What = "--ref"
-			}
 			return nil, err
 		}
 		probes = append(probes, ref)
 	}
-	op, err := mna.SolveDC(c, mna.DCOptions{})
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", ch.File, err)
-	}
-	h, err := mna.AC(c, op, freqs, probes)
+	h, err := mna.AC(p.Circuit, p.DC, freqs, probes)
 	if err != nil {
 		return nil, err
 	}
@@ -148,7 +133,7 @@ func SmallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Poin
 }
 
 func point(f float64, h complex128) Point {
-	return Point{Hz: f, DB: Num(db(cmplx.Abs(h))), Deg: Num(wrapDeg(cmplx.Phase(h) * 180 / math.Pi))}
+	return Point{Hz: f, DB: report.Level(report.DB(cmplx.Abs(h))), Deg: report.Number(wrapDeg(cmplx.Phase(h) * 180 / math.Pi))}
 }
 
 // RunResponse computes the small-signal response of every variant of the

@@ -2,12 +2,11 @@ package measure
 
 import (
 	"context"
-	"errors"
-	"runtime"
 	"sync"
 	"sync/atomic"
 
 	"renderchain/chains"
+	"renderchain/parallel"
 )
 
 // Plan is a set of sine measurements: every variant of the chain, at one
@@ -43,8 +42,9 @@ type job struct {
 }
 
 // Run carries out the plan. The measurements run in parallel on a bounded
-// pool of workers; each builds its own circuit and solver, so results do
-// not depend on scheduling. The first error, in plan order, is returned.
+// pool of workers (package parallel); each builds its own circuit and
+// solver, so results do not depend on scheduling. The first error, in plan
+// order, is returned.
 func Run(ctx context.Context, ch *chains.Chain, p Plan) (*Report, error) {
 	variants := p.Variants
 	if len(variants) == 0 {
@@ -83,29 +83,13 @@ func Run(ctx context.Context, ch *chains.Chain, p Plan) (*Report, error) {
 		}
 	}
 	results := make([]*Result, len(jobs))
-	errs := make([]error, len(jobs))
 	var done atomic.Int64
 	var mu sync.Mutex
-	err := parallel(ctx, len(jobs), p.Workers, func(ctx context.Context, i int) error {
-		j := jobs[i]
-		c, err := j.variant.Apply(ch)
-		if err == nil && j.set != "" {
-			err = c.Set(j.set)
-		}
-		var r *Result
-		if err == nil {
-			r, err = Sine(ctx, c, p.Freq, j.amp, opt)
-		}
+	err := parallel.For(ctx, len(jobs), p.Workers, func(ctx context.Context, i int) error {
+		r, err := jobs[i].run(ctx, ch, p, opt)
 		if err != nil {
-			errs[i] = err
 			return err
 		}
-		r.Label = j.variant.Label
-		r.Settings = append([]string(nil), j.variant.Sets...)
-		if j.set != "" {
-			r.Settings = append(r.Settings, j.set)
-		}
-		r.SweepValue = j.step
 		results[i] = r
 		if p.Progress != nil {
 			n := int(done.Add(1))
@@ -116,49 +100,29 @@ func Run(ctx context.Context, ch *chains.Chain, p Plan) (*Report, error) {
 		return nil
 	})
 	if err != nil {
-		return nil, err // the caller's context ended
-	}
-	for _, e := range errs {
-		// A job stopped because another failed reports the cancellation:
-		// the failure itself comes first.
-		if e != nil && !isCanceled(e) {
-			return nil, e
-		}
+		return nil, err
 	}
 	return &Report{Chain: ch.Name, ChainFile: ch.File, Sweep: p.Sweep, Measurements: results}, nil
 }
 
-// parallel runs f(0) … f(n−1) on at most workers goroutines (0:
-// GOMAXPROCS). After a failure no new index is started and the others'
-// context is cancelled; it returns the parent context's error if that
-// ended, else nil (the caller reads the failures it recorded).
-func parallel(parent context.Context, n, workers int, f func(ctx context.Context, i int) error) error {
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
+// run measures one job: the variant, the sweep step's override or level.
+func (j job) run(ctx context.Context, ch *chains.Chain, p Plan, opt Options) (*Result, error) {
+	c, err := j.variant.Apply(ch)
+	if err == nil && j.set != "" {
+		err = c.Set(j.set)
 	}
-	workers = min(workers, n)
-	ctx, cancel := context.WithCancel(parent)
-	defer cancel()
-	var next atomic.Int64
-	var wg sync.WaitGroup
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for {
-				i := int(next.Add(1) - 1)
-				if i >= n || ctx.Err() != nil {
-					return
-				}
-				if err := f(ctx, i); err != nil {
-					cancel()
-					return
-				}
-			}
-		}()
+	if err != nil {
+		return nil, err
 	}
-	wg.Wait()
-	return parent.Err()
+	r, err := Sine(ctx, c, p.Freq, j.amp, opt)
+	if err != nil {
+		return nil, err
+	}
+	r.Label = j.variant.Label
+	r.Settings = append([]string(nil), j.variant.Sets...)
+	if j.set != "" {
+		r.Settings = append(r.Settings, j.set)
+	}
+	r.SweepValue = j.step
+	return r, nil
 }
-
-func isCanceled(err error) bool { return errors.Is(err, context.Canceled) }

@@ -4,12 +4,14 @@ import (
 	"context"
 	"errors"
 	"math"
+	"math/cmplx"
 	"reflect"
 	"strings"
 	"sync/atomic"
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/report"
 )
 
 // A level sweep over the clipper, on one worker and on two: the same
@@ -94,7 +96,7 @@ func TestRunKnobSweepWithConditions(t *testing.T) {
 	// 1 MΩ rows only; tolerance: the converter's 0.01 dB ripple and the
 	// bilinear warp, below 1e-4 dB at 100 Hz).
 	for i, x := range []float64{0, 0.5, 1} {
-		want := db(cmplxAbs(blendH(warped(100, internalFs), x)))
+		want := report.DB(cmplx.Abs(blendH(warped(100, internalFs), x)))
 		if got := float64(rep.Measurements[i].GainDB); math.Abs(got-want) > rippleLimit {
 			t.Errorf("tone %g: gain %.4f dB, closed form %.4f dB", x, got, want)
 		}
@@ -120,31 +122,5 @@ func TestRunErrors(t *testing.T) {
 	cancel()
 	if _, err := Run(ctx, ch, Plan{Freq: 1000, Amplitude: 0.1}); !errors.Is(err, context.Canceled) {
 		t.Errorf("cancelled: %v", err)
-	}
-}
-
-// parallel runs every index once, bounded by its worker count.
-func TestParallel(t *testing.T) {
-	var running, peak atomic.Int64
-	seen := make([]atomic.Int64, 50)
-	err := parallel(context.Background(), 50, 3, func(ctx context.Context, i int) error {
-		n := running.Add(1)
-		for {
-			p := peak.Load()
-			if n <= p || peak.CompareAndSwap(p, n) {
-				break
-			}
-		}
-		seen[i].Add(1)
-		running.Add(-1)
-		return nil
-	})
-	if err != nil || peak.Load() > 3 {
-		t.Errorf("err %v, peak concurrency %d (limit 3)", err, peak.Load())
-	}
-	for i := range seen {
-		if seen[i].Load() != 1 {
-			t.Errorf("index %d ran %d times", i, seen[i].Load())
-		}
 	}
 }

@@ -11,6 +11,8 @@ import (
 
 	"renderchain/chains"
 	"renderchain/dsp/spectrum"
+	"renderchain/models"
+	"renderchain/report"
 )
 
 func loadChain(t testing.TB, name string) *chains.Chain {
@@ -143,7 +145,7 @@ func TestSineClipperOddOnly(t *testing.T) {
 // 1 kHz.
 func TestSineFuzzTemplateTrimmerLevel(t *testing.T) {
 	ch := loadChain(t, "fuzz-si")
-	amp, err := ParseAmplitude("20mVpp")
+	amp, err := models.ParseAmplitude("20mVpp")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -187,87 +189,15 @@ func TestSineBadInput(t *testing.T) {
 	}
 	for _, tc := range tests {
 		_, err := Sine(context.Background(), ch, tc.freq, tc.amp, tc.opt)
-		var ie *InputError
-		if !errors.As(err, &ie) || !strings.Contains(err.Error(), tc.want) || strings.Contains(err.Error(), "\n") {
-			t.Errorf("Sine(%g Hz, %g V, %+v) = %v; want a one-line *InputError naming %s", tc.freq, tc.amp, tc.opt, err, tc.want)
+		var fe *models.FieldError
+		if !errors.As(err, &fe) || !strings.Contains(err.Error(), tc.want) || strings.Contains(err.Error(), "\n") {
+			t.Errorf("Sine(%g Hz, %g V, %+v) = %v; want a one-line *models.FieldError naming %s", tc.freq, tc.amp, tc.opt, err, tc.want)
 		}
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	if _, err := Sine(ctx, ch, 1000, 0.1, Options{}); !errors.Is(err, context.Canceled) {
 		t.Errorf("cancelled context: %v", err)
-	}
-}
-
-func TestRecordGeometry(t *testing.T) {
-	tests := []struct {
-		fs, f        float64
-		minN         int
-		n            int
-		coherent     bool
-		unitN, unitM int
-	}{
-		{48000, 1000, 4800, 4800, true, 48, 1},
-		{48000, 440, 4800, 4800, true, 1200, 11},
-		{44100, 1000, 4410, 4410, true, 441, 10},
-		{48000, 5, 4800, 9600, true, 9600, 1},
-		// No coherent unit within a second: ⌈4800·1000.3/48000⌉ = 101
-		// cycles, round(101·48000/1000.3) = 4847 samples.
-		{48000, 1000.3, 4800, 4847, false, 0, 0},
-	}
-	for _, tc := range tests {
-		n, coh, un, um := recordGeometry(tc.fs, tc.f, tc.minN)
-		if n != tc.n || coh != tc.coherent || un != tc.unitN || um != tc.unitM {
-			t.Errorf("recordGeometry(%g, %g, %d) = %d, %v, %d, %d; want %d, %v, %d, %d",
-				tc.fs, tc.f, tc.minN, n, coh, un, um, tc.n, tc.coherent, tc.unitN, tc.unitM)
-		}
-		// A coherent record holds a whole number of cycles (to the
-		// 1e-6 cycle dsp/spectrum asks of one).
-		cycles := float64(n) * tc.f / tc.fs
-		if tc.coherent && math.Abs(cycles-math.Round(cycles)) > 1e-6 {
-			t.Errorf("%g Hz: %d samples hold %.9f cycles", tc.f, n, cycles)
-		}
-	}
-}
-
-// The settle rule on windows whose DC decays as D·e^(−k·a): the relative
-// change between windows k−1 and k is D·e^(−k·a)·(e^a − 1)/R, so the first
-// k ≥ 2 with two consecutive changes within tol follows in closed form.
-func TestSettleDetector(t *testing.T) {
-	const (
-		R   = 1.0 // RMS of the AC part
-		D   = 0.5 // initial DC offset, V
-		a   = 0.7 // decay per window
-		tol = 1e-5
-	)
-	want := -1
-	change := func(k int) float64 { return D * math.Exp(-float64(k)*a) * (math.Exp(a) - 1) / R }
-	for k := 2; ; k++ {
-		if change(k) <= tol && change(k-1) <= tol {
-			want = k
-			break
-		}
-	}
-	d := settleDetector{tol: tol}
-	w := make([]float64, 96)
-	got := -1
-	for k := 0; k < 100; k++ {
-		dc := D * math.Exp(-float64(k)*a)
-		for i := range w {
-			w[i] = dc + R*math.Sqrt2*math.Sin(2*math.Pi*float64(i)/48)
-		}
-		d.next(w)
-		if d.settled() {
-			got = k
-			break
-		}
-	}
-	if got != want {
-		t.Errorf("settled at window %d, want %d (closed form)", got, want)
-	}
-	allocs := testing.AllocsPerRun(100, func() { d.next(w) })
-	if allocs != 0 {
-		t.Errorf("settleDetector.next allocates %.0f times per call, want 0", allocs)
 	}
 }
 
@@ -343,3 +273,5 @@ func TestSineConstantMemory(t *testing.T) {
 		t.Errorf("2 s allocates %d B more than 0.5 s: the measurement should stream in constant memory", long-short)
 	}
 }
+
+func db(ratio float64) float64 { return report.DB(ratio) }

@@ -5,13 +5,15 @@ import (
 	"fmt"
 	"math"
 	"math/bits"
+	"math/cmplx"
 
 	"gonum.org/v1/gonum/dsp/fourier"
 
 	"renderchain/chains"
-	"renderchain/dsp/resample"
+	"renderchain/engine"
 	"renderchain/models"
-	"renderchain/render"
+	"renderchain/parallel"
+	"renderchain/report"
 )
 
 // Defaults of SweptOptions.
@@ -28,7 +30,7 @@ type SweptOptions struct {
 	Duration   float64 // nominal sweep length in s (default 2 s)
 	Tail       float64 // silence after the sweep in s (default 0.5 s)
 	SampleRate float64 // base rate (default 48 kHz)
-	Oversample int     // 0: the chain's own, else render.DefaultOversample
+	Oversample int     // 0: the chain's own, else engine.DefaultOversample
 	Orders     int     // highest harmonic response reported (default 3)
 	Probe      string  // node measured; empty is the output
 }
@@ -58,18 +60,26 @@ type SweptInfo struct {
 	Oversample       int           `json:"oversample"`
 	FFTSize          int           `json:"fft_size"`
 	Windows          []SweptWindow `json:"windows"`
-	Solver           Solver        `json:"solver"`
+	Solver           report.Solver `json:"solver"`
 }
 
-// Swept measures the chain's large-signal response with an exponential
-// sine sweep (Farina 2000) in its synchronized form (Novák et al. 2015):
-// the sweep runs through the nonlinear circuit on the render path, the
-// output is deconvolved with the sweep's inverse filter, and the
-// impulse responses that fall apart in time — the linear one and one per
-// harmonic order — are windowed and transformed. It returns one curve per
-// order 1…opt.Orders; harmonic curves are plotted against the excitation
-// frequency f, at which the h-th harmonic sits at h·f.
-func Swept(ctx context.Context, ch *chains.Chain, freqs []float64, opt SweptOptions) ([]Curve, *SweptInfo, error) {
+// sweepDesign is the synchronized exponential sweep of a measurement:
+// f(t) = f1·e^(t/L) from f1 to f2 over T = L·ln(f2/f1), f1·L a whole
+// number, with raised-cosine fades ending at tIn and starting at tOut.
+type sweepDesign struct {
+	f1, f2, L, T  float64
+	tIn, tOut, fo float64
+	fs, amplitude float64
+	x             []float64 // the sweep, source volts
+	ntail         int
+	orders        int
+	lo, hi        float64 // the asked band
+	passband      float64 // the rate converter's passband edge
+}
+
+// checkSwept fills in the defaults and refuses options out of range, as
+// *models.FieldError naming the field.
+func checkSwept(freqs []float64, opt SweptOptions) (SweptOptions, error) {
 	if opt.SampleRate == 0 {
 		opt.SampleRate = DefaultSampleRate
 	}
@@ -84,114 +94,75 @@ func Swept(ctx context.Context, ch *chains.Chain, freqs []float64, opt SweptOpti
 	}
 	fs := opt.SampleRate
 	switch {
-	case !(opt.Amplitude > 0) || math.IsInf(opt.Amplitude, 0):
-		return nil, nil, inputErr("amplitude", models.FormatValue(opt.Amplitude, "V"), "must be above 0 V")
+	case !models.SignalRange.Contains(opt.Amplitude):
+		return opt, models.Fieldf("amplitude", models.FormatValue(opt.Amplitude, "V"), "must be %s", models.SignalRange.Describe())
 	case !(opt.Duration >= 0.2 && opt.Duration <= 60):
-		return nil, nil, inputErr("--duration", fmt.Sprintf("%gs", opt.Duration), "must lie between 0.2 s and 60 s")
+		return opt, models.Fieldf("duration", fmt.Sprintf("%gs", opt.Duration), "must lie between 0.2 s and 60 s")
 	case !(opt.Tail >= 0.05 && opt.Tail <= 10):
-		return nil, nil, inputErr("sweep tail", fmt.Sprintf("%gs", opt.Tail), "must lie between 0.05 s and 10 s")
+		return opt, models.Fieldf("tail", fmt.Sprintf("%gs", opt.Tail), "must lie between 0.05 s and 10 s")
 	case opt.Orders < 1 || opt.Orders > maxSweepOrders:
-		return nil, nil, inputErr("--orders", fmt.Sprint(opt.Orders), "must be between 1 and %d", maxSweepOrders)
-	case !(fs >= 8000 && fs <= float64(render.MaxRate)):
-		return nil, nil, inputErr("sample rate", fmt.Sprint(fs), "must be between 8 kHz and %d kHz", render.MaxRate/1000)
+		return opt, models.Fieldf("orders", fmt.Sprint(opt.Orders), "must be between 1 and %d", maxSweepOrders)
+	case !(fs >= engine.MinRate && fs <= engine.MaxRate):
+		return opt, models.Fieldf("sample_rate", fmt.Sprint(fs), "must be between %d kHz and %d kHz", engine.MinRate/1000, engine.MaxRate/1000)
 	}
-	f2max := 0.98 * fs / 2
-	if err := checkFreqs(freqs, f2max, models.FormatValue(fs, "Hz")+" rate less a 2 % guard band"); err != nil {
-		return nil, nil, err
-	}
-	lo, hi := freqs[0], freqs[0]
+	return opt, checkFreqs(freqs, 0.98*fs/2, models.FormatValue(fs, "Hz")+" rate less a 2 % guard band")
+}
+
+// designSweep lays out the sweep for the asked frequencies: from f1 = half
+// the lowest to f2 = 2·orders times the highest (capped below Nyquist), so
+// that the highest harmonic asked for is still inside the inverse
+// filter's band, with f1·L a whole number so that every harmonic's phase
+// lines up with the sweep's (the synchronized sweep). Raised-cosine fades
+// run over the first three quarters of the way from f1 to the lowest
+// frequency and over the top half octave below f2 (or, when the highest
+// frequency lies closer to f2, the upper half of the way from it to f2, on
+// a log scale), outside the measured band. A long fade-in keeps the
+// deconvolved pulse's low-frequency edge smooth, so that its ringing stays
+// short.
+func designSweep(freqs []float64, opt SweptOptions) *sweepDesign {
+	fs := opt.SampleRate
+	d := &sweepDesign{fs: fs, amplitude: opt.Amplitude, orders: opt.Orders, lo: freqs[0], hi: freqs[0], passband: passbandEdge(fs)}
 	for _, f := range freqs {
-		lo, hi = math.Min(lo, f), math.Max(hi, f)
+		d.lo, d.hi = math.Min(d.lo, f), math.Max(d.hi, f)
 	}
-
-	// The sweep: f(t) = f1·e^(t/L) from f1 = lo/2 to f2 = 2·orders·hi
-	// (capped below Nyquist), so that the highest harmonic asked for is
-	// still inside the inverse filter's band, with f1·L a whole number so
-	// that every harmonic's phase lines up with the sweep's (the
-	// synchronized sweep).
-	f1 := math.Max(lo/2, 1)
-	f2 := math.Min(2*float64(opt.Orders)*hi, f2max)
-	L := math.Max(math.Round(f1*opt.Duration/math.Log(f2/f1)), 1) / f1
-	T := L * math.Log(f2/f1)
-	nx := int(T * fs)
-	// Raised-cosine fades over the first three quarters of the way from
-	// f1 to lo and over the top half octave below f2 (or, when hi lies
-	// closer to f2, the upper half of the way from hi to f2, on a log
-	// scale), outside the measured band. A long fade-in keeps the
-	// deconvolved pulse's low-frequency edge smooth, so that its ringing
-	// stays short.
-	tIn := L * math.Log(lo/f1) * 0.75
-	fo := f2 / math.Sqrt2
-	if fo < hi {
-		fo = math.Sqrt(hi * f2)
+	d.f1 = math.Max(d.lo/2, 1)
+	d.f2 = math.Min(2*float64(opt.Orders)*d.hi, 0.98*fs/2)
+	d.L = math.Max(math.Round(d.f1*opt.Duration/math.Log(d.f2/d.f1)), 1) / d.f1
+	d.T = d.L * math.Log(d.f2/d.f1)
+	d.tIn = d.L * math.Log(d.lo/d.f1) * 0.75
+	d.fo = d.f2 / math.Sqrt2
+	if d.fo < d.hi {
+		d.fo = math.Sqrt(d.hi * d.f2)
 	}
-	tOut := L * math.Log(fo/f1)
-	x := make([]float64, nx)
-	for n := range x {
+	d.tOut = d.L * math.Log(d.fo/d.f1)
+	d.x = make([]float64, int(d.T*fs))
+	for n := range d.x {
 		t := float64(n) / fs
-		v := opt.Amplitude * math.Sin(2*math.Pi*f1*L*math.Exp(t/L))
+		v := opt.Amplitude * math.Sin(2*math.Pi*d.f1*d.L*math.Exp(t/d.L))
 		switch {
-		case t < tIn:
-			v *= 0.5 * (1 - math.Cos(math.Pi*t/tIn))
-		case t > tOut:
-			v *= 0.5 * (1 + math.Cos(math.Pi*(t-tOut)/(T-tOut)))
+		case t < d.tIn:
+			v *= 0.5 * (1 - math.Cos(math.Pi*t/d.tIn))
+		case t > d.tOut:
+			v *= 0.5 * (1 + math.Cos(math.Pi*(t-d.tOut)/(d.T-d.tOut)))
 		}
-		x[n] = v
+		d.x[n] = v
 	}
+	d.ntail = int(opt.Tail * fs)
+	return d
+}
 
-	eng, err := render.Prepare(ch, opt.Oversample)
-	if err != nil {
-		return nil, nil, err
-	}
-	probe, err := ResolveNode(eng.Chain, eng.Circuit, opt.Probe)
-	if err != nil {
-		return nil, nil, err
-	}
-	st, scale, stats, err := openStream(eng, fs, probe)
-	if err != nil {
-		return nil, nil, err
-	}
-	ntail := int(opt.Tail * fs)
-	ny := nx + ntail
-	y := make([]float64, ny)
-	src := make([]float64, render.MaxBlock)
-	got := 0
-	for pos := 0; pos < ny; pos += len(src) {
-		if err := ctx.Err(); err != nil {
-			return nil, nil, err
-		}
-		k := min(len(src), ny-pos)
-		for i := 0; i < k; i++ {
-			if pos+i < nx {
-				src[i] = x[pos+i] / eng.Chain.InputPeak
-			} else {
-				src[i] = 0
-			}
-		}
-		got += st.Process(y[got:], src[:k])
-	}
-	if fl, ok := st.(interface{ Flush([]float64) int }); ok {
-		for got < ny {
-			k := fl.Flush(y[got:])
-			if k == 0 {
-				break
-			}
-			got += k
-		}
-	}
-	for i := range y {
-		y[i] *= scale
-	}
-
-	// Deconvolution by the inverse filter: the sweep reversed in time
-	// with an envelope falling 6 dB per octave, e^(−t/L), which whitens
-	// the sweep's pink spectrum. Linear convolution through one FFT of
-	// length ≥ ny + nx.
+// deconvolve convolves the output y and the sweep itself with the inverse
+// filter: the sweep reversed in time with an envelope falling 6 dB per
+// octave, e^(−t/L), which whitens the sweep's pink spectrum. Linear
+// convolution through one FFT of length ≥ len(y) + len(x). It returns
+// the deconvolved output and the deconvolved sweep (the reference).
+func (d *sweepDesign) deconvolve(y []float64) (dy, dx []float64, nfft int) {
+	nx := len(d.x)
 	inv := make([]float64, nx)
 	for n := range inv {
-		inv[n] = x[nx-1-n] * math.Exp(-float64(n)/(fs*L))
+		inv[n] = d.x[nx-1-n] * math.Exp(-float64(n)/(d.fs*d.L))
 	}
-	nfft := 1 << bits.Len(uint(ny+nx))
+	nfft = 1 << bits.Len(uint(len(y)+nx))
 	fft := fourier.NewFFT(nfft)
 	pad := make([]float64, nfft)
 	spec := func(s []float64) []complex128 {
@@ -201,76 +172,102 @@ func Swept(ctx context.Context, ch *chains.Chain, freqs []float64, opt SweptOpti
 	}
 	I := spec(inv)
 	Y := spec(y)
-	X := spec(x)
+	X := spec(d.x)
 	for k := range Y {
 		Y[k] *= I[k]
 		X[k] *= I[k]
 	}
-	dy := fft.Sequence(nil, Y)
-	dx := fft.Sequence(nil, X)
+	return fft.Sequence(nil, Y), fft.Sequence(nil, X), nfft
+}
 
-	// Windows. The linear response sits at lag0 = nx−1; order h's at
-	// lag0 − L·ln(h)·fs. Each gap between neighbouring orders is split
-	// evenly: the later order's half is its window's lead-in (covering the
-	// deconvolved pulse's ringing on both sides of its peak), the earlier
-	// order's half its decay. The linear response's window runs on for
-	// the tail. Each window rises over the first half of its lead-in and
-	// falls over the last quarter of its decay (raised cosines). The same
-	// window cut from the deconvolved sweep itself is the reference each
-	// response is divided by, so the sweep's own band edges and the
-	// inverse filter's scale cancel.
-	lag0 := float64(nx - 1)
-	offset := func(h int) float64 { return L * math.Log(float64(h)) * fs }
-	info := &SweptInfo{AmplitudeV: opt.Amplitude, F1Hz: f1, F2Hz: f2, DurationS: T, LS: L, SecondsPerOctave: L * math.Ln2,
-		FadeInS: tIn, FadeOutS: T - tOut, TailS: float64(ntail) / fs, SampleRate: fs, Oversample: eng.Oversample, FFTSize: nfft}
-	passband := resample.PassbandEdge
-	if fs < 44100 {
-		passband = fs * resample.PassbandEdge / 44100
-	}
-	fadeOutStart := fo
+// curves cuts each order's impulse response out of the deconvolved output
+// and transforms it at the asked frequencies. The linear response sits at
+// lag0 = nx−1; order h's at lag0 − L·ln(h)·fs. Each gap between
+// neighbouring orders is split evenly: the later order's half is its
+// window's lead-in (covering the deconvolved pulse's ringing on both sides
+// of its peak), the earlier order's half its decay. The linear response's
+// window runs on for the tail. Each window rises over the first half of
+// its lead-in and falls over the last quarter of its decay (raised
+// cosines). The same window cut from the deconvolved sweep itself is the
+// reference each response is divided by, so the sweep's own band edges
+// and the inverse filter's scale cancel.
+func (d *sweepDesign) curves(freqs, dy, dx []float64) ([]Curve, []SweptWindow) {
+	fs := d.fs
+	lag0 := float64(len(d.x) - 1)
+	offset := func(h int) float64 { return d.L * math.Log(float64(h)) * fs }
 	var curves []Curve
+	var wins []SweptWindow
 	var h1 []complex128
-	for h := 1; h <= opt.Orders; h++ {
+	for h := 1; h <= d.orders; h++ {
 		pre := 0.5 * (offset(h+1) - offset(h))
-		post := float64(ntail)
+		post := float64(d.ntail)
 		if h > 1 {
 			post = 0.5 * (offset(h) - offset(h-1))
 		}
-		w := window{pre: pre, post: post}
+		w := cutWindow{pre: pre, post: post}
 		centre := lag0 - offset(h)
-		info.Windows = append(info.Windows, SweptWindow{Order: h, OffsetS: -offset(h) / fs, PreS: pre / fs, PostS: post / fs,
-			ResolutionHz: fs / (pre + post)})
+		wins = append(wins, SweptWindow{Order: h, OffsetS: -offset(h) / fs, PreS: pre / fs, PostS: post / fs, ResolutionHz: fs / (pre + post)})
 		cv := Curve{Harmonic: h, ResolutionHz: fs / (pre + post)}
 		for i, f := range freqs {
 			F := float64(h) * f
-			if h > 1 && (F > fadeOutStart || F > passband) {
+			if h > 1 && (F > d.fo || F > d.passband) {
 				continue
 			}
-			num := w.dtft(dy, centre, F/fs)
-			den := w.dtft(dx, lag0, F/fs)
-			H := num / den
+			H := w.dtft(dy, centre, F/fs) / w.dtft(dx, lag0, F/fs)
 			p := point(f, H)
 			if h == 1 {
 				h1 = append(h1, H)
 			} else {
-				r := Num(db(cmplxAbs(H) / cmplxAbs(h1[i])))
+				r := report.Level(report.DB(cmplx.Abs(H) / cmplx.Abs(h1[i])))
 				p.DBc = &r
 			}
 			cv.Points = append(cv.Points, p)
 		}
 		curves = append(curves, cv)
 	}
-	s := stats()
-	info.Solver = Solver{MeanIterations: s.MeanIterations(), MaxIterations: s.MaxIterations, Fallbacks: s.Fallbacks, NonConverged: s.NonConverged}
+	return curves, wins
+}
+
+// Swept measures the chain's large-signal response with an exponential
+// sine sweep (Farina 2000) in its synchronized form (Novák et al. 2015):
+// the sweep runs through the nonlinear circuit on the engine's path, the
+// output is deconvolved with the sweep's inverse filter, and the impulse
+// responses that fall apart in time — the linear one and one per harmonic
+// order — are windowed and transformed. It returns one curve per order
+// 1…opt.Orders; harmonic curves are plotted against the excitation
+// frequency f, at which the h-th harmonic sits at h·f.
+func Swept(ctx context.Context, ch *chains.Chain, freqs []float64, opt SweptOptions) ([]Curve, *SweptInfo, error) {
+	opt, err := checkSwept(freqs, opt)
+	if err != nil {
+		return nil, nil, err
+	}
+	d := designSweep(freqs, opt)
+	p, err := engine.Prepare(ch, opt.Oversample)
+	if err != nil {
+		return nil, nil, err
+	}
+	node, err := probeNode(p, "probe", opt.Probe)
+	if err != nil {
+		return nil, nil, err
+	}
+	y, chn, err := p.Render(ctx, d.fs, node, d.x, d.ntail)
+	if err != nil {
+		return nil, nil, err
+	}
+	dy, dx, nfft := d.deconvolve(y)
+	curves, wins := d.curves(freqs, dy, dx)
+	info := &SweptInfo{AmplitudeV: opt.Amplitude, F1Hz: d.f1, F2Hz: d.f2, DurationS: d.T, LS: d.L, SecondsPerOctave: d.L * math.Ln2,
+		FadeInS: d.tIn, FadeOutS: d.T - d.tOut, TailS: float64(d.ntail) / d.fs, SampleRate: d.fs, Oversample: p.Oversample, FFTSize: nfft,
+		Windows: wins, Solver: report.SolverOf(chn.Stats())}
 	return curves, info, nil
 }
 
-// window is a time window around a centre lag: flat, with a raised-cosine
+// cutWindow is a time window around a centre lag: flat, with a raised-cosine
 // rise over the first half of the lead-in and fall over the last quarter of
 // the decay. Lengths in samples.
-type window struct{ pre, post float64 }
+type cutWindow struct{ pre, post float64 }
 
-func (w window) at(tau float64) float64 {
+func (w cutWindow) at(tau float64) float64 {
 	rise := w.pre / 2
 	fall := w.post / 4
 	switch {
@@ -287,7 +284,7 @@ func (w window) at(tau float64) float64 {
 // dtft evaluates Σ w(n−c)·s[n]·e^(−j2πν(n−c)) over the window, ν in
 // cycles per sample. The phasor is advanced by multiplication and
 // recomputed exactly every 256 samples.
-func (w window) dtft(s []float64, c, nu float64) complex128 {
+func (w cutWindow) dtft(s []float64, c, nu float64) complex128 {
 	a := max(int(math.Ceil(c-w.pre)), 0)
 	b := min(int(math.Floor(c+w.post)), len(s)-1)
 	var sum complex128
@@ -321,29 +318,21 @@ func RunSwept(ctx context.Context, ch *chains.Chain, variants []Variant, freqs [
 	}
 	curves := make([][]Curve, len(variants))
 	infos := make([]*SweptInfo, len(variants))
-	errs := make([]error, len(variants))
-	if err := parallel(ctx, len(variants), workers, func(ctx context.Context, i int) error {
-		curves[i], infos[i], errs[i] = Swept(ctx, chs[i], freqs, opt)
-		return errs[i]
-	}); err != nil {
+	err := parallel.For(ctx, len(variants), workers, func(ctx context.Context, i int) error {
+		var err error
+		curves[i], infos[i], err = Swept(ctx, chs[i], freqs, opt)
+		return err
+	})
+	if err != nil {
 		return nil, err
 	}
-	for _, e := range errs {
-		if e != nil && !isCanceled(e) {
-			return nil, e
-		}
-	}
 	info := *infos[0]
-	for _, in := range infos[1:] {
+	var st report.Solver
+	for _, in := range infos {
 		// The sweep is the same for every variant; the solver's work is not.
-		info.Solver.MaxIterations = max(info.Solver.MaxIterations, in.Solver.MaxIterations)
-		info.Solver.Fallbacks += in.Solver.Fallbacks
-		info.Solver.NonConverged += in.Solver.NonConverged
-		info.Solver.MeanIterations += in.Solver.MeanIterations / float64(len(infos))
+		st = addSolver(st, in.Solver)
 	}
-	if len(infos) > 1 {
-		info.Solver.MeanIterations -= infos[0].Solver.MeanIterations * (1 - 1/float64(len(infos)))
-	}
+	info.Solver = st
 	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "swept", Probe: probeName(opt.Probe), Reference: "source", Swept: &info}
 	for i, v := range variants {
 		for _, c := range curves[i] {
@@ -360,4 +349,15 @@ func RunSwept(ctx context.Context, ch *chains.Chain, variants []Variant, freqs [
 		}
 	}
 	return rep, nil
+}
+
+// addSolver pools the solver statistics of two runs.
+func addSolver(a, b report.Solver) report.Solver {
+	n := a.Samples + b.Samples
+	mean := 0.0
+	if n > 0 {
+		mean = math.Round((a.MeanIterations*float64(a.Samples)+b.MeanIterations*float64(b.Samples))/float64(n)*1000) / 1000
+	}
+	return report.Solver{Samples: n, MeanIterations: mean, MaxIterations: max(a.MaxIterations, b.MaxIterations),
+		Fallbacks: a.Fallbacks + b.Fallbacks, NonConverged: a.NonConverged + b.NonConverged}
 }

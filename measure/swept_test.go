@@ -6,6 +6,8 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"renderchain/models"
 )
 
 // On a linear chain the swept-sine linear response equals the small-signal
@@ -117,22 +119,24 @@ func TestSweptBadInput(t *testing.T) {
 		{[]float64{1000}, SweptOptions{}, "amplitude"},
 		{[]float64{1000, 23600}, SweptOptions{Amplitude: 0.1}, "Nyquist"},
 		{[]float64{3, 1000}, SweptOptions{Amplitude: 0.1}, "5 Hz"},
-		{[]float64{1000}, SweptOptions{Amplitude: 0.1, Orders: 11}, "--orders"},
-		{[]float64{1000}, SweptOptions{Amplitude: 0.1, Duration: 0.1}, "--duration"},
+		// Library errors name the option's field; the command maps it to
+		// its flag.
+		{[]float64{1000}, SweptOptions{Amplitude: 0.1, Orders: 11}, `orders "11"`},
+		{[]float64{1000}, SweptOptions{Amplitude: 0.1, Duration: 0.1}, `duration "0.1s"`},
 		{[]float64{1000}, SweptOptions{Amplitude: 0.1, Probe: "rc.zz"}, `"rc.zz"`},
 	}
 	for _, tc := range tests {
 		_, _, err := Swept(context.Background(), ch, tc.freqs, tc.opt)
-		var ie *InputError
-		if !errors.As(err, &ie) || !strings.Contains(err.Error(), tc.want) {
-			t.Errorf("Swept(%v, %+v) = %v; want an *InputError naming %s", tc.freqs, tc.opt, err, tc.want)
+		var fe *models.FieldError
+		if !errors.As(err, &fe) || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("Swept(%v, %+v) = %v; want an *models.FieldError naming %s", tc.freqs, tc.opt, err, tc.want)
 		}
 	}
 }
 
 // The window rises and falls as documented and is 1 in between.
 func TestSweptWindow(t *testing.T) {
-	w := window{pre: 100, post: 400}
+	w := cutWindow{pre: 100, post: 400}
 	for _, tc := range []struct{ tau, want float64 }{
 		{-101, 0}, {-100, 0}, {-75, 0.5}, {-50, 1}, {0, 1}, {300, 1}, {350, 0.5}, {400, 0}, {401, 0},
 	} {

@@ -15,6 +15,28 @@ type BJTParams struct {
 	LeakDoubling float64
 	Eg           float64 // band gap for Is(T), eV; 0 keeps Is fixed
 	XTI          float64 // saturation-current temperature exponent
+	BJTSecondOrder
+}
+
+// BJTSecondOrder are the transistor's parameters beyond the Ebers–Moll
+// core: the Early effect, base resistance and charge storage. The zero
+// value of each turns it off, leaving the transport model as it is.
+type BJTSecondOrder struct {
+	// EarlyVoltage is the forward Early voltage VA, V: the output
+	// conductance in forward activity is Ic/VA. 0: none (infinite VA).
+	EarlyVoltage float64
+	// BaseResistance is the ohmic base resistance, Ω, between the base pin
+	// and the internal base node. The device itself does not see it:
+	// Circuit.AddPart puts in the resistor and the internal node.
+	BaseResistance float64
+	BE, BC         Depletion // base–emitter and base–collector depletion capacitances
+	// TransitTime is the forward transit time τF, s: the base–emitter
+	// diffusion charge is τF·Is·(exp(Vbe/Vt) − 1).
+	TransitTime float64
+	// ForwardFraction is the fraction of each junction's built-in
+	// potential past which its depletion charge is linearised; 0 selects
+	// DefaultForwardFraction.
+	ForwardFraction float64
 }
 
 // BJT is a bipolar transistor at a fixed temperature, as a two-port with
@@ -36,11 +58,35 @@ type BJTParams struct {
 // forward-biased collector junction), which saturates at Icbo under reverse
 // bias and vanishes at Vbc = 0; it flows into the collector and out of the
 // base, so with the base open it is multiplied by βF + 1, as real leakage is.
+//
+// The Early effect scales the transport current by the normalised base
+// charge of the Gummel–Poon model with only the forward Early voltage,
+// 1/qb = 1 − Vbc/VA (H. K. Gummel & H. C. Poon, "An integral charge control
+// model of bipolar transistors", Bell Syst. Tech. J. 49(5), 1970; Getreu
+// 1976, ch. 4, q1 = 1/(1 − Vbc/VA); from memory):
+//
+//	Ic = Is·(exp(Vbe/Vt) − exp(Vbc/Vt))·(1 − Vbc/VA) − (Is/βR)·(exp(Vbc/Vt) − 1)
+//
+// so that in forward activity dIc/dVce = Is·exp(Vbe/Vt)/VA, the textbook
+// output resistance ro = VA/Ic (Sedra & Smith, "Microelectronic
+// Circuits", the Early effect; from memory), and the Ic–Vce lines of all
+// Vbe meet at Vcb = −VA.
+//
+// Charge storage (Charged): the depletion charges of the base–emitter and
+// base–collector junctions (see Depletion) and the forward diffusion
+// charge τF·Is·(exp(Vbe/Vt) − 1) on the base–emitter junction, whose
+// capacitance is the textbook Cde = τF·gm (Gummel & Poon 1970; Sedra &
+// Smith, the hybrid-π model's Cπ = Cde + Cje). The base holds
+// Qbe + Qbc, the collector −Qbc.
 type BJT struct {
 	pnp              bool
 	is, bf, br, vt   float64
 	icbo             float64
+	ivaf             float64 // 1/VA, 0 without the Early effect
 	vcritBE, vcritBC float64
+	be, bc           depletion
+	tf               float64
+	charged          bool
 }
 
 // NewBJT returns the transistor of parameters p at temperature t (kelvin).
@@ -51,6 +97,13 @@ func NewBJT(p BJTParams, t float64) *BJT {
 		icbo: LeakageAt(p.Icbo, p.LeakDoubling, t, NominalTemperature)}
 	b.vcritBE = criticalVoltage(vt, is/p.BetaF)
 	b.vcritBC = criticalVoltage(vt, is/p.BetaR)
+	if p.EarlyVoltage > 0 {
+		b.ivaf = 1 / p.EarlyVoltage
+	}
+	b.be = newDepletion(p.BE, p.ForwardFraction)
+	b.bc = newDepletion(p.BC, p.ForwardFraction)
+	b.tf = p.TransitTime
+	b.charged = p.BE.C0 != 0 || p.BC.C0 != 0 || p.TransitTime != 0
 	return b
 }
 
@@ -97,6 +150,14 @@ func (b *BJT) Eval2(vbe, vce float64) (ib, ic float64, jac [4]float64) {
 	// Derivatives with respect to vbe and vbc.
 	dicBE := is * def
 	dicBC := -(is + isr) * der
+	if b.ivaf != 0 {
+		// Transport current times (1 − Vbc/VA).
+		it := is * (ef - er)
+		k := 1 - vbc*b.ivaf
+		ic = it*k - isr*(er-1)
+		dicBE *= k
+		dicBC = -is*der*k - it*b.ivaf - isr*der
+	}
 	dibBE := isf * def
 	dibBC := isr * der
 	if b.icbo != 0 {
@@ -163,3 +224,64 @@ func (b *BJT) Physical(vbe, vce float64) bool {
 
 // EmissionVoltage returns Vt, the voltage scale of the exponentials.
 func (b *BJT) EmissionVoltage() float64 { return b.vt }
+
+// HasCharges reports whether the transistor stores charge (a junction
+// capacitance or a transit time); solvers skip Charges2 when it does not.
+func (b *BJT) HasCharges() bool { return b.charged }
+
+// Charges2 returns the charge that has flowed into the base (qb) and into
+// the collector (qc), coulombs, and the capacitance matrix
+// [dqb/dVbe, dqb/dVce, dqc/dVbe, dqc/dVce], farads, for port voltages Vbe,
+// Vce (the layout of Eval2's Jacobian).
+func (b *BJT) Charges2(vbe, vce float64) (qb, qc float64, c [4]float64) {
+	s := 1.0
+	if b.pnp {
+		s, vbe, vce = -1, -vbe, -vce
+	}
+	vbc := vbe - vce
+	qbe, cbe := b.be.charge(vbe)
+	qbc, cbc := b.bc.charge(vbc)
+	if b.tf != 0 {
+		ivt := 1 / b.vt
+		ef, def := limexp(vbe * ivt)
+		qbe += b.tf * b.is * (ef - 1)
+		cbe += b.tf * b.is * def * ivt
+	}
+	// q(v) = −f(−v) for a PNP: the capacitance matrix is unchanged.
+	c = [4]float64{cbe + cbc, -cbc, -cbc, cbc}
+	return s * (qbe + qbc), -s * qbc, c
+}
+
+// Charges implements Charged.
+func (b *BJT) Charges(v, q, c []float64) {
+	var m [4]float64
+	q[0], q[1], m = b.Charges2(v[0], v[1])
+	copy(c[:4], m[:])
+}
+
+// check reports what is wrong with the parameters, or "".
+func (p BJTParams) check() string {
+	if !(p.Is > 0) || !(p.BetaF > 0) || !(p.BetaR > 0) || p.Icbo < 0 ||
+		!finite(p.Is, p.BetaF, p.BetaR, p.Icbo, p.LeakDoubling, p.Eg, p.XTI) {
+		return "transistor needs is, hfe and br > 0 (and icbo ≥ 0)"
+	}
+	s := p.BJTSecondOrder
+	if !finite(s.EarlyVoltage, s.BaseResistance, s.TransitTime) {
+		return "transistor parameters must be finite"
+	}
+	if s.EarlyVoltage < 0 || s.EarlyVoltage > 0 && s.EarlyVoltage < 1 {
+		return "Early voltage must be 0 (none) or at least 1 V"
+	}
+	if s.BaseResistance < 0 || s.BaseResistance > 1e6 {
+		return "base resistance must be between 0 and 1 MΩ"
+	}
+	if r := s.BE.check(); r != "" {
+		return "base–emitter capacitance: " + r
+	}
+	if r := s.BC.check(); r != "" {
+		return "base–collector capacitance: " + r
+	}
+	return checkStorage(s.TransitTime, s.ForwardFraction)
+}
+
+var _ Charged = (*BJT)(nil)

@@ -204,6 +204,8 @@ func TestBJTForwardGain(t *testing.T) {
 // Vbe is found by bisection on Ic(Vbe, Vce = 5 V) = 1 mA (PNP: −5 V, −1 mA).
 func TestBJTMeasuredHFE(t *testing.T) {
 	for _, base := range []string{"si-npn", "si-pnp"} {
+		// Check values: tester readings of two small-signal silicon parts
+		// (a fact of the trade used as a check value, not the demo's pair).
 		for _, hfe := range []float64{215, 393} {
 			p := *models.Presets[base].BJT
 			p.BetaF = hfe

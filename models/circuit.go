@@ -11,6 +11,10 @@ type Kind int
 
 // Element kinds. Pots and trimmers are flattened to resistors; a diode's
 // series resistance to a resistor and an internal node.
+//
+// OpAmpKind and TransformerKind are parts, not elements: Circuit.AddPart
+// replaces them by the elements their models are made of, and Check
+// rejects them in a circuit.
 const (
 	ResistorKind Kind = iota
 	CapacitorKind
@@ -19,9 +23,31 @@ const (
 	DiodeKind         // Nodes: anode, cathode
 	BJTKind           // Nodes: collector, base, emitter
 	BufferKind        // ideal unity-gain buffer: V(Nodes[0]) = V(Nodes[1]), input draws no current
+	// ControlledCurrentKind is a voltage-controlled current source, Nodes:
+	// out+, out−, control+, control−. A current Value·(V(control+) −
+	// V(control−)) flows from out+ through the source to out− (Value in
+	// siemens); the control pins draw nothing.
+	ControlledCurrentKind
+	// IdealTransformerKind is an ideal transformer of N ≥ 2 windings,
+	// Nodes: start and end of winding 1, then of winding 2, …; Ratios[i]
+	// is the turns ratio of winding i+2 to winding 1. Winding voltages are
+	// V_k = Ratios[k−2]·V_1 and the currents into the start pins satisfy
+	// I_1 + Σ Ratios[k−2]·I_k = 0: no energy is stored or lost, and DC
+	// passes as readily as AC.
+	IdealTransformerKind
+	JFETKind    // Nodes: drain, gate, source
+	MOSFETKind  // Nodes: drain, gate, source (body tied to source)
+	LimiterKind // soft limiter one-port, Nodes: +, −
+	// OpAmpKind is an op-amp part, Nodes: non-inverting input, inverting
+	// input, output, positive supply, negative supply (see OpAmpParams).
+	OpAmpKind
+	// TransformerKind is a transformer part, Nodes: start and end of each
+	// winding in order (see TransformerParams).
+	TransformerKind
 )
 
-var kindNames = [...]string{"resistor", "capacitor", "inductor", "voltage source", "diode", "transistor", "buffer"}
+var kindNames = [...]string{"resistor", "capacitor", "inductor", "voltage source", "diode", "transistor", "buffer",
+	"controlled current source", "ideal transformer", "JFET", "MOSFET", "limiter", "op-amp", "transformer"}
 
 func (k Kind) String() string {
 	if int(k) < len(kindNames) {
@@ -42,9 +68,15 @@ type Element struct {
 	Value float64
 	// Signal marks the voltage source that carries the chain's input: its
 	// voltage is Value plus the signal sample.
-	Signal bool
-	Diode  DiodeParams
-	BJT    BJTParams
+	Signal      bool
+	Diode       DiodeParams
+	BJT         BJTParams
+	JFET        JFETParams
+	MOSFET      MOSFETParams
+	Limiter     LimiterParams
+	OpAmp       OpAmpParams
+	Transformer TransformerParams
+	Ratios      []float64 // turns ratios of an ideal transformer
 }
 
 // Circuit is a flat circuit: plain data that every analysis reads. Node 0
@@ -107,6 +139,8 @@ func (c *Circuit) Clone() *Circuit {
 	d.Elements = make([]Element, len(c.Elements))
 	for i, e := range c.Elements {
 		e.Nodes = append([]int(nil), e.Nodes...)
+		e.Ratios = append([]float64(nil), e.Ratios...)
+		e.Transformer.Windings = append([]Winding(nil), e.Transformer.Windings...)
 		d.Elements[i] = e
 	}
 	return &d
@@ -137,6 +171,18 @@ func (c *Circuit) Devices() []DeviceInstance {
 			col, base, em := e.Nodes[0], e.Nodes[1], e.Nodes[2]
 			out = append(out, DeviceInstance{Element: k, Ref: e.Ref, Model: NewBJT(e.BJT, c.Temperature),
 				Ports: []Port{{base, em}, {col, em}}})
+		case JFETKind, MOSFETKind:
+			d, g, src := e.Nodes[0], e.Nodes[1], e.Nodes[2]
+			var m Nonlinear
+			if e.Kind == JFETKind {
+				m = NewJFET(e.JFET, c.Temperature)
+			} else {
+				m = NewMOSFET(e.MOSFET, c.Temperature)
+			}
+			out = append(out, DeviceInstance{Element: k, Ref: e.Ref, Model: m, Ports: []Port{{g, src}, {d, src}}})
+		case LimiterKind:
+			out = append(out, DeviceInstance{Element: k, Ref: e.Ref, Model: NewLimiter(e.Limiter),
+				Ports: []Port{{e.Nodes[0], e.Nodes[1]}}})
 		}
 	}
 	return out
@@ -152,18 +198,20 @@ type CircuitError struct {
 func (e *CircuitError) Error() string { return e.What + ": " + e.Reason }
 
 // Check verifies that the circuit is solvable: element values positive and
-// finite, no element with both ends on one node, every node with a DC path
-// to ground (a node reached only through capacitors floats), and no loop of
-// ideal voltage sources and inductors (a short across a source at DC).
+// finite, device parameters in range, no element with both ends on one
+// node, every node with a DC path to ground (a node reached only through
+// capacitors floats), no loop of ideal voltage sources, inductors and
+// ideal transformer windings (a short at DC), no part that needed AddPart
+// put in without it.
 func (c *Circuit) Check() error {
 	n := len(c.Nodes)
 	if !(c.Temperature > 0) || math.IsInf(c.Temperature, 0) {
 		return &CircuitError{"circuit", fmt.Sprintf("temperature %g K must be positive and finite", c.Temperature)}
 	}
 	conduct := newUnion(n) // DC-conducting connectivity
-	vloop := newUnion(n)   // voltage-source/inductor connectivity
+	vloop := newUnion(n)   // voltage-defined connectivity
 	for _, e := range c.Elements {
-		if want := pinCount(e.Kind); len(e.Nodes) != want {
+		if want := pinCount(e); len(e.Nodes) != want {
 			return &CircuitError{e.Ref, fmt.Sprintf("a %s has %d pins, got %d", e.Kind, want, len(e.Nodes))}
 		}
 		for _, nd := range e.Nodes {
@@ -171,49 +219,47 @@ func (c *Circuit) Check() error {
 				return &CircuitError{e.Ref, "pin on an unknown node"}
 			}
 		}
-		switch e.Kind {
-		case ResistorKind, CapacitorKind, InductorKind:
-			if !(e.Value > 0) || e.Value > 1e15 {
-				return &CircuitError{e.Ref, fmt.Sprintf("%s value %g must be positive and finite", e.Kind, e.Value)}
-			}
-			if e.Nodes[0] == e.Nodes[1] {
-				return &CircuitError{e.Ref, "both pins on node " + c.Nodes[e.Nodes[0]]}
-			}
-		case VoltageSourceKind, BufferKind:
-			if math.IsNaN(e.Value) || math.IsInf(e.Value, 0) {
-				return &CircuitError{e.Ref, fmt.Sprintf("source value %g is not finite", e.Value)}
-			}
-			if e.Nodes[0] == e.Nodes[1] {
-				return &CircuitError{e.Ref, "both terminals on node " + c.Nodes[e.Nodes[0]]}
-			}
-		case DiodeKind:
-			if !(e.Diode.Is > 0) || !(e.Diode.N > 0) {
-				return &CircuitError{e.Ref, "diode needs is > 0 and n > 0"}
-			}
-		case BJTKind:
-			p := e.BJT
-			if !(p.Is > 0) || !(p.BetaF > 0) || !(p.BetaR > 0) || p.Icbo < 0 {
-				return &CircuitError{e.Ref, "transistor needs is, hfe and br > 0 (and icbo ≥ 0)"}
-			}
+		if r := c.checkElement(e); r != "" {
+			return &CircuitError{e.Ref, r}
 		}
 		switch e.Kind {
-		case ResistorKind, InductorKind, VoltageSourceKind, DiodeKind:
+		case ResistorKind, InductorKind, VoltageSourceKind, DiodeKind, LimiterKind:
 			conduct.join(e.Nodes[0], e.Nodes[1])
-		case BJTKind:
+		case BJTKind, JFETKind:
 			conduct.join(e.Nodes[0], e.Nodes[1])
 			conduct.join(e.Nodes[1], e.Nodes[2])
+		case MOSFETKind:
+			conduct.join(e.Nodes[0], e.Nodes[2]) // the gate is insulated
 		case BufferKind:
 			conduct.join(e.Nodes[0], Ground) // the buffer's output is driven from ground
-		}
-		if e.Kind == VoltageSourceKind || e.Kind == InductorKind || e.Kind == BufferKind {
-			a, b := e.Nodes[0], e.Nodes[1]
-			if e.Kind == BufferKind {
-				b = Ground
+		case IdealTransformerKind:
+			for k := 0; k < len(e.Nodes); k += 2 {
+				conduct.join(e.Nodes[k], e.Nodes[k+1])
 			}
+		}
+		// Voltage-defined branches: sources, inductors (at DC), buffer
+		// outputs and the windings after the first of an ideal transformer
+		// (their voltages are fixed by the first's).
+		var pairs [][2]int
+		switch e.Kind {
+		case VoltageSourceKind, InductorKind:
+			pairs = [][2]int{{e.Nodes[0], e.Nodes[1]}}
+		case BufferKind:
+			pairs = [][2]int{{e.Nodes[0], Ground}}
+		case IdealTransformerKind:
+			for k := 2; k < len(e.Nodes); k += 2 {
+				pairs = append(pairs, [2]int{e.Nodes[k], e.Nodes[k+1]})
+			}
+		}
+		for _, pr := range pairs {
+			a, b := pr[0], pr[1]
 			if vloop.find(a) == vloop.find(b) {
 				what := "short across a source"
-				if e.Kind == InductorKind {
+				switch e.Kind {
+				case InductorKind:
 					what = "inductor closes a loop of sources and inductors (a short at DC)"
+				case IdealTransformerKind:
+					what = "winding closes a loop of sources, inductors and windings (a short at DC)"
 				}
 				return &CircuitError{e.Ref, what + " between " + c.Nodes[a] + " and " + c.Nodes[b]}
 			}
@@ -228,15 +274,85 @@ func (c *Circuit) Check() error {
 	}
 	if len(floating) > 0 {
 		sort.Strings(floating)
-		return &CircuitError{"node " + floating[0], "has no DC path to ground (only capacitors reach it)"}
+		return &CircuitError{"node " + floating[0], "has no DC path to ground: only capacitors connect it to the rest of the circuit"}
 	}
 	return nil
 }
 
-// pinCount is the number of pins of an element kind.
-func pinCount(k Kind) int {
-	if k == BJTKind {
+// checkElement reports what is wrong with one element's values, or "".
+func (c *Circuit) checkElement(e Element) string {
+	samePins := func(a, b int) string {
+		if e.Nodes[a] == e.Nodes[b] {
+			return "both pins on node " + c.Nodes[e.Nodes[a]]
+		}
+		return ""
+	}
+	switch e.Kind {
+	case ResistorKind, CapacitorKind, InductorKind:
+		if !(e.Value > 0) || e.Value > 1e15 {
+			return fmt.Sprintf("%s value %g must be positive and finite", e.Kind, e.Value)
+		}
+		return samePins(0, 1)
+	case VoltageSourceKind, BufferKind:
+		if !finite(e.Value) {
+			return fmt.Sprintf("source value %g is not finite", e.Value)
+		}
+		if e.Nodes[0] == e.Nodes[1] {
+			return "both terminals on node " + c.Nodes[e.Nodes[0]]
+		}
+	case ControlledCurrentKind:
+		if !finite(e.Value) || math.Abs(e.Value) > 1e6 {
+			return fmt.Sprintf("transconductance %g S must be finite", e.Value)
+		}
+		return samePins(0, 1)
+	case IdealTransformerKind:
+		if len(e.Ratios) == 0 {
+			return "an ideal transformer needs at least two windings"
+		}
+		for k, r := range e.Ratios {
+			if !(r > 0) || r > 1e6 {
+				return fmt.Sprintf("turns ratio %d (%g) must be positive and finite", k+2, r)
+			}
+		}
+		for k := 0; k < len(e.Nodes); k += 2 {
+			if r := samePins(k, k+1); r != "" {
+				return fmt.Sprintf("winding %d: %s", k/2+1, r)
+			}
+		}
+	case DiodeKind:
+		return e.Diode.check()
+	case BJTKind:
+		if r := e.BJT.check(); r != "" {
+			return r
+		}
+		if e.BJT.BaseResistance > 0 && c.Nodes[e.Nodes[1]] != InternalNode(e.Ref, "base") {
+			return "base resistance needs the internal base node: add the part with Circuit.AddPart"
+		}
+	case JFETKind:
+		return e.JFET.check()
+	case MOSFETKind:
+		return e.MOSFET.check()
+	case LimiterKind:
+		return e.Limiter.check()
+	case OpAmpKind, TransformerKind:
+		return "a " + e.Kind.String() + " is a part: add it with Circuit.AddPart"
+	}
+	return ""
+}
+
+// pinCount is the number of pins of an element.
+func pinCount(e Element) int {
+	switch e.Kind {
+	case BJTKind, JFETKind, MOSFETKind:
 		return 3
+	case ControlledCurrentKind:
+		return 4
+	case OpAmpKind:
+		return 5
+	case IdealTransformerKind:
+		return 2 * (len(e.Ratios) + 1)
+	case TransformerKind:
+		return 2 * len(e.Transformer.Windings)
 	}
 	return 2
 }
@@ -284,7 +400,7 @@ func (c *Circuit) AddLeaks() int {
 			used[n] = true
 		}
 		switch e.Kind {
-		case ResistorKind, InductorKind, VoltageSourceKind, BufferKind:
+		case ResistorKind, InductorKind, VoltageSourceKind, BufferKind, IdealTransformerKind:
 			for _, n := range e.Nodes {
 				linear[n] = true
 			}

@@ -57,3 +57,43 @@ func ExampleTaper_Fraction() {
 	// x=1.00 linear 1.0000 audio 1.0000 reverse 1.0000
 	// 10 kΩ + 90 kΩ
 }
+
+// AddPart puts an op-amp in as the elements of its macromodel, each named
+// after the part with the internal mark, on internal nodes of its own.
+func ExampleCircuit_AddPart() {
+	c := models.NewCircuit("buffer", models.NominalTemperature)
+	in, out, vp := c.Node("in"), c.Node("out"), c.Node("v+")
+	idx, err := c.AddPart(models.Element{Ref: "U1", Kind: models.OpAmpKind,
+		Nodes: []int{in, out, out, vp, models.Ground}, OpAmp: models.OpAmpPresets["opamp-general-dual"].Params})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, i := range idx {
+		e := c.Elements[i]
+		fmt.Printf("%-8s %s\n", e.Ref, e.Kind)
+	}
+	// Output:
+	// U1#rin   resistor
+	// U1#gm    controlled current source
+	// U1#rg    resistor
+	// U1#cg    capacitor
+	// U1#high  limiter
+	// U1#low   limiter
+	// U1#buf   buffer
+	// U1#rout  resistor
+}
+
+// A zener preset: the reverse current reaches the knee current at the
+// rated voltage and grows by e per n·Vt past it.
+func ExampleDiode_Current() {
+	d := models.NewDiode(*models.Presets["zener-9v1"].Diode, models.NominalTemperature)
+	for _, v := range []float64{-8.9, -9.1, -9.3} {
+		i, _ := d.Current(v)
+		fmt.Printf("%s: %s\n", models.FormatValue(v, "V"), models.FormatValue(i, "A"))
+	}
+	// Output:
+	// -8.9 V: -102 µA
+	// -9.1 V: -5 mA
+	// -9.3 V: -245.1 mA
+}

@@ -24,6 +24,12 @@ const (
 	Temperature // parsed to kelvin; "25C", "25°C", "298.15K"
 	Frequency
 	Length
+	Time      // seconds; "4s", "20ms"
+	Amplitude // volts peak of a test sine; ParseAmplitude
+	Rotation  // a knob's rotation, 0…1
+	Fraction  // a tolerance or share: 0.05 or "5%"
+	Decibels  // a level or gain in dB
+	Percent   // a percentage: "20%" or 20
 )
 
 var quantityNames = [...]string{
@@ -36,6 +42,12 @@ var quantityNames = [...]string{
 	Temperature:   "temperature",
 	Frequency:     "frequency",
 	Length:        "length",
+	Time:          "time",
+	Amplitude:     "amplitude",
+	Rotation:      "rotation",
+	Fraction:      "fraction",
+	Decibels:      "level in dB",
+	Percent:       "percentage",
 }
 
 func (q Quantity) String() string {
@@ -64,6 +76,7 @@ var units = map[Quantity][]string{
 	Temperature: {"°C", "C", "K"},
 	Frequency:   {"Hz"},
 	Length:      {"m"},
+	Time:        {"s"},
 }
 
 // prefixes are the SI prefixes (BIPM SI Brochure, 9th ed., table 7) that a
@@ -82,12 +95,42 @@ type ValueError struct {
 	Reason   string
 }
 
+// Error quotes the value (at most errShown characters, the rest elided
+// with its size) and the reason (at most errShown+20), so that a huge
+// value (a megabyte on the command line or in a file) gives a short line.
 func (e *ValueError) Error() string {
-	msg := fmt.Sprintf("value %q is not %s %s", e.Text, e.Quantity.article(), e.Quantity)
+	msg := fmt.Sprintf("value %s is not %s %s", quoteShort(e.Text), e.Quantity.article(), e.Quantity)
 	if e.Reason != "" {
-		msg += " (" + e.Reason + ")"
+		r := e.Reason
+		if c := cutRunes(r, errShown+20); len(c) < len(r) {
+			r = c + "…"
+		}
+		msg += " (" + r + ")"
 	}
 	return msg
+}
+
+// errShown is how many characters of a value an error quotes.
+const errShown = 40
+
+// quoteShort quotes s, cut to errShown characters with its length noted.
+func quoteShort(s string) string {
+	c := cutRunes(s, errShown)
+	if len(c) == len(s) {
+		return strconv.Quote(s)
+	}
+	return strconv.Quote(c) + fmt.Sprintf("… (%d bytes)", len(s))
+}
+
+// cutRunes returns the first n characters of s (all of s if shorter).
+func cutRunes(s string, n int) string {
+	for i := range s {
+		if n == 0 {
+			return s[:i]
+		}
+		n--
+	}
+	return s
 }
 
 // ParseValue reads a value written in engineering notation and returns it in

@@ -110,55 +110,6 @@ func TestSaveAtomicAndFormat(t *testing.T) {
 	}
 }
 
-func TestLogTicks(t *testing.T) {
-	tests := []struct {
-		lo, hi float64
-		labels []string
-	}{
-		{20, 20000, []string{"20", "50", "100", "200", "500", "1k", "2k", "5k", "10k", "20k"}},
-		{1e-3, 1e3, []string{"1m", "10m", "100m", "1", "10", "100", "1k"}},
-	}
-	for _, tc := range tests {
-		var got []string
-		for _, tk := range (LogTicks{}).Ticks(tc.lo, tc.hi) {
-			if tk.Label != "" {
-				got = append(got, tk.Label)
-			}
-		}
-		if strings.Join(got, " ") != strings.Join(tc.labels, " ") {
-			t.Errorf("Ticks(%g, %g) labels %v, want %v", tc.lo, tc.hi, got, tc.labels)
-		}
-	}
-}
-
-// A range inside one decade still gets at least two labels, all inside it.
-func TestLogTicksNarrow(t *testing.T) {
-	n := 0
-	for _, tk := range (LogTicks{}).Ticks(1.1, 1.9) {
-		if tk.Label != "" {
-			n++
-			if tk.Value < 1.1 || tk.Value > 1.9 {
-				t.Errorf("label %q at %g outside [1.1, 1.9]", tk.Label, tk.Value)
-			}
-		}
-	}
-	if n < 2 {
-		t.Errorf("%d labels in [1.1, 1.9], want at least 2", n)
-	}
-}
-
-func TestSI(t *testing.T) {
-	tests := []struct {
-		v    float64
-		want string
-	}{{20000, "20k"}, {0.001, "1m"}, {1.5, "1.5"}, {-2.2e-6, "-2.2µ"}, {4.7e6, "4.7M"}, {0, "0"}}
-	for _, tc := range tests {
-		if got := SI(tc.v); got != tc.want {
-			t.Errorf("SI(%g) = %q, want %q", tc.v, got, tc.want)
-		}
-	}
-}
-
 func TestPieces(t *testing.T) {
 	ln := Line{X: []float64{-1, 1, 2, 3, 4, 5}, Y: []float64{1, 1, math.NaN(), 3, 4, math.Inf(1)}}
 	got := pieces(ln, true, false)

@@ -5,11 +5,12 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"sync"
 
 	"renderchain/chains"
 	"renderchain/dsp/synth"
 	"renderchain/dsp/wavio"
+	"renderchain/engine"
+	"renderchain/parallel"
 )
 
 // DemoRate is the sample rate of the synthesized demo phrase.
@@ -32,7 +33,7 @@ var DemoSettings = []struct {
 // Demo synthesizes the dry phrase, renders it through chains/demo.toml at
 // three fuzz settings and through the pickup and amplifier alone (the
 // bypassed pedal), and writes the WAV files and JSON reports into dir.
-// Renders run in parallel, at most workers at a time (≥ 1).
+// Renders run in parallel, at most workers at a time (0: one per core).
 func Demo(ctx context.Context, dir string, workers int) ([]DemoTake, error) {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, err
@@ -58,7 +59,7 @@ func Demo(ctx context.Context, dir string, workers int) ([]DemoTake, error) {
 	bypass.Name = base.Name + " (pedal bypassed: pickup and cable into the amplifier)"
 	var keep []*chains.Stage
 	for _, st := range bypass.Stages {
-		if st.ID == "pickup" || st.ID == "amp" {
+		if st.Environment {
 			keep = append(keep, st)
 		}
 	}
@@ -71,41 +72,29 @@ func Demo(ctx context.Context, dir string, workers int) ([]DemoTake, error) {
 		}
 		jobs = append(jobs, job{DemoTake{Name: s.Name, About: fmt.Sprintf("chains/demo.toml with fuzz.fuzz = %.2f", s.Fuzz)}, ch})
 	}
-	if workers < 1 {
-		workers = 1
-	}
-	sem := make(chan struct{}, workers)
-	errs := make([]error, len(jobs))
-	var wg sync.WaitGroup
-	for i := range jobs {
-		wg.Add(1)
-		go func(i int) {
-			defer wg.Done()
-			sem <- struct{}{}
-			defer func() { <-sem }()
-			j := &jobs[i]
-			eng, err := Prepare(j.ch, 0)
-			if err != nil {
-				errs[i] = err
-				return
-			}
-			j.take.File = j.take.Name + ".wav"
-			rep, err := RenderFile(ctx, eng, dry, filepath.Join(dir, j.take.File), FileOptions{})
-			if err != nil {
-				errs[i] = err
-				return
-			}
-			j.take.Report = rep
-			j.take.ReportFile = j.take.Name + ".json"
-			errs[i] = writeJSONFile(filepath.Join(dir, j.take.ReportFile), rep)
-		}(i)
-	}
-	wg.Wait()
-	takes := []DemoTake{{Name: "dry", About: "the synthesized DI phrase (plucked strings, 10 s)", File: "dry.wav"}}
-	for i, j := range jobs {
-		if errs[i] != nil {
-			return nil, fmt.Errorf("demo %s: %w", j.take.Name, errs[i])
+	err = parallel.For(ctx, len(jobs), workers, func(ctx context.Context, i int) error {
+		j := &jobs[i]
+		eng, err := engine.Prepare(j.ch, 0)
+		if err != nil {
+			return fmt.Errorf("demo %s: %w", j.take.Name, err)
 		}
+		j.take.File = j.take.Name + ".wav"
+		rep, err := RenderFile(ctx, eng, dry, filepath.Join(dir, j.take.File), FileOptions{})
+		if err != nil {
+			return fmt.Errorf("demo %s: %w", j.take.Name, err)
+		}
+		j.take.Report = rep
+		j.take.ReportFile = j.take.Name + ".json"
+		if err := writeJSONFile(filepath.Join(dir, j.take.ReportFile), rep); err != nil {
+			return fmt.Errorf("demo %s: %w", j.take.Name, err)
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	takes := []DemoTake{{Name: "dry", About: "the synthesized DI phrase (plucked strings, 10 s)", File: "dry.wav"}}
+	for _, j := range jobs {
 		takes = append(takes, j.take)
 	}
 	return takes, nil

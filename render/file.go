@@ -2,12 +2,15 @@ package render
 
 import (
 	"context"
+	"errors"
 	"fmt"
-	"math"
 	"time"
 
 	"renderchain/dsp/spectrum"
 	"renderchain/dsp/wavio"
+	"renderchain/engine"
+	"renderchain/models"
+	"renderchain/report"
 )
 
 // Output sample formats.
@@ -17,6 +20,23 @@ const (
 	FormatFloat32 = "float32"
 )
 
+// OutputFormat returns the WAV format of an output sample format name at
+// the given rate and channels: pcm24 ("" too), pcm16 or float32. Another
+// name is a *models.FieldError on the field "format".
+func OutputFormat(name string, rate, channels int) (wavio.Format, error) {
+	f := wavio.Format{SampleRate: rate, Channels: channels, BitDepth: 24}
+	switch name {
+	case "", FormatPCM24:
+	case FormatPCM16:
+		f.BitDepth = 16
+	case FormatFloat32:
+		f.BitDepth, f.Float = 32, true
+	default:
+		return f, models.Fieldf("format", name, "not one of %s, %s, %s", FormatPCM16, FormatPCM24, FormatFloat32)
+	}
+	return f, nil
+}
+
 // FileOptions tune RenderFile.
 type FileOptions struct {
 	Format string // pcm24 (default), pcm16, float32
@@ -24,47 +44,54 @@ type FileOptions struct {
 	Progress func(done, total int64)
 }
 
-// Input limits of a render (the stated range).
+// Input limits of a file render.
 const (
 	MinRate     = 44100
-	MaxRate     = 192000
+	MaxRate     = engine.MaxRate
 	MaxChannels = 2
 )
 
-// RenderFile renders the WAV file in through the engine's circuit into the
+// CheckInput opens the WAV file at path and checks it is one a render
+// takes: MinRate…MaxRate, mono or stereo, not empty.
+func CheckInput(path string) (*wavio.File, error) {
+	r, err := wavio.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	f := r.Format()
+	switch {
+	case f.SampleRate < MinRate || f.SampleRate > MaxRate:
+		err = fmt.Errorf("%s: sample rate %d Hz is outside %d–%d Hz", path, f.SampleRate, MinRate, MaxRate)
+	case f.Channels < 1 || f.Channels > MaxChannels:
+		err = fmt.Errorf("%s: %d channels; renders take mono or stereo", path, f.Channels)
+	case r.Frames() == 0:
+		err = fmt.Errorf("%s: no audio frames", path)
+	}
+	if err != nil {
+		r.Close()
+		return nil, err
+	}
+	return r, nil
+}
+
+// RenderFile renders the WAV file in through the prepared chain into the
 // WAV file out (written under a temporary name and renamed on success; on
 // any error or cancellation nothing is left at out). Memory stays constant
 // whatever the file's length.
-func RenderFile(ctx context.Context, e *Engine, in, out string, opt FileOptions) (*Report, error) {
+func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt FileOptions) (*Report, error) {
 	if same, err := wavio.SameFile(in, out); err == nil && same {
-		return nil, fmt.Errorf("--out %s is the input file: refusing to write over it", out)
+		return nil, models.Fieldf("output", out, "is the input file: refusing to write over it")
 	}
-	r, err := wavio.Open(in)
+	r, err := CheckInput(in)
 	if err != nil {
 		return nil, err
 	}
 	defer r.Close()
 	f := r.Format()
-	if f.SampleRate < MinRate || f.SampleRate > MaxRate {
-		return nil, fmt.Errorf("%s: sample rate %d Hz is outside %d–%d Hz", in, f.SampleRate, MinRate, MaxRate)
+	of, err := OutputFormat(opt.Format, f.SampleRate, f.Channels)
+	if err != nil {
+		return nil, err
 	}
-	if f.Channels < 1 || f.Channels > MaxChannels {
-		return nil, fmt.Errorf("%s: %d channels; renders take mono or stereo", in, f.Channels)
-	}
-	if r.Frames() == 0 {
-		return nil, fmt.Errorf("%s: no audio frames", in)
-	}
-	of := wavio.Format{SampleRate: f.SampleRate, Channels: f.Channels, BitDepth: 24}
-	switch opt.Format {
-	case "", FormatPCM24:
-	case FormatPCM16:
-		of.BitDepth = 16
-	case FormatFloat32:
-		of.BitDepth, of.Float = 32, true
-	default:
-		return nil, fmt.Errorf("--format %q is not one of pcm16, pcm24, float32", opt.Format)
-	}
-	fs := float64(f.SampleRate)
 	o, err := wavio.CreateTemp(out)
 	if err != nil {
 		return nil, err
@@ -79,7 +106,7 @@ func RenderFile(ctx context.Context, e *Engine, in, out string, opt FileOptions)
 	if err != nil {
 		return nil, err
 	}
-	rep := newReport(e, in, out, f, of, r.Frames())
+	rep := newReport(p, in, out, f, of, r.Frames())
 	start := time.Now()
 	lastProgress := time.Now()
 	prog := func(done int64) {
@@ -88,11 +115,14 @@ func RenderFile(ctx context.Context, e *Engine, in, out string, opt FileOptions)
 			lastProgress = time.Now()
 		}
 	}
-	st, err := Stream(ctx, e, r, fs, f.Channels,
+	st, err := p.Stream(ctx, r, float64(f.SampleRate), f.Channels,
 		func(x []float64) error { rep.dry.add(x); return nil },
 		func(y []float64) error { rep.wet.add(y); return w.Write(y) },
 		prog)
 	if err != nil {
+		if errors.Is(err, engine.ErrInterrupted) {
+			return nil, fmt.Errorf("render interrupted: no output written (%w)", err)
+		}
 		return nil, err
 	}
 	if opt.Progress != nil {
@@ -111,20 +141,18 @@ func RenderFile(ctx context.Context, e *Engine, in, out string, opt FileOptions)
 	return rep, nil
 }
 
-// levels accumulates peak and RMS of an interleaved stream, and the
-// long-term-average third-octave spectrum of its channels' mean.
+// levels accumulates peak and RMS of an interleaved stream (samples at
+// digital full scale count as over), and the long-term-average
+// third-octave spectrum of its channels' mean.
 type levels struct {
-	peak     float64
-	sumSq    float64
-	n        int64
-	over     int64 // samples beyond full scale
+	report.PeakRMS
 	channels int
 	ltas     *spectrum.LTAS
 	mono     []float64
 }
 
 func newLevels(fs float64, channels int) *levels {
-	l := &levels{channels: channels, mono: make([]float64, MaxBlock)}
+	l := &levels{PeakRMS: report.PeakRMS{Threshold: 1}, channels: channels, mono: make([]float64, engine.MaxBlock)}
 	l.ltas, _ = spectrum.NewLTAS(fs, 0) // fs is checked already; a nil LTAS only skips the spectrum
 	return l
 }
@@ -142,29 +170,5 @@ func (l *levels) add(x []float64) {
 		}
 		_ = l.ltas.Write(l.mono[:frames]) // samples are finite here
 	}
-	for _, v := range x {
-		a := math.Abs(v)
-		if a > l.peak {
-			l.peak = a
-		}
-		if a >= 1 {
-			l.over++
-		}
-		l.sumSq += v * v
-	}
-	l.n += int64(len(x))
-}
-
-func dbfs(x float64) float64 {
-	if x <= 0 {
-		return math.Inf(-1)
-	}
-	return 20 * math.Log10(x)
-}
-
-func (l *levels) rms() float64 {
-	if l.n == 0 {
-		return 0
-	}
-	return math.Sqrt(l.sumSq / float64(l.n))
+	l.Add(x)
 }

@@ -4,14 +4,13 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"path/filepath"
-	"strconv"
 	"strings"
 
 	"github.com/urfave/cli/v2"
 
 	"renderchain/abtest"
+	"renderchain/models"
 	"renderchain/render"
 )
 
@@ -34,11 +33,11 @@ func abCommand() *cli.Command {
 			"neutral labels in an order drawn from --seed and writes the key to a separate file.",
 		Flags: []cli.Flag{
 			chainFlag,
-			&cli.StringFlag{Name: "in", Aliases: []string{"i"}, Usage: "dry take (WAV, mono or stereo, 44.1–192 kHz)", Required: true},
-			&cli.StringFlag{Name: "outdir", Aliases: []string{"o"}, Usage: "folder for the set", Required: true},
+			&cli.StringFlag{Name: "in", Aliases: []string{"i"}, Usage: "dry take (WAV, mono or stereo, 44.1–192 kHz), required"},
+			&cli.StringFlag{Name: "outdir", Aliases: []string{"o"}, Usage: "folder for the set, required"},
 			&cli.StringSliceFlag{Name: "variant", Aliases: []string{"V"}, Usage: "a candidate build `\"LABEL: K=V …\"` or \"LABEL: @FILE.toml [K=V …]\" (repeatable; none: the chain as written)"},
 			setFlag,
-			&cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16, for every variant (default: the chain's, else 4)"},
+			oversampleFlag,
 			&cli.Float64Flag{Name: "target-lufs", Value: abtest.DefaultTargetLUFS, Usage: "integrated loudness every clip is brought to, `LUFS`"},
 			&cli.Float64Flag{Name: "ceiling", Value: abtest.DefaultCeilingDBTP, Usage: "highest true peak any clip may reach, `dBTP`; lowers the common loudness when needed"},
 			&cli.StringFlag{Name: "format", Value: render.FormatPCM24, Usage: "clip samples: pcm24, pcm16 or float32"},
@@ -58,6 +57,7 @@ func abCommand() *cli.Command {
 			quietFlag,
 			&cli.BoolFlag{Name: "json", Usage: "print ab.json on stdout as well"},
 		},
+		Before: requireFlags("chain", "in", "outdir"),
 		Action: abAction,
 	}
 }
@@ -65,9 +65,6 @@ func abCommand() *cli.Command {
 func abAction(c *cli.Context) error {
 	if c.NArg() > 0 {
 		return usagef("ab takes no arguments (got %q); give variants with --variant", c.Args().First())
-	}
-	if n := c.Int("oversample"); c.IsSet("oversample") && (n < 1 || n > 16) {
-		return usagef("--oversample %d is outside 1…16", n)
 	}
 	if c.Bool("blind") && !c.IsSet("seed") {
 		return usagef("--blind needs --seed N: the shuffle is drawn from it, and the same seed gives the same set")
@@ -79,20 +76,20 @@ func abAction(c *cli.Context) error {
 	for _, spec := range c.StringSlice("variant") {
 		v, err := abtest.ParseVariant(spec)
 		if err != nil {
-			return usagef("%v", err)
+			return &usageError{msg: "--" + err.Error(), err: err}
 		}
 		variants = append(variants, v)
 	}
 	seq := abtest.SequenceOptions{Rounds: c.Int("rounds")}
 	var err error
-	if seq.Segment, err = parseSeconds("--segment", c.String("segment")); err != nil {
+	if seq.Segment, err = parseFlag(c, "segment", models.ParseSeconds); err != nil {
 		return err
 	}
 	seq.Off = seq.Segment == 0
-	if seq.Crossfade, err = parseSeconds("--crossfade", c.String("crossfade")); err != nil {
+	if seq.Crossfade, err = parseFlag(c, "crossfade", models.ParseSeconds); err != nil {
 		return err
 	}
-	if seq.Start, err = parseSeconds("--segment-start", c.String("segment-start")); err != nil {
+	if seq.Start, err = parseFlag(c, "segment-start", models.ParseSeconds); err != nil {
 		return err
 	}
 	if s := c.String("order"); s != "" {
@@ -112,13 +109,14 @@ func abAction(c *cli.Context) error {
 		Force: c.Bool("force"), Jobs: c.Int("jobs"), Progress: prog,
 	})
 	done()
-	if err != nil {
-		var se *abtest.SpecError
-		var le *abtest.LabelError
-		var pe *abtest.ParamError
-		if errors.As(err, &se) || errors.As(err, &le) || errors.As(err, &pe) {
-			return usagef("%v", err)
-		}
+	var le *abtest.LabelError
+	var ee *abtest.ExistsError
+	switch {
+	case errors.As(err, &le):
+		return &usageError{msg: "--variant: " + err.Error(), err: err}
+	case errors.As(err, &ee):
+		return fmt.Errorf("%w (pass --force)", err)
+	case err != nil:
 		return err
 	}
 	if c.Bool("json") {
@@ -131,24 +129,6 @@ func abAction(c *cli.Context) error {
 	}
 	fmt.Fprintln(c.App.ErrWriter, hearingCaution)
 	return nil
-}
-
-// parseSeconds reads a time: a plain number of seconds, or a number with
-// "s" or "ms".
-func parseSeconds(flag, s string) (float64, error) {
-	t := strings.TrimSpace(s)
-	scale := 1.0
-	switch {
-	case strings.HasSuffix(t, "ms"):
-		t, scale = strings.TrimSuffix(t, "ms"), 1e-3
-	case strings.HasSuffix(t, "s"):
-		t = strings.TrimSuffix(t, "s")
-	}
-	v, err := strconv.ParseFloat(strings.TrimSpace(t), 64)
-	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
-		return 0, usagef("%s %q: want a time such as 4s, 2.5 or 20ms", flag, s)
-	}
-	return v * scale, nil
 }
 
 // printAB writes the human summary of a set.

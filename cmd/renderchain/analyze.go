@@ -8,7 +8,8 @@ import (
 
 	"github.com/urfave/cli/v2"
 
-	"renderchain/abtest"
+	"renderchain/analyze"
+	"renderchain/report"
 )
 
 func analyzeCommand() *cli.Command {
@@ -43,7 +44,7 @@ func analyzeCommand() *cli.Command {
 			if len(files) != 1 {
 				return usagef("analyze takes one WAV file (got %d)", len(files))
 			}
-			r, err := abtest.AnalyzeFile(c.Context, files[0])
+			r, err := analyze.File(c.Context, files[0])
 			if err != nil {
 				return err
 			}
@@ -57,7 +58,7 @@ func analyzeCommand() *cli.Command {
 }
 
 // level formats a level, "—" where it does not exist.
-func level(v abtest.DB, digits int, unit string) string {
+func level(v report.Level, digits int, unit string) string {
 	x := float64(v)
 	if math.IsInf(x, 0) || math.IsNaN(x) {
 		return "—"
@@ -65,13 +66,13 @@ func level(v abtest.DB, digits int, unit string) string {
 	return fmt.Sprintf("%.*f %s", digits, x, unit)
 }
 
-func printAnalysis(w io.Writer, r *abtest.FileReport) {
+func printAnalysis(w io.Writer, r *analyze.Report) {
 	fmt.Fprintf(w, "%s: %s, %.3f s (%d frames)\n", r.File, r.Format, r.Seconds, r.Frames)
 	fmt.Fprintf(w, "  peak           %-14s true peak        %s\n", level(r.PeakDBFS, 2, "dBFS"), level(r.TruePeakDBTP, 2, "dBTP"))
 	fmt.Fprintf(w, "  RMS            %-14s crest factor     %s\n", level(r.RMSDBFS, 2, "dBFS"), level(r.CrestDB, 2, "dB"))
 	fmt.Fprintf(w, "  loudness       %-14s loudness range   %s\n", level(r.LUFS, 1, "LUFS"), level(r.LoudnessRangeLU, 1, "LU"))
 	fmt.Fprintf(w, "  momentary max  %-14s short-term max   %s\n", level(r.MomentaryMaxLUFS, 1, "LUFS"), level(r.ShortTermMaxLUFS, 1, "LUFS"))
-	fmt.Fprintf(w, "  centroid       %-14s DC offset        %.2e\n", level(r.CentroidHz, 0, "Hz"), r.DCOffset)
+	fmt.Fprintf(w, "  centroid       %-14s DC offset        %.2e\n", level(report.Level(r.CentroidHz), 0, "Hz"), r.DCOffset)
 	if r.NearFullScale > 0 {
 		fmt.Fprintf(w, "  %d samples at full scale: the file may have clipped\n", r.NearFullScale)
 	}

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -10,7 +9,7 @@ import (
 
 	"github.com/urfave/cli/v2"
 
-	"renderchain/bench"
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/models"
 )
@@ -30,28 +29,16 @@ func biasCommand() *cli.Command {
 			chainFlag, setFlag, jsonFlag,
 			&cli.StringFlag{Name: "target", Usage: "turn a trimmer to reach `KEY=VALUE` (fuzz.Q2.vc=4.5V, fuzz.Q2.vce=4V, fuzz.Q2.ic=1mA, fuzz.c2=4.5V), or \"symmetric\" for equal clipping on both half-waves"},
 			&cli.StringFlag{Name: "adjust", Usage: "the knob a target turns, `STAGE.KNOB` or STAGE.POT (default: the trimmer the template marks for that transistor)"},
-			&cli.StringFlag{Name: "level", Usage: "symmetric target: test sine `V` peak at the source (Vpp accepted; default: the chain's input peak)"},
+			&cli.StringFlag{Name: "level", Usage: "symmetric target: test sine at the source, `V` peak (mV, Vpp, Vrms, dBV accepted; default: the chain's input peak)"},
 			&cli.StringFlag{Name: "freq", Value: "1kHz", Usage: "symmetric target: test sine frequency `HZ`"},
 			&cli.StringFlag{Name: "probe", Usage: "symmetric target: `NODE` watched (default: the adjusted transistor's collector)"},
-			&cli.StringSliceFlag{Name: "supply", Usage: "table of the operating point at supply `V,V,…` (e.g. 9.6,9,8,7; the chain's polarity)"},
+			&cli.StringSliceFlag{Name: "supply", Usage: "table of the operating point at supply `V,V,…` (e.g. 9.6,9,8,7; the chain file's polarity is kept)"},
 			&cli.StringSliceFlag{Name: "temp", Usage: "table of the operating point at temperatures `C,C,…` (°C, e.g. 0,25,40)"},
 			&cli.BoolFlag{Name: "internal", Usage: "list nodes inside parts (a diode's junction) too"},
 		},
+		Before: requireFlags("chain"),
 		Action: biasAction,
 	}
-}
-
-// benchUsage turns the bench package's key errors into command-line
-// errors naming the flag (flag "": the key is the flag's name).
-func benchUsage(flag string, err error) error {
-	var ke *bench.KeyError
-	if errors.As(err, &ke) {
-		if flag == "" {
-			return usagef("--%s", ke.Error())
-		}
-		return usagef("--%s %s", flag, ke.Error())
-	}
-	return err
 }
 
 func biasAction(c *cli.Context) error {
@@ -67,9 +54,9 @@ func biasAction(c *cli.Context) error {
 		return err
 	}
 	var (
-		tr  *bench.TargetResult
-		sym *bench.SymmetricResult
-		b   *bench.Bias
+		tr  *bias.TargetResult
+		sym *bias.SymmetricResult
+		b   *bias.Bias
 	)
 	switch target := strings.TrimSpace(c.String("target")); {
 	case target == "":
@@ -77,21 +64,21 @@ func biasAction(c *cli.Context) error {
 			return usagef("--adjust, --level, --freq and --probe go with --target")
 		}
 	case strings.EqualFold(target, "symmetric"):
-		adj, err := bench.ResolveAdjuster(ch, c.String("adjust"), "")
+		adj, err := bias.ResolveAdjuster(ch, c.String("adjust"), "")
 		if err != nil {
-			return benchUsage("adjust", err)
+			return err
 		}
-		opt := bench.SymmetricOptions{Probe: c.String("probe")}
-		if s := c.String("level"); s != "" {
-			if opt.Level, err = benchAmplitude(s); err != nil {
-				return usagef("--level %s", err)
+		opt := bias.SymmetricOptions{Probe: c.String("probe")}
+		if c.IsSet("level") {
+			if opt.Level, err = parseFlag(c, "level", models.ParseAmplitude); err != nil {
+				return err
 			}
 		}
-		if opt.Freq, err = models.ParseValue(c.String("freq"), models.Frequency); err != nil || !(opt.Freq > 0) {
-			return usagef("--freq %q is not a frequency above 0 Hz", c.String("freq"))
+		if opt.Freq, err = parseFlag(c, "freq", models.ParseFrequency); err != nil {
+			return err
 		}
-		if sym, err = bench.SolveSymmetric(c.Context, ch, adj, opt); err != nil {
-			return benchUsage("target", err)
+		if sym, err = bias.SolveSymmetric(c.Context, ch, adj, opt); err != nil {
+			return err
 		}
 		ch.Stage(adj.Stage).Knobs[adj.Knob] = sym.Rotation
 		b = sym.Bias
@@ -99,28 +86,28 @@ func biasAction(c *cli.Context) error {
 		if c.IsSet("level") || c.IsSet("probe") || c.IsSet("freq") {
 			return usagef("--level, --freq and --probe go with --target symmetric")
 		}
-		t, err := bench.ParseTarget(ch, target)
+		t, err := bias.ParseTarget(ch, target)
 		if err != nil {
-			return benchUsage("target", err)
+			return err
 		}
-		adj, err := bench.AdjusterFor(ch, t, c.String("adjust"))
+		adj, err := bias.AdjusterFor(ch, t, c.String("adjust"))
 		if err != nil {
-			return benchUsage("adjust", err)
+			return err
 		}
-		if tr, err = bench.SolveTarget(ch, t, adj); err != nil {
+		if tr, err = bias.SolveTarget(ch, t, adj); err != nil {
 			return err
 		}
 		ch.Stage(adj.Stage).Knobs[adj.Knob] = tr.Rotation
 		b = tr.Bias
 	}
 	if b == nil {
-		if b, err = bench.Solve(ch); err != nil {
+		if b, err = bias.Solve(ch); err != nil {
 			return err
 		}
 	}
-	var rows []*bench.Bias
+	var rows []*bias.Bias
 	if supplies != nil || temps != nil {
-		if rows, err = bench.Sweep(ch, supplies, temps); err != nil {
+		if rows, err = bias.Sweep(ch, supplies, temps); err != nil {
 			return err
 		}
 	}
@@ -151,36 +138,17 @@ func biasAction(c *cli.Context) error {
 	return nil
 }
 
-// biasConditions reads --supply and --temp (each a comma list, repeatable).
+// biasConditions reads --supply and --temp (each a comma list,
+// repeatable): supplies by models.ParseSupplies with the chain file's
+// polarity (the supply rule), temperatures by models.ParseTemperatures.
 func biasConditions(c *cli.Context, ch *chains.Chain) (supplies, temps []float64, err error) {
-	if l := c.StringSlice("supply"); len(l) > 0 {
-		if supplies, err = bench.ParseSupplies(strings.Join(l, ","), ch.Supply); err != nil {
-			return nil, nil, benchUsage("supply", err)
-		}
+	if supplies, err = parseListFlag(c, "supply", func(s string) ([]float64, error) { return models.ParseSupplies(s, ch.Supply) }); err != nil {
+		return nil, nil, err
 	}
-	if l := c.StringSlice("temp"); len(l) > 0 {
-		if temps, err = bench.ParseTemperatures(strings.Join(l, ",")); err != nil {
-			return nil, nil, benchUsage("temp", err)
-		}
+	if temps, err = parseListFlag(c, "temp", models.ParseTemperatures); err != nil {
+		return nil, nil, err
 	}
 	return supplies, temps, nil
-}
-
-// benchAmplitude reads a peak voltage; "Vpp"/"mVpp" are peak-to-peak.
-func benchAmplitude(s string) (float64, error) {
-	t := strings.TrimSpace(s)
-	div := 1.0
-	if strings.HasSuffix(t, "pp") {
-		t, div = strings.TrimSuffix(t, "pp"), 2
-	}
-	v, err := models.ParseValue(t, models.Voltage)
-	if err != nil {
-		return 0, err
-	}
-	if !(v > 0) {
-		return 0, fmt.Errorf("%q must be above 0 V", s)
-	}
-	return v / div, nil
 }
 
 func biasVolts(v float64) string {
@@ -190,7 +158,7 @@ func biasVolts(v float64) string {
 	return fmt.Sprintf("%.3f V", v)
 }
 
-func biasPrint(w io.Writer, b *bench.Bias, internal bool) {
+func biasPrint(w io.Writer, b *bias.Bias, internal bool) {
 	fmt.Fprintf(w, "%s (%s)\n", b.Chain, b.File)
 	fmt.Fprintf(w, "DC operating point at %s, %.1f °C (%s, %d iterations)\n\n", models.FormatValue(b.Supply, "V"),
 		b.Temperature-models.ZeroCelsius, b.Method, b.Iterations)
@@ -212,11 +180,7 @@ func biasPrint(w io.Writer, b *bench.Bias, internal bool) {
 		tw = tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
 		fmt.Fprintln(tw, "transistor\tkind\tVc\tVb\tVe\tVbe\tVce\tIc\tIb\tP\tIc/Ib\tregion\t")
 		for _, t := range b.Transistors {
-			kind := "npn"
-			if t.PNP {
-				kind = "pnp"
-			}
-			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%.0f\t%s\t\n", t.Ref, kind, biasVolts(t.Vc), biasVolts(t.Vb), biasVolts(t.Ve),
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%.0f\t%s\t\n", t.Ref, t.Kind(), biasVolts(t.Vc), biasVolts(t.Vb), biasVolts(t.Ve),
 				biasVolts(t.Vbe), biasVolts(t.Vce), models.FormatValue(t.Ic, "A"), models.FormatValue(t.Ib, "A"),
 				models.FormatValue(t.Power, "W"), t.Beta, t.Region)
 		}
@@ -235,9 +199,12 @@ func biasPrint(w io.Writer, b *bench.Bias, internal bool) {
 	for _, s := range b.Warnings {
 		fmt.Fprintln(w, "warning: "+s)
 	}
+	for _, s := range b.Notes {
+		fmt.Fprintln(w, "note: "+s)
+	}
 }
 
-func biasPrintTarget(w io.Writer, r *bench.TargetResult) {
+func biasPrintTarget(w io.Writer, r *bias.TargetResult) {
 	if r.Reached {
 		fmt.Fprintf(w, "target %s: reached at %s = %.3f (was %.3f)\n", r.Target.Text, r.Adjust.Key(), r.Rotation, r.Start)
 	} else {
@@ -254,7 +221,7 @@ func biasPrintTarget(w io.Writer, r *bench.TargetResult) {
 	fmt.Fprintf(w, "  measure with the battery out and the trimmer out of circuit; reproduce with --set %s=%.4f\n\n", r.Adjust.Key(), r.Rotation)
 }
 
-func biasPrintSymmetric(w io.Writer, r *bench.SymmetricResult) {
+func biasPrintSymmetric(w io.Writer, r *bias.SymmetricResult) {
 	o := r.Options
 	fmt.Fprintf(w, "symmetric swing at %s for a %s, %s sine at the source:\n", r.Probe, models.FormatValue(o.Level, "V"), models.FormatValue(o.Freq, "Hz"))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
@@ -272,7 +239,7 @@ func biasPrintSymmetric(w io.Writer, r *bench.SymmetricResult) {
 	fmt.Fprintf(w, "  reproduce with --set %s=%.4f\n\n", r.Adjust.Key(), r.Rotation)
 }
 
-func biasPrintConditions(w io.Writer, rows []*bench.Bias) {
+func biasPrintConditions(w io.Writer, rows []*bias.Bias) {
 	fmt.Fprintln(w, "\noperating point by supply and temperature:")
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
 	head := "  supply\ttemp\t"
@@ -285,10 +252,10 @@ func biasPrintConditions(w io.Writer, rows []*bench.Bias) {
 		for _, t := range b.Transistors {
 			region := string(t.Region)
 			if t.Collector != "gnd" && t.Collector != "v+" {
-				if math.Abs(t.Vc) < bench.RailMargin {
+				if math.Abs(t.Vc) < bias.RailMargin {
 					region += " (near gnd)"
 				}
-				if math.Abs(t.Vc-b.Supply) < bench.RailMargin {
+				if math.Abs(t.Vc-b.Supply) < bias.RailMargin {
 					region += " (near v+)"
 				}
 			}
@@ -297,5 +264,5 @@ func biasPrintConditions(w io.Writer, rows []*bench.Bias) {
 		fmt.Fprintf(tw, "%s%s\t\n", line, models.FormatValue(b.SupplyCurrent, "A"))
 	}
 	tw.Flush()
-	fmt.Fprintf(w, "  (near gnd / near v+: collector within %g V of that rail; the JSON rows carry the full warnings)\n", bench.RailMargin)
+	fmt.Fprintf(w, "  (near gnd / near v+: collector within %g V of that rail; the JSON rows carry the full warnings)\n", bias.RailMargin)
 }

@@ -3,44 +3,19 @@ package main
 import (
 	"encoding/json"
 	"math"
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 
-	"renderchain/bench"
+	"renderchain/bias"
 	"renderchain/chains"
 )
-
-// benchRun runs the command line with stdout and stderr captured in files.
-func benchRun(t *testing.T, args ...string) (code int, stdout, stderr string) {
-	t.Helper()
-	dir := t.TempDir()
-	o, err := os.Create(filepath.Join(dir, "stdout"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	e, err := os.Create(filepath.Join(dir, "stderr"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	so, se := os.Stdout, os.Stderr
-	os.Stdout, os.Stderr = o, e
-	code = run(append([]string{"renderchain"}, args...))
-	os.Stdout, os.Stderr = so, se
-	o.Close()
-	e.Close()
-	b1, _ := os.ReadFile(o.Name())
-	b2, _ := os.ReadFile(e.Name())
-	return code, string(b1), string(b2)
-}
 
 const benchChain = "../../chains/fuzz-only.toml"
 
 // bias --json carries the interface's fields, and they hold what the bench
 // package computes for the same chain.
 func TestBiasJSON(t *testing.T) {
-	code, out, errs := benchRun(t, "bias", "--chain", benchChain, "--set", "fuzz.trim2=0.4", "--json")
+	code, out, errs := capture(t, "bias", "--chain", benchChain, "--set", "fuzz.trim2=0.4", "--json")
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -59,7 +34,7 @@ func TestBiasJSON(t *testing.T) {
 	}
 	ch, _ := chains.Load(benchChain)
 	ch.Set("fuzz.trim2=0.4")
-	b, err := bench.Solve(ch)
+	b, err := bias.Solve(ch)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -83,7 +58,7 @@ func TestBiasJSON(t *testing.T) {
 }
 
 func TestBiasTargetAndConditions(t *testing.T) {
-	code, out, errs := benchRun(t, "bias", "--chain", benchChain, "--target", "fuzz.Q2.vc=4.5V", "--supply", "9.6,9", "--temp", "0,40", "--json")
+	code, out, errs := capture(t, "bias", "--chain", benchChain, "--target", "fuzz.Q2.vc=4.5V", "--supply", "9.6,9", "--temp", "0,40", "--json")
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -106,12 +81,12 @@ func TestBiasTargetAndConditions(t *testing.T) {
 		t.Errorf("target %+v, Vc2 %v, conditions %+v", r.Target, r.Nodes["fuzz.c2"], r.Conditions)
 	}
 	// Text output: the table and the trimmer reading.
-	code, out, _ = benchRun(t, "bias", "--chain", benchChain, "--target", "fuzz.Q2.vc=4.5V")
+	code, out, _ = capture(t, "bias", "--chain", benchChain, "--target", "fuzz.Q2.vc=4.5V")
 	if code != exitOK || !strings.Contains(out, "between ccw and wiper of fuzz.TR2") || !strings.Contains(out, "fuzz.Q2") {
 		t.Errorf("exit %d, text:\n%s", code, out)
 	}
 	// Out of reach: said so, exit 0, the closest value given.
-	code, out, _ = benchRun(t, "bias", "--chain", benchChain, "--target", "fuzz.Q2.vc=9.5V", "--json")
+	code, out, _ = capture(t, "bias", "--chain", benchChain, "--target", "fuzz.Q2.vc=9.5V", "--json")
 	var oor struct {
 		Target struct {
 			Reached  bool    `json:"reached"`
@@ -142,7 +117,7 @@ func TestBiasBadInput(t *testing.T) {
 		{[]string{"--set", "fuzz.nope=1"}, exitFailure, "fuzz.nope"},
 	}
 	for _, tc := range cases {
-		code, _, errs := benchRun(t, append([]string{"bias", "--chain", benchChain}, tc.args...)...)
+		code, _, errs := capture(t, append([]string{"bias", "--chain", benchChain}, tc.args...)...)
 		if code != tc.want || !strings.Contains(errs, tc.msg) || strings.Count(strings.TrimSpace(errs), "\n") != 0 {
 			t.Errorf("%v: exit %d, stderr %q; want %d and %q on one line", tc.args, code, errs, tc.want, tc.msg)
 		}

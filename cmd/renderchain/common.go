@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"os"
+	"strings"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
@@ -16,11 +17,48 @@ import (
 
 // Flags shared by several commands, defined once.
 var (
-	chainFlag = &cli.StringFlag{Name: "chain", Aliases: []string{"c"}, Usage: "chain file (TOML)", Required: true}
+	chainFlag = &cli.StringFlag{Name: "chain", Aliases: []string{"c"}, Usage: "chain file (TOML), required"}
 	setFlag   = &cli.StringSliceFlag{Name: "set", Usage: "override `KEY=VALUE`: stage.knob=0.3, stage.REF=22n, stage.REF.hfe=120, supply=8.5V, temperature=10C, input.peak=500mV (repeatable)"}
 	quietFlag = &cli.BoolFlag{Name: "quiet", Aliases: []string{"q"}, Usage: "no summary or progress on stderr"}
 	jsonFlag  = &cli.BoolFlag{Name: "json", Usage: "print JSON instead of a table"}
 )
+
+// parseFlag reads a flag's value with one of the models parsers; a value
+// that does not parse or is out of range is a usage error naming the flag.
+func parseFlag(c *cli.Context, name string, parse func(string) (float64, error)) (float64, error) {
+	v, err := parse(c.String(name))
+	if err != nil {
+		return 0, badFlag(name, c.String(name), err)
+	}
+	return v, nil
+}
+
+// parseListFlag is parseFlag for a comma list (a repeatable flag's values
+// are joined with commas).
+func parseListFlag(c *cli.Context, name string, parse func(string) ([]float64, error)) ([]float64, error) {
+	text := strings.Join(c.StringSlice(name), ",")
+	if !c.IsSet(name) {
+		return nil, nil
+	}
+	if fl, ok := flagValue(c, name); ok {
+		text = fl
+	}
+	v, err := parse(text)
+	if err != nil {
+		return nil, badFlag(name, text, err)
+	}
+	return v, nil
+}
+
+// flagValue returns a string flag's value (for flags that are not slices).
+func flagValue(c *cli.Context, name string) (string, bool) {
+	for _, f := range c.Command.Flags {
+		if sf, ok := f.(*cli.StringFlag); ok && sf.Name == name {
+			return c.String(name), true
+		}
+	}
+	return "", false
+}
 
 // loadChain reads the chain file and applies the --set overrides.
 func loadChain(c *cli.Context) (*chains.Chain, error) {

@@ -92,6 +92,11 @@ func TestExitStatuses(t *testing.T) {
 		{"missing chain", []string{"render", "--chain", filepath.Join(dir, "none.toml"), "--in", dry, "--out", out}, exitFailure},
 		{"missing input", []string{"render", "--chain", "../../chains/demo.toml", "--in", filepath.Join(dir, "none.wav"), "--out", out}, exitFailure},
 		{"demo into a full folder", []string{"demo", "--outdir", nonEmpty}, exitUsage},
+		{"unknown command", []string{"rendr"}, exitUsage},
+		{"unknown help topic", []string{"help", "rendr"}, exitUsage},
+		{"NaN flag value", []string{"measure", "--chain", "../../chains/demo.toml", "--amplitude", "nan"}, exitUsage},
+		{"NaN knob in an override", []string{"render", "--chain", "../../chains/demo.toml", "--in", dry, "--out", out, "--set", "fuzz.fuzz=NaN"}, exitFailure},
+		{"library field mapped to its flag", []string{"measure", "--chain", "../../chains/demo.toml", "--harmonics", "1"}, exitUsage},
 	}
 	for _, tc := range cases {
 		if got := run(append([]string{"renderchain"}, tc.args...)); got != tc.want {

@@ -1,13 +1,13 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 
 	"github.com/urfave/cli/v2"
 
 	"renderchain/chains"
 	"renderchain/measure"
+	"renderchain/models"
 	"renderchain/plotting"
 )
 
@@ -41,7 +41,7 @@ func measureCommand() *cli.Command {
 			&cli.StringFlag{Name: "freq", Aliases: []string{"f"}, Value: "1kHz", Usage: "test frequency (5 Hz up to below half the rate)"},
 			&cli.StringFlag{Name: "amplitude", Aliases: []string{"a"}, Value: "100mV", Usage: "source amplitude: 100mV (peak), 20mVpp, 70.7mVrms, -20dBV"},
 			familySetFlag,
-			&cli.StringFlag{Name: "supply", Usage: "one measurement per supply voltage in the `V,V,…` list (plain numbers are volts)"},
+			&cli.StringFlag{Name: "supply", Usage: "one measurement per supply voltage in the `V,V,…` list (plain numbers are volts; the chain file's polarity is kept)"},
 			&cli.StringFlag{Name: "temp", Usage: "one measurement per temperature in the `C,C,…` list (plain numbers are °C)"},
 			&cli.StringFlag{Name: "sweep-level", Usage: "step the source amplitude over `FROM..TO` in logarithmic steps, e.g. 1mV..1V"},
 			&cli.StringFlag{Name: "sweep-knob", Usage: "step a knob over `STAGE.KNOB=FROM..TO` in linear steps, e.g. fuzz.fuzz=0..1"},
@@ -59,6 +59,7 @@ func measureCommand() *cli.Command {
 			workersFlag,
 			quietFlag,
 		},
+		Before: requireFlags("chain"),
 		Action: runMeasure,
 	}
 }
@@ -78,41 +79,31 @@ func runMeasure(c *cli.Context) error {
 	if c.IsSet("sweep-level") && c.IsSet("amplitude") {
 		return usagef("--amplitude and --sweep-level exclude each other: the sweep sets the amplitude")
 	}
-	if n := c.Int("oversample"); c.IsSet("oversample") && (n < 1 || n > 16) {
-		return usagef("--oversample %d is outside 1…16", n)
-	}
 	plotPath := c.String("plot")
 	if plotPath != "" {
 		if _, err := plotting.FormatOf(plotPath); err != nil {
 			return usagef("--plot: %v", err)
 		}
 	}
-	freq, err := measure.ParseFrequency(c.String("freq"))
+	freq, err := parseFlag(c, "freq", models.ParseFrequency)
 	if err != nil {
-		return usage(err)
+		return err
 	}
-	amp, err := measure.ParseAmplitude(c.String("amplitude"))
+	amp, err := parseFlag(c, "amplitude", models.ParseAmplitude)
 	if err != nil {
-		return usage(err)
+		return err
 	}
-	sets := c.StringSlice("set")
-	if s := c.String("supply"); s != "" {
-		kv, err := measure.SupplySet(s)
-		if err != nil {
-			return usage(err)
-		}
-		sets = append(sets, kv)
+	ch, err := chains.Load(c.String("chain"))
+	if err != nil {
+		return err
 	}
-	if s := c.String("temp"); s != "" {
-		kv, err := measure.TemperatureSet(s)
-		if err != nil {
-			return usage(err)
-		}
-		sets = append(sets, kv)
+	sets, err := conditionSets(c, ch, c.StringSlice("set"))
+	if err != nil {
+		return err
 	}
 	variants, err := measure.Expand(sets)
 	if err != nil {
-		return usage(err)
+		return err
 	}
 	var sweep *measure.Sweep
 	switch {
@@ -121,10 +112,6 @@ func runMeasure(c *cli.Context) error {
 	case c.IsSet("sweep-knob"):
 		sweep, err = measure.ParseKnobSweep(c.String("sweep-knob"), c.Int("steps"))
 	}
-	if err != nil {
-		return usage(err)
-	}
-	ch, err := chains.Load(c.String("chain"))
 	if err != nil {
 		return err
 	}
@@ -146,7 +133,7 @@ func runMeasure(c *cli.Context) error {
 	rep, err := measure.Run(c.Context, ch, plan)
 	done()
 	if err != nil {
-		return usage(err)
+		return err
 	}
 	if plotPath != "" {
 		fig, err := rep.Figure()
@@ -173,12 +160,23 @@ func runMeasure(c *cli.Context) error {
 	return rep.WriteTable(c.App.Writer)
 }
 
-// usage turns a bad command-line value into a usage error (exit 2); other
-// errors pass through.
-func usage(err error) error {
-	var ie *measure.InputError
-	if errors.As(err, &ie) {
-		return usagef("%s", ie.Error())
+// conditionSets adds the --supply and --temp lists to the overrides as
+// families: each supply read by models.ParseSupplies with the chain file's
+// polarity (the supply rule), each temperature by models.ParseTemperatures.
+func conditionSets(c *cli.Context, ch *chains.Chain, sets []string) ([]string, error) {
+	if c.IsSet("supply") {
+		v, err := parseListFlag(c, "supply", func(s string) ([]float64, error) { return models.ParseSupplies(s, ch.Supply) })
+		if err != nil {
+			return nil, err
+		}
+		sets = append(sets, measure.SupplyFamily(v))
 	}
-	return err
+	if c.IsSet("temp") {
+		v, err := parseListFlag(c, "temp", models.ParseTemperatures)
+		if err != nil {
+			return nil, err
+		}
+		sets = append(sets, measure.TemperatureFamily(v))
+	}
+	return sets, nil
 }

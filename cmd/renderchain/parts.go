@@ -8,8 +8,8 @@ import (
 
 	"github.com/urfave/cli/v2"
 
-	"renderchain/bench"
 	"renderchain/models"
+	"renderchain/parts"
 )
 
 func partsCommand() *cli.Command {
@@ -24,6 +24,7 @@ func partsCommand() *cli.Command {
 			&cli.BoolFlag{Name: "csv", Usage: "print the list as CSV (one row per part)"},
 			&cli.BoolFlag{Name: "all-stages", Usage: "list the pickup and amplifier-input stages too"},
 		},
+		Before: requireFlags("chain"),
 		Action: func(c *cli.Context) error {
 			if c.NArg() > 0 {
 				return usagef("parts takes no arguments (got %q)", c.Args().First())
@@ -35,7 +36,7 @@ func partsCommand() *cli.Command {
 			if err != nil {
 				return err
 			}
-			bom, err := bench.PartsList(ch, c.Bool("all-stages"))
+			bom, err := parts.PartsList(ch, c.Bool("all-stages"))
 			if err != nil {
 				return err
 			}
@@ -51,7 +52,7 @@ func partsCommand() *cli.Command {
 	}
 }
 
-func partsPrint(w io.Writer, b *bench.BOM) {
+func partsPrint(w io.Writer, b *parts.BOM) {
 	fmt.Fprintf(w, "%s (%s), %s supply\n\n", b.Chain, b.File, models.FormatValue(b.Supply, "V"))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "ref\tkind\tvalue\tE12\tE24\ttol\tidle P\trating\tnote")

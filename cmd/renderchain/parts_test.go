@@ -6,19 +6,19 @@ import (
 	"strings"
 	"testing"
 
-	"renderchain/bench"
+	"renderchain/parts"
 )
 
 func TestPartsCLI(t *testing.T) {
-	code, out, errs := benchRun(t, "parts", "--chain", "../../chains/demo.toml", "--csv")
+	code, out, errs := capture(t, "parts", "--chain", "../../chains/demo.toml", "--csv")
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	recs, err := csv.NewReader(strings.NewReader(out)).ReadAll()
-	if err != nil || len(recs) < 10 || strings.Join(recs[0], ",") != strings.Join(bench.CSVHeader, ",") {
+	if err != nil || len(recs) < 10 || strings.Join(recs[0], ",") != strings.Join(parts.CSVHeader, ",") {
 		t.Fatalf("CSV: %v, %d records", err, len(recs))
 	}
-	code, out, _ = benchRun(t, "parts", "--chain", "../../chains/demo.toml", "--json")
+	code, out, _ = capture(t, "parts", "--chain", "../../chains/demo.toml", "--json")
 	var b struct {
 		Parts []struct {
 			Ref, Kind, E12, E24, Rating string
@@ -35,11 +35,11 @@ func TestPartsCLI(t *testing.T) {
 			t.Errorf("%s: no E12/E24 value", p.Ref)
 		}
 	}
-	code, out, _ = benchRun(t, "parts", "--chain", "../../chains/demo.toml")
+	code, out, _ = capture(t, "parts", "--chain", "../../chains/demo.toml")
 	if code != exitOK || !strings.Contains(out, "to order:") {
 		t.Errorf("text: exit %d\n%s", code, out)
 	}
-	if code, _, _ := benchRun(t, "parts", "--chain", "../../chains/demo.toml", "--csv", "--json"); code != exitUsage {
+	if code, _, _ := capture(t, "parts", "--chain", "../../chains/demo.toml", "--csv", "--json"); code != exitUsage {
 		t.Errorf("--csv --json: exit %d", code)
 	}
 }

@@ -7,6 +7,7 @@ import (
 
 	"github.com/urfave/cli/v2"
 
+	"renderchain/engine"
 	"renderchain/render"
 )
 
@@ -17,26 +18,24 @@ func renderCommand() *cli.Command {
 		UsageText: "renderchain render --chain F --in DRY.wav --out WET.wav [--set K=V]… [--oversample N] [--report R.json]",
 		Flags: []cli.Flag{
 			chainFlag,
-			&cli.StringFlag{Name: "in", Aliases: []string{"i"}, Usage: "dry WAV (PCM 8–32 bit or float, mono/stereo, 44.1–192 kHz)", Required: true},
-			&cli.StringFlag{Name: "out", Aliases: []string{"o"}, Usage: "wet WAV to write", Required: true},
+			&cli.StringFlag{Name: "in", Aliases: []string{"i"}, Usage: "dry WAV (PCM 8–32 bit or float, mono/stereo, 44.1–192 kHz), required"},
+			&cli.StringFlag{Name: "out", Aliases: []string{"o"}, Usage: "wet WAV to write, required"},
 			setFlag,
-			&cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16 (default: the chain's, else 4)"},
+			oversampleFlag,
 			&cli.StringFlag{Name: "format", Value: render.FormatPCM24, Usage: "output samples: pcm24, pcm16 or float32"},
 			&cli.StringFlag{Name: "report", Usage: "write the render report as JSON to `FILE`"},
 			quietFlag,
 		},
+		Before: requireFlags("chain", "in", "out"),
 		Action: func(c *cli.Context) error {
 			if c.NArg() > 0 {
 				return usagef("render takes no arguments (got %q); use --in and --out", c.Args().First())
-			}
-			if n := c.Int("oversample"); c.IsSet("oversample") && (n < 1 || n > 16) {
-				return usagef("--oversample %d is outside 1…16", n)
 			}
 			ch, err := loadChain(c)
 			if err != nil {
 				return err
 			}
-			eng, err := render.Prepare(ch, c.Int("oversample"))
+			eng, err := engine.Prepare(ch, c.Int("oversample"))
 			if err != nil {
 				return err
 			}
@@ -63,8 +62,8 @@ func renderCommand() *cli.Command {
 // printSummary writes the short human summary of a render.
 func printSummary(w io.Writer, r *render.Report) {
 	fmt.Fprintf(w, "%s → %s (%.1f s, %d ch, %d Hz; %dx oversampled)\n", r.Input.File, r.Output.File, r.Input.Seconds, r.Input.Channels, r.Input.SampleRate, r.Solver.Oversample)
-	fmt.Fprintf(w, "  dry  peak %7.2f dBFS  RMS %7.2f dBFS  crest %5.2f dB\n", float64(r.Input.PeakDBFS), float64(r.Input.RMSDBFS), float64(r.Input.CrestDB))
-	fmt.Fprintf(w, "  wet  peak %7.2f dBFS  RMS %7.2f dBFS  crest %5.2f dB  clipped %d\n", float64(r.Output.PeakDBFS), float64(r.Output.RMSDBFS), float64(r.Output.CrestDB), r.Output.ClippedSamples)
+	fmt.Fprintf(w, "  dry  peak %12s  RMS %12s  crest %8s\n", level(r.Input.PeakDBFS, 2, "dBFS"), level(r.Input.RMSDBFS, 2, "dBFS"), level(r.Input.CrestDB, 2, "dB"))
+	fmt.Fprintf(w, "  wet  peak %12s  RMS %12s  crest %8s  clipped %d\n", level(r.Output.PeakDBFS, 2, "dBFS"), level(r.Output.RMSDBFS, 2, "dBFS"), level(r.Output.CrestDB, 2, "dB"), r.Output.ClippedSamples)
 	fmt.Fprintf(w, "  solver  mean %.2f / max %d Newton iterations, %d fallbacks, %d not converged; %.1fx realtime\n",
 		r.Solver.MeanIterations, r.Solver.MaxIterations, r.Solver.Fallbacks, r.Solver.NonConverged, r.RealtimeFactor)
 	for _, warn := range r.Warnings {

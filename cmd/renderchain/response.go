@@ -7,6 +7,7 @@ import (
 
 	"renderchain/chains"
 	"renderchain/measure"
+	"renderchain/models"
 	"renderchain/plotting"
 )
 
@@ -43,6 +44,7 @@ func responseCommand() *cli.Command {
 			workersFlag,
 			quietFlag,
 		},
+		Before: requireFlags("chain"),
 		Action: runResponse,
 	}
 }
@@ -53,9 +55,6 @@ func runResponse(c *cli.Context) error {
 	}
 	if c.Bool("json") && c.Bool("csv") {
 		return usagef("--json and --csv exclude each other")
-	}
-	if n := c.Int("oversample"); c.IsSet("oversample") && (n < 1 || n > 16) {
-		return usagef("--oversample %d is outside 1…16", n)
 	}
 	if c.Bool("swept") && c.IsSet("ref") {
 		return usagef("--ref works with the small-signal response only, not with --swept")
@@ -73,35 +72,13 @@ func runResponse(c *cli.Context) error {
 			return usagef("--plot: %v", err)
 		}
 	}
-	var freqs []float64
-	var err error
-	if c.IsSet("freqs") {
-		if c.IsSet("from") || c.IsSet("to") || c.IsSet("points") {
-			return usagef("--freqs excludes --from, --to and --points")
-		}
-		if freqs, err = measure.ParseFrequencies(c.String("freqs")); err != nil {
-			return usage(err)
-		}
-	} else {
-		lo, err := measure.ParseFrequency(c.String("from"))
-		if err != nil {
-			return usage(err)
-		}
-		hi, err := measure.ParseFrequency(c.String("to"))
-		if err != nil {
-			return usage(err)
-		}
-		if !(hi > lo) {
-			return usagef("--from %s --to %s: bounds are reversed or equal", c.String("from"), c.String("to"))
-		}
-		if n := c.Int("points"); n < 2 || n > 10000 {
-			return usagef("--points %d is outside 2…10000", n)
-		}
-		freqs = measure.LogGrid(lo, hi, c.Int("points"))
+	freqs, err := responseFreqs(c)
+	if err != nil {
+		return err
 	}
 	variants, err := measure.Expand(c.StringSlice("set"))
 	if err != nil {
-		return usage(err)
+		return err
 	}
 	ch, err := chains.Load(c.String("chain"))
 	if err != nil {
@@ -109,9 +86,9 @@ func runResponse(c *cli.Context) error {
 	}
 	var rep *measure.ResponseReport
 	if c.Bool("swept") {
-		amp, err := measure.ParseAmplitude(c.String("amplitude"))
+		amp, err := parseFlag(c, "amplitude", models.ParseAmplitude)
 		if err != nil {
-			return usage(err)
+			return err
 		}
 		_, done := progress(c.Bool("quiet"), "sweeping")
 		rep, err = measure.RunSwept(c.Context, ch, variants, freqs, measure.SweptOptions{
@@ -120,14 +97,14 @@ func runResponse(c *cli.Context) error {
 		}, c.Int("workers"))
 		done()
 		if err != nil {
-			return usage(err)
+			return err
 		}
 	} else {
 		rep, err = measure.RunResponse(c.Context, ch, variants, freqs, measure.ResponseOptions{
 			Probe: c.String("probe"), Ref: c.String("ref"), SampleRate: c.Float64("rate"), Oversample: c.Int("oversample"),
 		})
 		if err != nil {
-			return usage(err)
+			return err
 		}
 	}
 	if plotPath != "" {
@@ -142,4 +119,29 @@ func runResponse(c *cli.Context) error {
 		return rep.WriteCSV(c.App.Writer)
 	}
 	return rep.WriteTable(c.App.Writer)
+}
+
+// responseFreqs reads --freqs, or the --from/--to/--points grid.
+func responseFreqs(c *cli.Context) ([]float64, error) {
+	if c.IsSet("freqs") {
+		if c.IsSet("from") || c.IsSet("to") || c.IsSet("points") {
+			return nil, usagef("--freqs excludes --from, --to and --points")
+		}
+		return parseListFlag(c, "freqs", models.ParseFrequencies)
+	}
+	lo, err := parseFlag(c, "from", models.ParseFrequency)
+	if err != nil {
+		return nil, err
+	}
+	hi, err := parseFlag(c, "to", models.ParseFrequency)
+	if err != nil {
+		return nil, err
+	}
+	if !(hi > lo) {
+		return nil, usagef("--from %s --to %s: bounds are reversed or equal", c.String("from"), c.String("to"))
+	}
+	if n := c.Int("points"); n < 2 || n > 10000 {
+		return nil, usagef("--points %d is outside 2…10000", n)
+	}
+	return measure.LogGrid(lo, hi, c.Int("points")), nil
 }

@@ -14,10 +14,10 @@ import (
 func TestSpreadCLI(t *testing.T) {
 	dir := t.TempDir()
 	csvPath := filepath.Join(dir, "trials.csv")
-	args := []string{"spread", "--chain", benchChain, "--trials", "12", "--seed", "9", "--no-thd", "--hfe-bin", "110,140,215,393",
+	args := []string{"spread", "--chain", benchChain, "--trials", "12", "--seed", "9", "--no-thd", "--hfe-bin", "126,158,182,231,268,304",
 		"--spec", "fuzz.Q2.vc=4..5V", "--json", "-q"}
-	c1, out1, e1 := benchRun(t, append(args, "--workers", "1", "--trials-csv", csvPath)...)
-	c2, out2, _ := benchRun(t, append(args, "--workers", "2")...)
+	c1, out1, e1 := capture(t, append(args, "--workers", "1", "--trials-csv", csvPath)...)
+	c2, out2, _ := capture(t, append(args, "--workers", "2")...)
 	if c1 != exitOK || c2 != exitOK || out1 != out2 {
 		t.Fatalf("exits %d %d (%s); outputs equal %v", c1, c2, e1, out1 == out2)
 	}
@@ -41,7 +41,7 @@ func TestSpreadCLI(t *testing.T) {
 		t.Errorf("CSV: %v, %d rows", err, len(rows))
 	}
 	// No trial meets a spec: a message, not a failure.
-	code, out, _ := benchRun(t, "spread", "--chain", benchChain, "--trials", "4", "--no-thd", "--spec", "fuzz.Q2.vc=20..30V", "-q")
+	code, out, _ := capture(t, "spread", "--chain", benchChain, "--trials", "4", "--no-thd", "--spec", "fuzz.Q2.vc=20..30V", "-q")
 	if code != exitOK || !strings.Contains(out, "no trial meets fuzz.Q2.vc=20..30V") {
 		t.Errorf("exit %d:\n%s", code, out)
 	}
@@ -59,7 +59,7 @@ func TestSpreadBadInput(t *testing.T) {
 		{"--adjust", "fuzz.trim2"},
 		{"--no-thd", "--spec", "thd=..10%"},
 	} {
-		code, _, errs := benchRun(t, append([]string{"spread", "--chain", benchChain, "--trials", "2", "-q"}, args...)...)
+		code, _, errs := capture(t, append([]string{"spread", "--chain", benchChain, "--trials", "2", "-q"}, args...)...)
 		if code != exitUsage || strings.Count(strings.TrimSpace(errs), "\n") != 0 || errs == "" {
 			t.Errorf("%v: exit %d, stderr %q", args, code, errs)
 		}

@@ -54,8 +54,8 @@ func templatesCommand() *cli.Command {
 }
 
 func partValue(p *chains.Part) string {
-	switch p.Kind {
-	case "diode", "npn", "pnp":
+	switch {
+	case p.Kind.Device():
 		s := p.Model
 		for _, k := range []string{"hfe", "is", "n", "br", "icbo"} {
 			if v, ok := p.Params[k]; ok {
@@ -63,7 +63,7 @@ func partValue(p *chains.Part) string {
 			}
 		}
 		return strings.TrimSpace(s)
-	case "pot":
+	case p.Kind == chains.Pot:
 		return p.Text + " " + p.Taper.String() + " (knob " + p.Knob + ")"
 	}
 	return p.Text
@@ -103,7 +103,7 @@ func templatesJSON(list []*chains.Template) []templateJSON {
 	for _, t := range list {
 		tj := templateJSON{Name: t.Name, About: t.About, Knobs: t.Knobs}
 		for _, p := range t.Parts {
-			tj.Parts = append(tj.Parts, partJSON{Ref: p.Ref, Kind: p.Kind, Value: partValue(p), Pins: pins(p), About: p.About})
+			tj.Parts = append(tj.Parts, partJSON{Ref: p.Ref, Kind: p.Kind.String(), Value: partValue(p), Pins: pins(p), About: p.About})
 		}
 		out = append(out, tj)
 	}

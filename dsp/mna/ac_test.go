@@ -19,6 +19,23 @@ func logspace(lo, hi float64, n int) []float64 {
 
 func cRelErr(got, want complex128) float64 { return cmplx.Abs(got-want) / cmplx.Abs(want) }
 
+// compareResponse checks the first probe of an AC result against a
+// closed form at each frequency, reporting errors above tol relative, and
+// returns the worst relative error.
+func compareResponse(t *testing.T, name string, freqs []float64, got [][]complex128, want func(f float64) complex128, tol float64) float64 {
+	t.Helper()
+	worst := 0.0
+	for i, f := range freqs {
+		w := want(f)
+		e := cRelErr(got[i][0], w)
+		worst = math.Max(worst, e)
+		if e > tol {
+			t.Errorf("%s at %g Hz: H = %v, reference %v (rel err %.2g > %.2g)", name, f, got[i][0], w, e, tol)
+		}
+	}
+	return worst
+}
+
 // TestACLowPass: an RC low-pass against H(jω) = 1/(1 + jωRC), the
 // first-order transfer function of every circuit text. Tolerance 1e-9
 // relative: Gaussian elimination on a 3×3 complex system with entries

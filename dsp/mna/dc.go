@@ -14,7 +14,8 @@ type OperatingPoint struct {
 	Node []float64
 	// Branch holds the DC current of each voltage source, buffer and
 	// inductor, by element index (current from the first pin through the
-	// element to the second).
+	// element to the second); for an ideal transformer, the current into
+	// the start of its second winding.
 	Branch map[int]float64
 	// Devices are the nonlinear devices with their port voltages, currents
 	// and Jacobians at the operating point.
@@ -174,16 +175,15 @@ func (s *dcSolver) resetDevices() {
 func (s *dcSolver) stampLinear(gmin, lambda float64) {
 	sys := s.sys
 	sys.Reset()
-	for i, e := range s.c.Elements {
+	for i := range s.c.Elements {
+		e := &s.c.Elements[i]
 		switch e.Kind {
 		case models.ResistorKind:
 			sys.Conductance(e.Nodes[0], e.Nodes[1], 1/e.Value)
 		case models.InductorKind:
 			sys.Branch(i, e.Nodes[0], e.Nodes[1], 0, 0)
-		case models.VoltageSourceKind:
-			sys.Branch(i, e.Nodes[0], e.Nodes[1], 0, lambda*e.Value)
-		case models.BufferKind:
-			sys.Buffer(i, e.Nodes[0], e.Nodes[1])
+		default:
+			sys.Ideal(i, e, lambda*e.Value)
 		}
 	}
 	if gmin > 0 {

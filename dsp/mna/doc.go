@@ -7,10 +7,17 @@
 //
 // The unknowns are the voltages of every node but ground, then one current
 // per branch whose voltage is fixed: ideal voltage sources, ideal
-// buffers and, where the analysis needs it, inductors (Layout). Real holds
-// a real system A·x = z being stamped; LU factors it densely with partial
+// buffers, the windings after the first of an ideal transformer and,
+// where the analysis needs it, inductors (Layout). Real holds a real
+// system A·x = z being stamped; LU factors it densely with partial
 // pivoting in preallocated storage, so repeated Newton steps do not
 // allocate. A pivot below 1e-15 of the largest entry is ErrSingular.
+//
+// Real.Ideal is the one stamp of the ideal linear elements (voltage
+// sources, buffers, voltage-controlled current sources, ideal
+// transformers of N windings) that DC, AC, the transient reference and
+// the wave digital adaptor all use, so a new linear kind is added in one
+// place.
 //
 // # DC
 //
@@ -27,17 +34,32 @@
 //
 // # AC
 //
-// AC linearises the circuit at an operating point (each device replaced by
-// its Jacobian, capacitors by jωC, inductors by jωL, DC sources by shorts)
-// and drives the signal source with a 1 V phasor, returning the complex
-// voltage of each probe node per frequency: a transfer function in V/V.
+// Linearize returns the small-signal system at an operating point as real
+// matrices, (G + jωC)·x = B: G the conductances (with each device's
+// Jacobian), C the capacitances (capacitors, −L in each inductor's branch
+// row, each charge-storing device's capacitance matrix), B the unit
+// signal source. AC solves it per frequency and returns the complex
+// voltage of each probe node: a transfer function in V/V.
+//
+// # Poles
+//
+// Poles returns the natural frequencies of the linearised circuit, the
+// finite generalised eigenvalues of the pencil (G, C): s = −1/μ for the
+// nonzero eigenvalues μ of G⁻¹·C (G is the DC system, regular wherever a
+// DC operating point exists), up to MaxPoleHz. A pole with a positive
+// real part (Unstable) means the built circuit does not rest at its
+// operating point: it oscillates near |Im s|/2π, or latches when the
+// pole is real. The slowest stable pole tells how long the circuit takes
+// to forget its start.
 //
 // # Transient
 //
 // Transient steps the circuit at a fixed sample rate with trapezoidal
-// companion models for capacitors and inductors, the same bilinear
-// discretisation as the wave digital solver, and a full Newton solve per
-// sample. It is slow and exists to check the fast solver against.
+// companion models for capacitors, inductors and the port charges of
+// charge-storing devices (models.Charged: i = (2/h)·(q − q_prev) − i_prev,
+// which conserves charge exactly), the same bilinear discretisation as
+// the wave digital solver, and a full Newton solve per sample. It is slow
+// and exists to check the fast solver against. DC ignores device charges.
 //
 // # References
 //
@@ -51,7 +73,8 @@
 //   - J. Vlach and K. Singhal, "Computer Methods for Circuit Analysis and
 //     Design", 2nd ed., 1994, sec. 11.3.
 //   - G. H. Golub and C. F. Van Loan, "Matrix Computations", 4th ed.,
-//     2013, alg. 3.4.1 (LU with partial pivoting).
+//     2013, alg. 3.4.1 (LU with partial pivoting), sec. 7.7 (the
+//     generalised eigenvalue problem).
 //
 // # Non-goals
 //

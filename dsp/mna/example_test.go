@@ -2,6 +2,8 @@ package mna_test
 
 import (
 	"fmt"
+	"math"
+	"math/cmplx"
 
 	"renderchain/dsp/mna"
 	"renderchain/models"
@@ -31,4 +33,32 @@ func ExampleSolveDC() {
 	// I(V1) = -842.7 µA
 	// I(D1) = 842.7 µA
 	// method: newton
+}
+
+// Linearize gives the small-signal system (G + jωC)·x = B of a circuit at
+// its operating point; here an RC low-pass, whose output row shows the
+// conductance 1/R and the capacitance C. AC solves the same system.
+func ExampleLinearize() {
+	c := models.NewCircuit("RC low-pass", models.NominalTemperature)
+	in, out := c.Node("in"), c.Node("out")
+	c.Add(models.Element{Ref: "V1", Kind: models.VoltageSourceKind, Nodes: []int{in, models.Ground}, Signal: true})
+	c.Add(models.Element{Ref: "R1", Kind: models.ResistorKind, Nodes: []int{in, out}, Value: 10e3})
+	c.Add(models.Element{Ref: "C1", Kind: models.CapacitorKind, Nodes: []int{out, models.Ground}, Value: 10e-9})
+	op, err := mna.SolveDC(c, mna.DCOptions{})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	ss := mna.Linearize(c, op)
+	r, d := ss.Layout.Row(out), ss.Layout.Dim
+	fmt.Printf("unknowns: %d\n", d)
+	fmt.Printf("G[out][out] = %s\n", models.FormatValue(ss.G[r*d+r], "S"))
+	fmt.Printf("C[out][out] = %s\n", models.FormatValue(ss.C[r*d+r], "F"))
+	h, _ := mna.AC(c, op, []float64{1 / (2 * math.Pi * 10e3 * 10e-9)}, []int{out})
+	fmt.Printf("|H| at the corner = %.4f\n", cmplx.Abs(h[0][0]))
+	// Output:
+	// unknowns: 3
+	// G[out][out] = 100 µS
+	// C[out][out] = 10 nF
+	// |H| at the corner = 0.7071
 }

@@ -7,26 +7,32 @@ import (
 )
 
 // Transient is a brute-force time-domain solver: modified nodal analysis
-// with trapezoidal companion models for capacitors and inductors (Chua &
+// with trapezoidal companion models for capacitors, inductors and the
+// port charges of charge-storing devices (models.Charged) (Chua &
 // Lin, "Computer-Aided Analysis of Electronic Circuits", 1975, ch. 13;
 // Vlach & Singhal, "Computer Methods for Circuit Analysis and Design",
 // 2nd ed., sec. 11.3) and a full Newton solve of the whole system at every
 // step. It is slow and is kept as an independent reference for the wave
 // digital solver, which discretises with the same bilinear rule.
 type Transient struct {
-	c     *models.Circuit
-	lay   *Layout
-	sys   *Real
-	lu    *LU
-	x     []float64
-	h     float64
-	capV  map[int]float64 // previous voltage of each capacitor
-	capI  map[int]float64 // previous current
-	indV  map[int]float64
-	indI  map[int]float64
-	devs  []DeviceState
-	vold  [][]float64
-	input int // element index of the signal source, −1 if none
+	c    *models.Circuit
+	lay  *Layout
+	sys  *Real
+	lu   *LU
+	x    []float64
+	h    float64
+	capV map[int]float64 // previous voltage of each capacitor
+	capI map[int]float64 // previous current
+	indV map[int]float64
+	indI map[int]float64
+	devs []DeviceState
+	vold [][]float64
+	// Charge state of each charge-storing device (nil entries for the
+	// others): the port charges and capacitive port currents of the last
+	// step, and scratch for the present iterate.
+	qPrev, iqPrev [][]float64
+	q, cm, iq     [][]float64
+	input         int // element index of the signal source, −1 if none
 	// Tol is the Newton step tolerance, relative to the largest unknown
 	// plus one (default 1e-12).
 	Tol float64
@@ -59,8 +65,35 @@ func NewTransient(c *models.Circuit, fs float64, op *OperatingPoint) *Transient 
 		p := len(d.V)
 		t.devs = append(t.devs, DeviceState{DeviceInstance: d.DeviceInstance, V: make([]float64, p), I: make([]float64, p), Jac: make([]float64, p*p)})
 		t.vold = append(t.vold, append([]float64(nil), d.V...))
+		var qp, iqp, q, cm, iq []float64
+		if ch, ok := d.Model.(models.Charged); ok && hasCharges(d.Model) {
+			qp, iqp, q, cm, iq = make([]float64, p), make([]float64, p), make([]float64, p), make([]float64, p*p), make([]float64, p)
+			ch.Charges(d.V, qp, cm) // at rest: the DC charges, no current
+		}
+		t.qPrev, t.iqPrev = append(t.qPrev, qp), append(t.iqPrev, iqp)
+		t.q, t.cm, t.iq = append(t.q, q), append(t.cm, cm), append(t.iq, iq)
 	}
 	return t
+}
+
+// charge adds device k's capacitive port currents and their Jacobian to
+// d.I and d.Jac at port voltages d.V, by the trapezoidal rule on the port
+// charges: i = (2/h)·(q − q_prev) − i_prev, di/dv = (2/h)·dq/dv (the
+// companion model of a nonlinear capacitor, Chua & Lin 1975, ch. 13).
+func (t *Transient) charge(k int, d *DeviceState) {
+	if t.q[k] == nil {
+		return
+	}
+	q, cm, iq := t.q[k], t.cm[k], t.iq[k]
+	d.Model.(models.Charged).Charges(d.V, q, cm)
+	g := 2 / t.h
+	for j := range q {
+		iq[j] = g*(q[j]-t.qPrev[k][j]) - t.iqPrev[k][j]
+		d.I[j] += iq[j]
+	}
+	for j := range cm {
+		d.Jac[j] += g * cm[j]
+	}
 }
 
 // Step advances one sample with the signal source at its DC value plus vin
@@ -71,7 +104,8 @@ func (t *Transient) Step(vin float64) (int, error) {
 	for it := 1; it <= maxIter; it++ {
 		s := t.sys
 		s.Reset()
-		for i, e := range t.c.Elements {
+		for i := range t.c.Elements {
+			e := &t.c.Elements[i]
 			a, b := e.Nodes[0], e.Nodes[1]
 			switch e.Kind {
 			case models.ResistorKind:
@@ -83,14 +117,12 @@ func (t *Transient) Step(vin float64) (int, error) {
 			case models.InductorKind:
 				r := 2 * e.Value / t.h
 				s.Branch(i, a, b, r, -r*t.indI[i]-t.indV[i])
-			case models.VoltageSourceKind:
+			default:
 				v := e.Value
 				if i == t.input {
 					v += vin
 				}
-				s.Branch(i, a, b, 0, v)
-			case models.BufferKind:
-				s.Buffer(i, a, b)
+				s.Ideal(i, e, v)
 			}
 		}
 		for k := range t.devs {
@@ -99,6 +131,7 @@ func (t *Transient) Step(vin float64) (int, error) {
 			d.Model.Limit(d.V, t.vold[k])
 			copy(t.vold[k], d.V)
 			d.Model.Eval(d.V, d.I, d.Jac)
+			t.charge(k, d)
 			s.Device(d.Ports, d.V, d.I, d.Jac)
 		}
 		if err := t.lu.Factor(s.A); err != nil {
@@ -122,6 +155,16 @@ func (t *Transient) Step(vin float64) (int, error) {
 }
 
 func (t *Transient) commit() {
+	for k := range t.devs {
+		if t.q[k] == nil {
+			continue
+		}
+		d := &t.devs[k]
+		portVoltages(t.x, d.Ports, d.V)
+		t.charge(k, d)
+		copy(t.qPrev[k], t.q[k])
+		copy(t.iqPrev[k], t.iq[k])
+	}
 	for i, e := range t.c.Elements {
 		switch e.Kind {
 		case models.CapacitorKind:

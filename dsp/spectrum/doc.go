@@ -2,7 +2,9 @@
 // harmonic analysis of a settled sine response (THD in its IEC forms,
 // THD+N, harmonic lines, DC, peaks and their asymmetry), one-third-octave
 // band levels of a long-term-average spectrum, the spectral centroid, the
-// crest factor, and the signal-to-alias ratio of a sine's response.
+// crest factor, and the signal-to-alias ratio of a sine's response; and
+// what a figure of it needs: a short-time spectrum (spectrogram), a dense
+// logarithmic frequency grid, phase unwrapping and group delay.
 //
 // # Harmonic analysis
 //
@@ -47,6 +49,28 @@
 // mean square of a full-scale sine (FullScaleMeanSquare, 1.0 peak), so a
 // full-scale sine reads 0 dB in its band. CrestMeter (also inside LTAS)
 // streams peak/RMS.
+//
+// # Short-time spectrum
+//
+// STFT (and NewSpectrogram for a whole signal) cuts a stream into frames
+// of a power-of-two length weighted by a periodic Hann window, one every
+// hop samples, and keeps each frame's one-sided bin levels in dB re a
+// full-scale sine, with the window's coherent gain divided out so an
+// on-bin sine reads its peak amplitude (a sine between bins reads up to
+// the Hann window's 1.42 dB scalloping loss low, Harris 1978). Frame f is
+// centred at (f·hop + N/2)/fs seconds. Memory grows with the frame count;
+// HopFor picks a hop that bounds it for a long file.
+//
+// # Frequency grids, phase and group delay
+//
+// DecadeGrid spaces frequencies evenly in log frequency on the exact
+// points 10^(k/n); PointsPerDecade (48) is the density response figures
+// use, chosen so that straight segments between points stay within
+// 0.0013 dB of any first-order section and 0.010·Q² dB of a second-order
+// one, wherever its corner lies (the reasoning is at the constant).
+// UnwrapDegrees removes ±360° jumps from a sampled phase; GroupDelay
+// differentiates an unwrapped phase against ln f with second-order
+// three-point formulas for uneven spacing.
 //
 // # References
 //

@@ -9,7 +9,8 @@
 // and WAVE_FORMAT_EXTENSIBLE (tag 0xFFFE) whose sub-format GUID is PCM or
 // IEEE float; 1 to 8 channels; 8 kHz to 384 kHz. Unknown chunks (LIST, fact,
 // JUNK, cue, ...) are skipped wherever they sit, including odd-sized chunks
-// followed by their pad byte. PCM codes are scaled to [-1, 1) by
+// followed by their pad byte, and odd-sized chunks whose writer forgot the
+// pad byte (tolerated and listed by Reader.Warnings). PCM codes are scaled to [-1, 1) by
 // 2^-(bits-1); 8-bit data is unsigned with a 128 offset.
 //
 // Writer encodes interleaved float64 samples as 16, 24 or 32-bit PCM
@@ -18,14 +19,27 @@
 // Writer for the header rules: EXTENSIBLE for more than two channels or PCM
 // deeper than 16 bits, plain tags otherwise.
 //
-// Output and CreateTemp write a file under a hidden temporary name in the
-// target directory and rename it into place on Commit; Abort removes it.
-// SameFile lets a command refuse to write over its own input.
+// NewStreamWriter writes to a destination that cannot seek (a FIFO, a
+// pipe, a device written in place): the header announces the frame count
+// up front and Close checks it.
+//
+// Float input is bounded: a sample beyond DefaultFloatLimit (+24 dBFS) or
+// the level set with Reader.SetFloatLimit stops Read at its frame, like a
+// NaN or an infinity, so an absurd sample never reaches a circuit model;
+// overs within the bound pass and are counted (Reader.Overs).
+//
+// Output, CreateTemp, WriteFile and WriteFileAtomic write one file through
+// the outputs package (checked before the work, a hidden temporary file
+// renamed into place on Commit, removed on Abort or a signal; a device or
+// FIFO written in place). A command with several outputs uses an
+// outputs.Set directly. SameFile is outputs.SameFile.
 //
 // Faults in the input are reported as *FormatError (structure and header)
-// or *SampleError (non-finite samples), each wrapping one sentinel such as
-// ErrTruncated or ErrNonFinite for errors.Is, with a one-line message naming
-// the byte offset or frame. Nothing in this package panics on file content.
+// or *SampleError (non-finite, over the bound, or beyond the output
+// format's range), each wrapping one sentinel such as ErrTruncated,
+// ErrNonFinite or ErrOverLimit for errors.Is, with a one-line message
+// naming the byte offset or frame and channel. Nothing in this package
+// panics on file content.
 //
 // # References
 //

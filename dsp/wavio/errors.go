@@ -36,6 +36,17 @@ var (
 	// ErrClosed reports use of a Writer after Close, or of an Output after
 	// Commit or Abort.
 	ErrClosed = errors.New("already closed")
+	// ErrOverLimit reports a float input sample beyond the Reader's level
+	// bound (DefaultFloatLimit, +24 dBFS, unless changed with
+	// SetFloatLimit). It is wrapped by *SampleError.
+	ErrOverLimit = errors.New("sample beyond the accepted level")
+	// ErrRange reports a finite sample the output format cannot hold (a
+	// float64 value beyond the float32 range). It is wrapped by
+	// *SampleError.
+	ErrRange = errors.New("sample beyond the output format's range")
+	// ErrFrameCount reports a stream writer given more or fewer frames
+	// than its header announced.
+	ErrFrameCount = errors.New("frame count differs from the header")
 )
 
 // FormatError describes a fault in the structure or header of a WAVE stream,
@@ -72,14 +83,24 @@ func (e *FormatError) Error() string {
 // Unwrap returns Kind, so errors.Is(err, ErrTruncated) and the like work.
 func (e *FormatError) Unwrap() error { return e.Kind }
 
-// SampleError reports a non-finite (NaN or ±Inf) sample, or a float64 value
-// that cannot be represented in a float32 output. It wraps ErrNonFinite.
+// SampleError reports a sample that cannot be taken: non-finite (NaN or
+// ±Inf, Kind ErrNonFinite), a float input sample beyond the Reader's level
+// bound (ErrOverLimit), or a value the output format cannot hold
+// (ErrRange).
 type SampleError struct {
 	Path    string  // file name when known, else ""
 	Frame   int64   // zero-based frame index in the stream
 	Channel int     // zero-based channel within the frame
 	Value   float64 // the offending value
+	Kind    error   // ErrNonFinite (also when nil), ErrOverLimit or ErrRange
 	Reason  string  // one-line detail
+}
+
+func (e *SampleError) kind() error {
+	if e.Kind == nil {
+		return ErrNonFinite
+	}
+	return e.Kind
 }
 
 func (e *SampleError) Error() string {
@@ -94,9 +115,14 @@ func (e *SampleError) Error() string {
 	b.WriteString(" channel ")
 	b.WriteString(strconv.Itoa(e.Channel))
 	b.WriteString(": ")
-	b.WriteString(ErrNonFinite.Error())
-	b.WriteString(" ")
-	b.WriteString(strconv.FormatFloat(e.Value, 'g', -1, 64))
+	b.WriteString(e.kind().Error())
+	b.WriteString(" (")
+	bits := 64
+	if float64(float32(e.Value)) == e.Value {
+		bits = 32 // the shortest form that reads back as this binary32 value: 1e+30, not 1.0000000150474662e+30
+	}
+	b.WriteString(strconv.FormatFloat(e.Value, 'g', -1, bits))
+	b.WriteString(")")
 	if e.Reason != "" {
 		b.WriteString(": ")
 		b.WriteString(e.Reason)
@@ -104,8 +130,8 @@ func (e *SampleError) Error() string {
 	return oneLine(b.String())
 }
 
-// Unwrap returns ErrNonFinite.
-func (e *SampleError) Unwrap() error { return ErrNonFinite }
+// Unwrap returns Kind (ErrNonFinite when unset).
+func (e *SampleError) Unwrap() error { return e.kind() }
 
 func fmtErr(off int64, kind error, reason string) *FormatError {
 	return &FormatError{Offset: off, Kind: kind, Reason: reason}

@@ -38,8 +38,26 @@ type Reader struct {
 	pos       int64 // data bytes consumed from r
 	frame     int64 // frames delivered to the caller
 	buf       []byte
-	err       error // sticky: io.EOF or the first fault
+	err       error   // sticky: io.EOF or the first fault
+	limit     float64 // largest |x| accepted from float data, at most MaxFloat64
+	overs     int64   // float samples delivered with |x| > 1
+	warnings  []string
 }
+
+// DefaultFloatLimit is the largest magnitude a Reader accepts from float
+// sample data unless SetFloatLimit changes it: 10^(24/20) ≈ 15.85, that is
+// +24 dBFS, with 1.0 as digital full scale (the float convention of the
+// WAVE format, from memory; the same full scale integer PCM decodes to).
+// Float files from audio software may go a few dB over full scale (a mix
+// bus that clipped, an effect's overshoot), so moderate overs pass and are
+// counted (Overs); 24 dB over is far beyond any such overshoot, and
+// feeding a circuit model a sample of 1e30 makes every later sample wrong
+// without an error. The bound is also what keeps one absurd sample from
+// driving a solver into thousands of non-converged steps.
+const DefaultFloatLimit = 15.848931924611133
+
+// DefaultFloatLimitDB is DefaultFloatLimit in dB relative to full scale.
+const DefaultFloatLimitDB = 24.0
 
 // NewReader parses the RIFF/WAVE header at the current position of r,
 // checks it, and positions r at the first sample. Offsets in errors are
@@ -91,7 +109,9 @@ func NewReader(r io.ReadSeeker) (*Reader, error) {
 		dataOff, dataSize int64
 		off               = int64(12) // offset of the next chunk header
 		lastID            [4]byte
-		lastOff, lastSize int64
+		lastOff           int64
+		lastSize          = int64(-1)
+		warnings          []string
 		fmtBody           [maxFmtBytes]byte
 		chunkHdr          [8]byte
 		dataSizeFieldOff  int64
@@ -110,6 +130,27 @@ func NewReader(r io.ReadSeeker) (*Reader, error) {
 			return nil, fmt.Errorf("wavio: reading chunk header at offset %d: %w", off, err)
 		}
 		id := [4]byte(chunkHdr[:4])
+		if !validChunkID(id) && lastSize%2 == 1 && off > 12 {
+			// Writers that forget the pad byte after an odd-sized chunk
+			// put the next header one byte early. Take it there when that
+			// is a proper chunk id and this is not.
+			var early [8]byte
+			if _, err := r.Seek(base+off-1, io.SeekStart); err == nil {
+				if _, err := io.ReadFull(r, early[:]); err == nil && validChunkID([4]byte(early[:4])) {
+					warnings = append(warnings, fmt.Sprintf("chunk %q at offset %d (%d bytes, odd) lacks its pad byte; read as if padded", lastID[:], lastOff, lastSize))
+					off--
+					chunkHdr = early
+					id = [4]byte(chunkHdr[:4])
+				}
+			}
+		}
+		if !validChunkID(id) {
+			what := "the RIFF header"
+			if lastSize >= 0 {
+				what = fmt.Sprintf("chunk %q at offset %d, which declares %d bytes", lastID[:], lastOff, lastSize)
+			}
+			return nil, fmtErr(off, ErrBadFormat, fmt.Sprintf("bytes %q are not a chunk id; the stream is damaged after %s", id[:], what))
+		}
 		size := int64(binary.LittleEndian.Uint32(chunkHdr[4:]))
 		body := off + 8
 		lastID, lastOff, lastSize = id, off, size
@@ -163,7 +204,7 @@ func NewReader(r io.ReadSeeker) (*Reader, error) {
 		return nil, fmt.Errorf("wavio: %w", err)
 	}
 
-	d := &Reader{r: r, f: f, bpf: bpf, dataStart: dataOff, dataSize: dataSize}
+	d := &Reader{r: r, f: f, bpf: bpf, dataStart: dataOff, dataSize: dataSize, limit: DefaultFloatLimit, warnings: warnings}
 	d.enc = encodingOf(f)
 	frames := max(1, readBufBytes/bpf)
 	if total := dataSize / int64(bpf); total < int64(frames) {
@@ -227,8 +268,10 @@ func parseFmt(b []byte, size, body int64) (Format, error) {
 	default:
 		return f, fmtErr(body, ErrUnsupported, "format tag "+tagName(tag))
 	}
-	if rate > math.MaxInt32 {
-		rate = math.MaxInt32 // only to keep the int conversion sane; rejected below
+	if rate > MaxSampleRate {
+		// Checked here, before the conversion to int, so that the message
+		// gives the rate the file declares (up to 4294967295 Hz).
+		return f, fmtErr(body+4, ErrUnsupported, fmt.Sprintf("sample rate %d Hz (accepted %d to %d Hz)", rate, MinSampleRate, MaxSampleRate))
 	}
 	f.SampleRate = int(rate)
 	if err := checkShape(f, body+2, body+4); err != nil {
@@ -246,6 +289,17 @@ func parseFmt(b []byte, size, body int64) (Format, error) {
 	return f, nil
 }
 
+// validChunkID reports whether id is a FOURCC: four printable ASCII
+// characters, space-padded (RIFF specification, 1991).
+func validChunkID(id [4]byte) bool {
+	for _, c := range id {
+		if c < 0x20 || c > 0x7E {
+			return false
+		}
+	}
+	return true
+}
+
 func guidString(g []byte) string {
 	return fmt.Sprintf("{%08X-%04X-%04X-%X-%X}",
 		binary.LittleEndian.Uint32(g[0:]), binary.LittleEndian.Uint16(g[4:]),
@@ -261,6 +315,27 @@ func (d *Reader) Format() Format { return d.f }
 // Frames returns the number of frames the data chunk holds.
 func (d *Reader) Frames() int64 { return d.dataSize / int64(d.bpf) }
 
+// SetFloatLimit sets the largest magnitude accepted from float sample data
+// (DefaultFloatLimit until set); a sample beyond it stops Read with a
+// *SampleError wrapping ErrOverLimit. +Inf accepts every finite value.
+// Integer PCM cannot exceed full scale and is not affected. A limit that is
+// not above zero is refused.
+func (d *Reader) SetFloatLimit(peak float64) error {
+	if !(peak > 0) {
+		return fmtErr(-1, ErrBadFormat, fmt.Sprintf("float limit %g: want a level above 0", peak))
+	}
+	d.limit = min(peak, math.MaxFloat64)
+	return nil
+}
+
+// Overs returns how many float samples delivered so far were beyond full
+// scale (|x| > 1) but within the limit, for a report to mention.
+func (d *Reader) Overs() int64 { return d.overs }
+
+// Warnings returns what the header walk tolerated (such as a missing pad
+// byte), one line each, for a report to mention.
+func (d *Reader) Warnings() []string { return d.warnings }
+
 // Read decodes up to len(dst) samples into dst, interleaved, and returns
 // the number of samples written, always a whole number of frames. It fills
 // dst unless the data ends first. Integer PCM is scaled to [-1, 1) by
@@ -270,8 +345,10 @@ func (d *Reader) Frames() int64 { return d.dataSize / int64(d.bpf) }
 // At the end of the data Read returns 0, io.EOF. If the stream ends early it
 // returns the whole frames that were present together with a *FormatError
 // wrapping ErrTruncated; a NaN or infinite float sample stops decoding just
-// before its frame with a *SampleError wrapping ErrNonFinite. Errors are
-// sticky. A dst shorter than one frame gives io.ErrShortBuffer.
+// before its frame with a *SampleError wrapping ErrNonFinite, and a float
+// sample beyond the limit (SetFloatLimit, DefaultFloatLimit) with one
+// wrapping ErrOverLimit, naming frame and channel, so a render stops before
+// the sample reaches the circuit. Errors are sticky. A dst shorter than one frame gives io.ErrShortBuffer.
 //
 // Read does not allocate.
 func (d *Reader) Read(dst []float64) (int, error) {
@@ -300,8 +377,7 @@ func (d *Reader) Read(dst []float64) (int, error) {
 		got := m / d.bpf
 		k, bad, badVal := d.decode(dst[n*ch:(n+got)*ch], b[:got*d.bpf])
 		if k < got {
-			d.err = &SampleError{Frame: d.frame + int64(k), Channel: bad, Value: badVal,
-				Reason: fmt.Sprintf("in %d-bit float data", d.f.BitDepth)}
+			d.err = d.sampleError(d.frame+int64(k), bad, badVal)
 			d.frame += int64(k)
 			return (n + k) * ch, d.err
 		}
@@ -321,9 +397,20 @@ func (d *Reader) Read(dst []float64) (int, error) {
 	return n * ch, nil
 }
 
+// sampleError describes the float sample that stopped decoding.
+func (d *Reader) sampleError(frame int64, ch int, v float64) *SampleError {
+	e := &SampleError{Frame: frame, Channel: ch, Value: v, Reason: fmt.Sprintf("in %d-bit float data", d.f.BitDepth)}
+	if !math.IsNaN(v) && !math.IsInf(v, 0) {
+		e.Kind = ErrOverLimit
+		e.Reason = fmt.Sprintf("float input is accepted up to ±%.4g (%+.1f dBFS); a sample this large means a damaged file or data not scaled to ±1",
+			d.limit, 20*math.Log10(d.limit))
+	}
+	return e
+}
+
 // decode converts src to dst (len(dst) samples). It returns the number of
 // whole frames decoded; when that is short, the channel and value of the
-// non-finite sample that stopped it.
+// float sample that stopped it (non-finite or beyond the limit).
 func (d *Reader) decode(dst []float64, src []byte) (frames, badCh int, badVal float64) {
 	ch := d.f.Channels
 	switch d.enc {
@@ -346,18 +433,28 @@ func (d *Reader) decode(dst []float64, src []byte) (frames, badCh int, badVal fl
 			dst[i] = float64(int32(binary.LittleEndian.Uint32(src[4*i:]))) * (1.0 / (1 << 31))
 		}
 	case encF32:
+		// d.limit is at most MaxFloat64, so the test also fails for ±Inf
+		// and, being a comparison, for NaN.
 		for i := range dst {
 			v := float64(math.Float32frombits(binary.LittleEndian.Uint32(src[4*i:])))
-			if math.IsNaN(v) || math.IsInf(v, 0) {
+			a := math.Abs(v)
+			if !(a <= d.limit) {
 				return i / ch, i % ch, v
+			}
+			if a > 1 {
+				d.overs++
 			}
 			dst[i] = v
 		}
 	case encF64:
 		for i := range dst {
 			v := math.Float64frombits(binary.LittleEndian.Uint64(src[8*i:]))
-			if math.IsNaN(v) || math.IsInf(v, 0) {
+			a := math.Abs(v)
+			if !(a <= d.limit) {
 				return i / ch, i % ch, v
+			}
+			if a > 1 {
+				d.overs++
 			}
 			dst[i] = v
 		}

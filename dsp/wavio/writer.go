@@ -41,8 +41,10 @@ const (
 // values beyond the float32 range in float32 output: Write returns a
 // *SampleError and writes nothing of that call.
 type Writer struct {
-	w         io.WriteSeeker
+	w         io.Writer
+	ws        io.Seeker // nil for a stream writer
 	f         Format
+	ext       bool // EXTENSIBLE header
 	enc       int
 	bps       int   // bytes per sample
 	base      int64 // offset of "RIFF" in w
@@ -52,57 +54,119 @@ type Writer struct {
 	dataBytes int64
 	frames    int64
 	clipped   int64
+	expect    int64 // frames announced by NewStreamWriter; -1 otherwise
 	buf       []byte
 	closed    bool
 	err       error // sticky I/O error
 }
 
 // NewWriter validates f, writes a WAVE header at the current position of w
-// and returns a Writer for the sample data. Accepted formats: integer PCM of
-// 16, 24 or 32 bits, IEEE float of 32 or 64 bits; 1 to MaxChannels channels;
-// MinSampleRate to MaxSampleRate Hz. Faults are *FormatError with Offset -1.
+// and returns a Writer for the sample data; Close seeks back to fill in the
+// sizes. Accepted formats: integer PCM of 16, 24 or 32 bits, IEEE float of
+// 32 or 64 bits; 1 to MaxChannels channels; MinSampleRate to MaxSampleRate
+// Hz. Faults are *FormatError with Offset -1.
 func NewWriter(w io.WriteSeeker, f Format) (*Writer, error) {
-	if err := checkShape(f, -1, -1); err != nil {
+	if err := checkWriteFormat(f); err != nil {
 		return nil, err
-	}
-	if err := checkEncoding(f); err != nil {
-		return nil, fmtErr(-1, ErrUnsupported, err.Error())
-	}
-	if !f.Float && f.BitDepth == 8 {
-		return nil, fmtErr(-1, ErrUnsupported, "8-bit PCM output (write 16, 24 or 32)")
 	}
 	base, err := w.Seek(0, io.SeekCurrent)
 	if err != nil {
 		return nil, fmt.Errorf("wavio: %w", err)
 	}
-
-	ext := f.Channels > 2 || (!f.Float && f.BitDepth > 16)
-	tag := uint16(tagPCM)
-	if f.Float {
-		tag = tagFloat
+	wr := newWriter(w, f, 0)
+	wr.ws, wr.base = w, base
+	if _, err := w.Write(wr.header(0)); err != nil {
+		return nil, fmt.Errorf("wavio: writing header: %w", err)
 	}
-	fmtLen := 16
+	return wr, nil
+}
+
+// NewStreamWriter is NewWriter for a destination that cannot seek (a FIFO,
+// a pipe, a terminal, a device written in place): the header is written
+// once, up front, with the sizes of exactly frames frames, and Close fails
+// with ErrFrameCount unless exactly that many were written (a Write past
+// them is refused before any of it is written). A consumer at the other end
+// of a pipe that is cut short sees a data chunk longer than the stream,
+// which a reader reports as truncated.
+func NewStreamWriter(w io.Writer, f Format, frames int64) (*Writer, error) {
+	if err := checkWriteFormat(f); err != nil {
+		return nil, err
+	}
+	wr := newWriter(w, f, frames)
+	data := frames * int64(f.blockAlign())
+	if frames < 0 || data > wr.maxData {
+		return nil, fmtErr(-1, ErrTooLarge, fmt.Sprintf("%d frames of %d bytes", frames, f.blockAlign()))
+	}
+	wr.expect = frames
+	if _, err := w.Write(wr.header(data)); err != nil {
+		return nil, fmt.Errorf("wavio: writing header: %w", err)
+	}
+	return wr, nil
+}
+
+func checkWriteFormat(f Format) error {
+	if err := checkShape(f, -1, -1); err != nil {
+		return err
+	}
+	if err := checkEncoding(f); err != nil {
+		return fmtErr(-1, ErrUnsupported, err.Error())
+	}
+	if !f.Float && f.BitDepth == 8 {
+		return fmtErr(-1, ErrUnsupported, "8-bit PCM output (write 16, 24 or 32)")
+	}
+	return nil
+}
+
+// newWriter lays out the header of f (see Writer) without writing it.
+func newWriter(w io.Writer, f Format, frames int64) *Writer {
+	ext := f.Channels > 2 || (!f.Float && f.BitDepth > 16)
+	fmtLen := int64(16)
 	switch {
 	case ext:
 		fmtLen = 40
 	case f.Float:
 		fmtLen = 18
 	}
-	fact := ext || f.Float
+	hdrLen := 12 + 8 + fmtLen + 8 // RIFF header, fmt chunk, data chunk header
+	var factOff int64
+	if ext || f.Float {
+		factOff = 12 + 8 + fmtLen + 8 // the fact chunk's sample-length field
+		hdrLen += 12
+	}
+	align := f.blockAlign()
+	return &Writer{
+		w: w, f: f, enc: encodingOf(f), bps: f.bytesPerSample(), hdrLen: hdrLen, factOff: factOff, ext: ext,
+		// RIFF size = hdrLen - 8 + data + pad must fit in a uint32.
+		maxData: math.MaxUint32 - (hdrLen - 8) - 1,
+		buf:     make([]byte, max(1, writeBufBytes/align)*align),
+		expect:  -1,
+	}
+}
 
-	var h []byte
+// header returns the header bytes for dataBytes bytes of samples.
+func (w *Writer) header(dataBytes int64) []byte {
+	f := w.f
+	h := make([]byte, 0, w.hdrLen)
 	le16 := func(v int) { h = binary.LittleEndian.AppendUint16(h, uint16(v)) }
 	le32 := func(v int64) { h = binary.LittleEndian.AppendUint32(h, uint32(v)) }
 	align := f.blockAlign()
-
+	tag := uint16(tagPCM)
+	if f.Float {
+		tag = tagFloat
+	}
 	h = append(h, "RIFF"...)
-	le32(0) // patched by Close
+	le32(w.hdrLen - 8 + dataBytes + dataBytes&1)
 	h = append(h, "WAVE"...)
 	h = append(h, "fmt "...)
-	le32(int64(fmtLen))
-	if ext {
+	switch {
+	case w.ext:
+		le32(40)
 		le16(tagExtensible)
-	} else {
+	case f.Float:
+		le32(18)
+		le16(int(tag))
+	default:
+		le32(16)
 		le16(int(tag))
 	}
 	le16(f.Channels)
@@ -111,7 +175,7 @@ func NewWriter(w io.WriteSeeker, f Format) (*Writer, error) {
 	le16(align)
 	le16(f.BitDepth)
 	switch {
-	case ext:
+	case w.ext:
 		le16(22)         // cbSize
 		le16(f.BitDepth) // wValidBitsPerSample
 		switch f.Channels {
@@ -127,28 +191,14 @@ func NewWriter(w io.WriteSeeker, f Format) (*Writer, error) {
 	case f.Float:
 		le16(0) // cbSize
 	}
-	var factOff int64
-	if fact {
+	if w.factOff != 0 {
 		h = append(h, "fact"...)
 		le32(4)
-		factOff = int64(len(h))
-		le32(0) // dwSampleLength, patched by Close
+		le32(dataBytes / int64(align)) // dwSampleLength
 	}
 	h = append(h, "data"...)
-	le32(0) // patched by Close
-
-	if _, err := w.Write(h); err != nil {
-		return nil, fmt.Errorf("wavio: writing header: %w", err)
-	}
-	hdrLen := int64(len(h))
-	bps := f.bytesPerSample()
-	wr := &Writer{
-		w: w, f: f, enc: encodingOf(f), bps: bps, base: base, hdrLen: hdrLen, factOff: factOff,
-		// RIFF size = hdrLen - 8 + data + pad must fit in a uint32.
-		maxData: math.MaxUint32 - (hdrLen - 8) - 1,
-		buf:     make([]byte, max(1, writeBufBytes/align)*align),
-	}
-	return wr, nil
+	le32(dataBytes)
+	return h
 }
 
 // Format returns the format being written.
@@ -179,8 +229,12 @@ func (w *Writer) Write(src []float64) error {
 			return &SampleError{Frame: w.frames + int64(i/ch), Channel: i % ch, Value: v, Reason: "refused on write"}
 		}
 		if w.enc == encF32 && math.IsInf(float64(float32(v)), 0) {
-			return &SampleError{Frame: w.frames + int64(i/ch), Channel: i % ch, Value: v, Reason: "beyond float32 range"}
+			return &SampleError{Frame: w.frames + int64(i/ch), Channel: i % ch, Value: v, Kind: ErrRange,
+				Reason: "32-bit float holds at most ±3.4028235e+38"}
 		}
+	}
+	if w.expect >= 0 && w.frames+int64(len(src)/ch) > w.expect {
+		return fmtErr(-1, ErrFrameCount, fmt.Sprintf("the header announced %d frames; %d written, %d more requested", w.expect, w.frames, len(src)/ch))
 	}
 	if w.dataBytes+int64(len(src))*int64(w.bps) > w.maxData {
 		return fmtErr(-1, ErrTooLarge, fmt.Sprintf("%d data bytes written, %d more requested", w.dataBytes, len(src)*w.bps))
@@ -246,7 +300,9 @@ func (w *Writer) quantize(v, scale float64) int64 {
 
 // Close writes the pad byte an odd-sized data chunk needs, patches the RIFF,
 // fact and data sizes, and leaves w positioned at the end of the stream. It
-// does not close w. Calling Close again does nothing.
+// does not close w. Calling Close again does nothing. A stream writer
+// (NewStreamWriter) patches nothing; its Close returns ErrFrameCount when
+// fewer frames were written than its header announced.
 func (w *Writer) Close() error {
 	if w.closed {
 		return nil
@@ -255,6 +311,9 @@ func (w *Writer) Close() error {
 	if w.err != nil {
 		return w.err
 	}
+	if w.expect >= 0 && w.frames != w.expect {
+		return fmtErr(-1, ErrFrameCount, fmt.Sprintf("the header announced %d frames, %d were written", w.expect, w.frames))
+	}
 	end := w.base + w.hdrLen + w.dataBytes
 	if w.dataBytes%2 == 1 {
 		if _, err := w.w.Write([]byte{0}); err != nil {
@@ -262,8 +321,11 @@ func (w *Writer) Close() error {
 		}
 		end++
 	}
+	if w.ws == nil {
+		return nil
+	}
 	patch := func(off, v int64) error {
-		if _, err := w.w.Seek(w.base+off, io.SeekStart); err != nil {
+		if _, err := w.ws.Seek(w.base+off, io.SeekStart); err != nil {
 			return fmt.Errorf("wavio: %w", err)
 		}
 		var b [4]byte
@@ -284,7 +346,7 @@ func (w *Writer) Close() error {
 	if err := patch(w.hdrLen-4, w.dataBytes); err != nil {
 		return err
 	}
-	if _, err := w.w.Seek(end, io.SeekStart); err != nil {
+	if _, err := w.ws.Seek(end, io.SeekStart); err != nil {
 		return fmt.Errorf("wavio: %w", err)
 	}
 	return nil

@@ -244,13 +244,17 @@ func TestWriterRefusesNonFinite(t *testing.T) {
 		src     []float64
 		frame   int64
 		channel int
+		kind    error
 	}{
-		{Format{SampleRate: 48000, Channels: 2, BitDepth: 32, Float: true}, []float64{0, 0, 0.1, 0.2, 0.3, math.NaN()}, 2, 1},
-		{Format{SampleRate: 48000, Channels: 1, BitDepth: 64, Float: true}, []float64{math.Inf(1)}, 0, 0},
-		{Format{SampleRate: 48000, Channels: 2, BitDepth: 16}, []float64{0, math.Inf(-1)}, 0, 1},
-		{Format{SampleRate: 48000, Channels: 1, BitDepth: 24}, []float64{0.5, math.NaN()}, 1, 0},
-		// Finite in float64 but +Inf once rounded to binary32 (max ~3.4028235e38).
-		{Format{SampleRate: 48000, Channels: 1, BitDepth: 32, Float: true}, []float64{0, 1e39}, 1, 0},
+		{Format{SampleRate: 48000, Channels: 2, BitDepth: 32, Float: true}, []float64{0, 0, 0.1, 0.2, 0.3, math.NaN()}, 2, 1, ErrNonFinite},
+		{Format{SampleRate: 48000, Channels: 1, BitDepth: 64, Float: true}, []float64{math.Inf(1)}, 0, 0, ErrNonFinite},
+		{Format{SampleRate: 48000, Channels: 2, BitDepth: 16}, []float64{0, math.Inf(-1)}, 0, 1, ErrNonFinite},
+		{Format{SampleRate: 48000, Channels: 1, BitDepth: 24}, []float64{0.5, math.NaN()}, 1, 0, ErrNonFinite},
+		// Finite in float64 but +Inf once rounded to binary32 (largest
+		// finite binary32 3.4028235e38, IEEE 754-2008): out of the
+		// format's range, and said so, not "non-finite" (issue item 8).
+		{Format{SampleRate: 48000, Channels: 1, BitDepth: 32, Float: true}, []float64{0, 1e39}, 1, 0, ErrRange},
+		{Format{SampleRate: 48000, Channels: 1, BitDepth: 32, Float: true}, []float64{1e300}, 0, 0, ErrRange},
 	}
 	for _, tc := range tests {
 		var m memWS
@@ -268,8 +272,11 @@ func TestWriterRefusesNonFinite(t *testing.T) {
 		before := len(m.b)
 		err = w.Write(tc.src)
 		var se *SampleError
-		if !errors.Is(err, ErrNonFinite) || !errors.As(err, &se) {
-			t.Fatalf("%v: Write = %v, want *SampleError", tc.f, err)
+		if !errors.Is(err, tc.kind) || !errors.As(err, &se) {
+			t.Fatalf("%v: Write = %v, want *SampleError wrapping %v", tc.f, err, tc.kind)
+		}
+		if tc.kind == ErrRange && strings.Contains(err.Error(), "non-finite") {
+			t.Errorf("%v: finite value reported as %q", tc.f, err)
 		}
 		if se.Frame != 1+tc.frame || se.Channel != tc.channel {
 			t.Errorf("%v: frame %d channel %d, want %d %d", tc.f, se.Frame, se.Channel, 1+tc.frame, tc.channel)

@@ -151,7 +151,7 @@ func cascadeSubset(n int, diodes bool) func(*chains.Chain) {
 			return
 		}
 		for _, st := range ch.Stages {
-			st.Parts = slices.DeleteFunc(st.Parts, func(p *chains.Part) bool { return p.Kind == "diode" })
+			st.Parts = slices.DeleteFunc(st.Parts, func(p *chains.Part) bool { return p.Kind == chains.Diode })
 		}
 	}
 }

@@ -26,8 +26,10 @@ type port struct {
 // Adaptor is the root R-type adaptor of a circuit, derived by modified nodal
 // analysis. Every linear one-port (resistor, capacitor, inductor, pot
 // section) is an adapted port of it; every nonlinear device port is an
-// unadapted port at the root; ideal voltage sources and buffers are
-// absorbed inside it and enter as inputs u.
+// unadapted port at the root; ideal voltage sources, buffers, controlled
+// current sources and ideal transformers (mna.Real.Ideal) are absorbed
+// inside it, the sources entering as inputs u. Any linear multiport can
+// be absorbed this way (Werner, Bernardini, Smith & Sarti 2018, below).
 //
 // Replacing each port j by its Thévenin equivalent (the incident wave b_j
 // in series with the port resistance R_j) and solving the MNA system gives
@@ -77,13 +79,12 @@ func newAdaptor(c *models.Circuit, ports []port) (*Adaptor, error) {
 	for _, pt := range ports {
 		sys.Conductance(pt.plus, pt.minus, 1/pt.r)
 	}
-	for i, e := range c.Elements {
-		switch e.Kind {
-		case models.VoltageSourceKind:
-			sys.Branch(i, e.Nodes[0], e.Nodes[1], 0, 0)
+	// Absorbed elements: ideal sources (inputs u), buffers, controlled
+	// sources and ideal transformers, stamped as every analysis does.
+	for i := range c.Elements {
+		e := &c.Elements[i]
+		if sys.Ideal(i, e, 0) && e.Kind == models.VoltageSourceKind {
 			ad.sources = append(ad.sources, i)
-		case models.BufferKind:
-			sys.Buffer(i, e.Nodes[0], e.Nodes[1])
 		}
 	}
 	lu := mna.NewLU(lay.Dim)

@@ -1,0 +1,263 @@
+package bias
+
+import (
+	"fmt"
+	"math"
+
+	"renderchain/chains"
+	"renderchain/dsp/mna"
+	"renderchain/engine"
+	"renderchain/models"
+	"renderchain/report"
+)
+
+// Region is where a bipolar transistor sits on its characteristics.
+type Region string
+
+// The regions of a bipolar transistor (see the package documentation for
+// the thresholds).
+const (
+	CutOff    Region = "cut-off"
+	Active    Region = "active"
+	Saturated Region = "saturated"
+	Reverse   Region = "reverse"
+)
+
+// ConductionCurrent is the transport current, A, below which a junction
+// counts as not injecting: a transistor whose base–emitter and
+// base–collector transport currents are both below it is cut off.
+const ConductionCurrent = 1e-6
+
+// SaturationGainFraction: a transistor is saturated when its current gain
+// without leakage, Ic/Ib, has fallen below this fraction of βF because the
+// collector junction is forward biased.
+const SaturationGainFraction = 0.9
+
+// RailMargin is the distance, V, from a rail within which a collector is
+// reported as having no room to swing.
+const RailMargin = 1.0
+
+// Node is one node's DC voltage. Internal nodes are those Build adds inside
+// a part (a diode's junction behind its series resistance).
+type Node struct {
+	Name     string
+	Volts    float64
+	Internal bool
+}
+
+// Transistor is a bipolar transistor at its operating point. Voltages and
+// currents are signed as measured: for a PNP device Vbe, Vce and Ic are
+// negative in normal operation (the chain-file core's mirror convention).
+// Ib and Ic flow into the base and collector; Ie = Ib + Ic leaves by the
+// emitter.
+type Transistor struct {
+	Ref                      string // the circuit's ref, "fuzz.Q2"
+	PNP                      bool
+	Collector, Base, Emitter string // node names
+	Vc, Vb, Ve               float64
+	Vbe, Vce, Vbc            float64
+	Ib, Ic, Ie               float64
+	// Power is the dissipation Vbe·Ib + Vce·Ic, W (positive for either
+	// polarity).
+	Power float64
+	// Beta is Ic/Ib at the operating point (leakage included).
+	Beta   float64
+	Region Region
+	// SatVce is Vt·ln(1/r), r the region rule's ratio for this device's βF
+	// and βR: with the base–emitter junction well on, the collector–emitter
+	// voltage magnitude below which the rule calls it saturated.
+	SatVce float64
+}
+
+// Diode is a diode at its operating point: V across its terminals (series
+// resistance included), Vj across the junction, I from anode to cathode.
+type Diode struct {
+	Ref            string
+	Anode, Cathode string
+	V, Vj, I       float64
+	Power          float64
+}
+
+// Bias is a chain's DC operating point as a bench reads it.
+type Bias struct {
+	Chain       string
+	File        string
+	Supply      float64 // V on v+
+	Temperature float64 // K
+	Nodes       []Node  // in circuit order, ground left out
+	Transistors []Transistor
+	Diodes      []Diode
+	// SupplyCurrent is the current the supply delivers, A (its magnitude),
+	// and SupplyPower the power, W.
+	SupplyCurrent, SupplyPower float64
+	Warnings                   report.Warnings
+	// Notes are the chain lint's notes: choices the tool made that the
+	// user should know about (a node reached only through capacitors
+	// given a leak to ground).
+	Notes []string
+	// Method and Iterations report how the DC solve finished.
+	Method     string
+	Iterations int
+
+	Circuit *models.Circuit
+	DC      *mna.OperatingPoint
+	// Prepared is the chain this was read from (nil for Analyse of a bare
+	// circuit), ready to run signals through.
+	Prepared *engine.Prepared
+}
+
+// Solve prepares the chain (engine.Prepare: build, DC operating point)
+// and reads its operating point.
+func Solve(ch *chains.Chain) (*Bias, error) {
+	p, err := engine.Prepare(ch, 0)
+	if err != nil {
+		return nil, err
+	}
+	return Of(p), nil
+}
+
+// Of reads the operating point of a prepared chain.
+func Of(p *engine.Prepared) *Bias {
+	b := Analyse(p.Circuit, p.DC)
+	b.Chain, b.File = p.Chain.Name, p.Chain.File
+	b.Prepared = p
+	b.Warnings.Merge(p.Findings.Warnings())
+	b.Notes = p.Findings.Notes()
+	return b
+}
+
+// Analyse reads an operating point of circuit c: node voltages, the
+// transistors' terminal quantities and regions, diode currents and the
+// warnings a bench would give.
+func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
+	b := &Bias{Chain: c.Name, Temperature: c.Temperature, Method: op.Method, Iterations: op.Iterations, Circuit: c, DC: op}
+	for i := 1; i < len(c.Nodes); i++ {
+		b.Nodes = append(b.Nodes, Node{Name: c.Nodes[i], Volts: op.Node[i], Internal: internalNode(c.Nodes[i])})
+	}
+	for i, e := range c.Elements {
+		if e.Kind == models.VoltageSourceKind && e.Ref == "supply" {
+			b.Supply = e.Value
+			ib := op.Branch[i] // from + through the source to −
+			b.SupplyCurrent = math.Abs(ib)
+			b.SupplyPower = -e.Value * ib
+		}
+	}
+	vplus := c.Lookup("v+")
+	for _, d := range op.Devices {
+		e := c.Elements[d.Element]
+		switch e.Kind {
+		case models.BJTKind:
+			b.Transistors = append(b.Transistors, transistorAt(c, op, e, d))
+		case models.DiodeKind:
+			anode := e.Nodes[0]
+			if rs := c.Element(e.Ref + ".rs"); rs != nil {
+				anode = rs.Nodes[0]
+			}
+			v := op.Node[anode] - op.Node[e.Nodes[1]]
+			b.Diodes = append(b.Diodes, Diode{Ref: e.Ref, Anode: c.Nodes[anode], Cathode: c.Nodes[e.Nodes[1]],
+				V: v, Vj: d.V[0], I: d.I[0], Power: v * d.I[0]})
+		}
+	}
+	b.Warnings = report.Warnings{}
+	for _, t := range b.Transistors {
+		b.Warnings.Merge(transistorWarnings(t, c, vplus, b.Supply))
+	}
+	return b
+}
+
+// internalNode tells the nodes Build adds inside a part (chains.InternalNode).
+func internalNode(name string) bool { return chains.InternalNode(name) }
+
+func transistorAt(c *models.Circuit, op *mna.OperatingPoint, e models.Element, d mna.DeviceState) Transistor {
+	nc, nb, ne := e.Nodes[0], e.Nodes[1], e.Nodes[2]
+	t := Transistor{Ref: e.Ref, PNP: e.BJT.PNP,
+		Collector: c.Nodes[nc], Base: c.Nodes[nb], Emitter: c.Nodes[ne],
+		Vc: op.Node[nc], Vb: op.Node[nb], Ve: op.Node[ne],
+		Vbe: d.V[0], Vce: d.V[1], Ib: d.I[0], Ic: d.I[1]}
+	t.Vbc = t.Vbe - t.Vce
+	t.Ie = t.Ib + t.Ic
+	t.Power = t.Vbe*t.Ib + t.Vce*t.Ic
+	if t.Ib != 0 {
+		t.Beta = t.Ic / t.Ib
+	}
+	t.Region, t.SatVce = classify(e.BJT, c.Temperature, t.Vbe, t.Vbc)
+	return t
+}
+
+// classify applies the region rule to junction voltages (signed as
+// measured) of a transistor of parameters p at temperature temp.
+func classify(p models.BJTParams, temp, vbe, vbc float64) (Region, float64) {
+	s := 1.0
+	if p.PNP {
+		s = -1
+	}
+	vt := models.ThermalVoltage(temp)
+	is := models.SaturationCurrentAt(p.Is, 1, p.Eg, p.XTI, temp, models.NominalTemperature)
+	fwd := is * math.Expm1(s*vbe/vt) // base–emitter transport current
+	rev := is * math.Expm1(s*vbc/vt) // base–collector
+	f := SaturationGainFraction
+	r := (1 - f) / (1 + 1/p.BetaR + f*p.BetaF/p.BetaR)
+	satVce := vt * math.Log(1/r)
+	switch {
+	case rev > fwd && rev >= ConductionCurrent:
+		return Reverse, satVce
+	case fwd < ConductionCurrent && rev < ConductionCurrent:
+		return CutOff, satVce
+	case rev > r*fwd:
+		return Saturated, satVce
+	}
+	return Active, satVce
+}
+
+func transistorWarnings(t Transistor, c *models.Circuit, vplus int, supply float64) []string {
+	var w []string
+	switch t.Region {
+	case Saturated:
+		w = append(w, fmt.Sprintf("%s is saturated at idle (Vce %s): its collector cannot swing further towards the emitter", t.Ref, models.FormatValue(t.Vce, "V")))
+	case CutOff:
+		w = append(w, fmt.Sprintf("%s is cut off at idle (Ic %s): it passes no signal until driven on", t.Ref, models.FormatValue(t.Ic, "A")))
+	case Reverse:
+		w = append(w, fmt.Sprintf("%s works in reverse (collector and emitter swapped in effect): check its pins", t.Ref))
+	}
+	nc := c.Lookup(t.Collector)
+	if nc != models.Ground && nc != vplus {
+		if d := math.Abs(t.Vc); d < RailMargin {
+			w = append(w, fmt.Sprintf("%s's collector sits %s from ground (under %g V of room to swing)", t.Ref, models.FormatValue(d, "V"), RailMargin))
+		}
+		if d := math.Abs(t.Vc - supply); d < RailMargin {
+			w = append(w, fmt.Sprintf("%s's collector sits %s from the supply rail (under %g V of room to swing)", t.Ref, models.FormatValue(d, "V"), RailMargin))
+		}
+	}
+	return w
+}
+
+// Kind is the transistor's part kind, npn or pnp.
+func (t *Transistor) Kind() chains.PartKind {
+	if t.PNP {
+		return chains.PNP
+	}
+	return chains.NPN
+}
+
+// Transistor returns the transistor of the given ref, or nil.
+func (b *Bias) Transistor(ref string) *Transistor {
+	for i := range b.Transistors {
+		if b.Transistors[i].Ref == ref {
+			return &b.Transistors[i]
+		}
+	}
+	return nil
+}
+
+// Voltage returns the named node's voltage (0 for "gnd").
+func (b *Bias) Voltage(name string) (float64, bool) {
+	if name == "gnd" {
+		return 0, true
+	}
+	for _, n := range b.Nodes {
+		if n.Name == name {
+			return n.Volts, true
+		}
+	}
+	return 0, false
+}

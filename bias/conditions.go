@@ -1,0 +1,32 @@
+package bias
+
+import (
+	"renderchain/chains"
+)
+
+// Sweep solves the chain's operating point at every combination of the
+// given supplies and temperatures (kelvin; read them with
+// models.ParseSupplies, which keeps the chain file's polarity, and
+// models.ParseTemperatures); an empty list stands for the chain's own
+// value. Rows come supply-major in the order given.
+func Sweep(ch *chains.Chain, supplies, temps []float64) ([]*Bias, error) {
+	if len(supplies) == 0 {
+		supplies = []float64{ch.Supply}
+	}
+	if len(temps) == 0 {
+		temps = []float64{ch.Temperature}
+	}
+	var rows []*Bias
+	work := ch.Clone()
+	for _, v := range supplies {
+		for _, t := range temps {
+			work.Supply, work.Temperature = v, t
+			b, err := Solve(work)
+			if err != nil {
+				return nil, err
+			}
+			rows = append(rows, b)
+		}
+	}
+	return rows, nil
+}

@@ -1,0 +1,87 @@
+package engine
+
+import (
+	"fmt"
+	"strconv"
+
+	"renderchain/chains"
+	"renderchain/dsp/mna"
+	"renderchain/dsp/resample"
+	"renderchain/models"
+)
+
+// DefaultOversample is the oversampling factor when neither the caller nor
+// the chain file names one.
+const DefaultOversample = 4
+
+// Base-rate limits of a channel: 8 kHz (the slowest analysis rate a bench
+// measurement may ask for) to 192 kHz.
+const (
+	MinRate = 8000
+	MaxRate = 192000
+)
+
+// MaxBlock is the largest block a Channel accepts per call.
+const MaxBlock = 4096
+
+// Oversample resolves the oversampling factor of a run: requested when it
+// is not 0, else the chain's own setting, else DefaultOversample. It is
+// the one place the default is chosen and the range (models.OversampleRange,
+// at most resample.MaxFactor) is checked; a factor out of range is a
+// *models.FieldError on the field "oversample".
+func Oversample(ch *chains.Chain, requested int) (int, error) {
+	n := requested
+	if n == 0 && ch != nil {
+		n = ch.Oversample
+	}
+	if n == 0 {
+		n = DefaultOversample
+	}
+	if err := models.OversampleRange.Check(float64(n)); err != nil || n > resample.MaxFactor {
+		return 0, models.Fieldf("oversample", strconv.Itoa(n), "outside 1…%d", min(int(models.OversampleRange.Hi), resample.MaxFactor))
+	}
+	return n, nil
+}
+
+// Prepared is a chain ready to run: flattened to one circuit, its DC
+// operating point solved, its oversampling factor resolved.
+type Prepared struct {
+	Chain      *chains.Chain
+	Circuit    *models.Circuit
+	DC         *mna.OperatingPoint
+	Wiring     *chains.Wiring
+	Oversample int
+	// Findings are the chain's lint findings: the wiring's (Flatten) and
+	// the operating point's (CheckOperatingPoint). Reports carry
+	// Findings.Warnings() among their warnings.
+	Findings chains.Findings
+}
+
+// Prepare flattens and lints the chain (chains.Chain.Flatten), solves its
+// operating point, lints that (chains.Flat.CheckOperatingPoint) and
+// resolves the oversampling factor (see Oversample; 0 takes the chain's
+// or the default).
+func Prepare(ch *chains.Chain, oversample int) (*Prepared, error) {
+	os, err := Oversample(ch, oversample)
+	if err != nil {
+		return nil, err
+	}
+	flat, err := ch.Flatten()
+	if err != nil {
+		return nil, err
+	}
+	c := flat.Circuit
+	op, err := mna.SolveDC(c, mna.DCOptions{})
+	if err != nil {
+		return nil, fmt.Errorf("%s: at %s, %.1f °C: %w", ch.File, models.FormatValue(ch.Supply, "V"), ch.Temperature-models.ZeroCelsius, err)
+	}
+	flat.CheckOperatingPoint(op)
+	return &Prepared{Chain: ch, Circuit: c, DC: op, Wiring: flat.Wiring, Oversample: os, Findings: flat.Findings}, nil
+}
+
+// Node resolves a node name as a user writes it (chains.Wiring.Resolve):
+// "" and "out" are the output.
+func (p *Prepared) Node(name string) (int, error) { return p.Wiring.Resolve(p.Circuit, name) }
+
+// NodeName is the name a report uses for node n.
+func (p *Prepared) NodeName(n int) string { return chains.NodeName(p.Circuit, n) }
