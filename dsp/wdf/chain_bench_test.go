@@ -11,6 +11,7 @@ import (
 	"renderchain/dsp/resample"
 	"renderchain/dsp/synth"
 	"renderchain/dsp/wdf"
+	"renderchain/models"
 )
 
 // Whole-chain benchmarks: a chain file flattened to one circuit, its DC
@@ -60,9 +61,19 @@ func loadChain(tb testing.TB, path string, edit func(*chains.Chain)) *chains.Cha
 // newRig compiles ch at factor× the benchmark rate.
 func newRig(tb testing.TB, ch *chains.Chain, factor int) *rig {
 	tb.Helper()
+	return newRigEdited(tb, ch, factor, nil)
+}
+
+// newRigEdited is newRig with edit (nil for none) applied to the flat
+// circuit before its operating point is solved.
+func newRigEdited(tb testing.TB, ch *chains.Chain, factor int, edit func(*models.Circuit)) *rig {
+	tb.Helper()
 	c, err := ch.Build()
 	if err != nil {
 		tb.Fatal(err)
+	}
+	if edit != nil {
+		edit(c)
 	}
 	op, err := mna.SolveDC(c, mna.DCOptions{})
 	if err != nil {
@@ -120,6 +131,29 @@ func BenchmarkChainDemo(b *testing.B) {
 			benchRig(b, newRig(b, ch, f), f)
 		})
 	}
+}
+
+// withCharges gives every transistor of a circuit base–emitter and
+// base–collector depletion capacitances and a forward transit time, round
+// values of the order of a small-signal silicon transistor's (from
+// memory: a few pF, a few hundred ps), so that the solver's charge work is
+// counted.
+func withCharges(c *models.Circuit) {
+	for i := range c.Elements {
+		if e := &c.Elements[i]; e.Kind == models.BJTKind {
+			e.BJT.BE = models.Depletion{C0: 8e-12, Potential: 0.75, Grading: 0.33}
+			e.BJT.BC = models.Depletion{C0: 4e-12, Potential: 0.75, Grading: 0.33}
+			e.BJT.TransitTime = 400e-12
+		}
+	}
+}
+
+// BenchmarkChainDemoCharged is BenchmarkChainDemo at 4× with junction
+// capacitances and transit times on both transistors (withCharges): the
+// cost of the charge terms in the Newton solve.
+func BenchmarkChainDemoCharged(b *testing.B) {
+	r := newRigEdited(b, loadChain(b, "../../chains/demo.toml", nil), 4, withCharges)
+	benchRig(b, r, 4)
 }
 
 // BenchmarkChainCascade12 is testdata/cascade12.toml: four transistors and

@@ -44,8 +44,22 @@ func (s *Solver) charges(d models.Charged, v []float64) (q, c []float64) {
 
 // addCharges adds device d's capacitive currents to i (its ports) and
 // (2/T)·C to its Jacobian block jd (row-major n×n), at port voltages v.
+// Diodes and transistors are called directly (Charge, Charges2: the same
+// numbers Charges gives).
 func (s *Solver) addCharges(d *devSlot, v, i, jd []float64) {
-	q, c := s.charges(d.chg, v)
+	var q, c []float64
+	switch {
+	case d.bjt != nil:
+		var m [4]float64
+		q, c = s.chq[:2], s.chc[:4]
+		q[0], q[1], m = d.bjt.Charges2(v[0], v[1])
+		c[0], c[1], c[2], c[3] = m[0], m[1], m[2], m[3]
+	case d.dio != nil:
+		q, c = s.chq[:1], s.chc[:1]
+		q[0], c[0] = d.dio.Charge(v[0])
+	default:
+		q, c = s.charges(d.chg, v)
+	}
 	g := s.twoOverT
 	qp, ip := s.qPrev[d.off:d.off+d.n], s.iqPrev[d.off:d.off+d.n]
 	for r := range q {
@@ -60,20 +74,33 @@ func (s *Solver) addCharges(d *devSlot, v, i, jd []float64) {
 // is held by columns (jd: ∂i_c/∂v_c, jo: ∂i_partner/∂v_c).
 func (s *Solver) addChargesSmall(d *smallDev, v, i, jd, jo *[smallK]float64) {
 	c0 := d.c & (smallK - 1)
+	g := s.twoOverT
 	if d.n == 1 {
-		var vv [1]float64
-		vv[0] = v[c0]
-		q, c := s.charges(d.chg, vv[:])
-		g := s.twoOverT
-		i[c0] += g*(q[0]-s.qPrev[c0]) - s.iqPrev[c0]
-		jd[c0] += g * c[0]
+		var q, c float64
+		if d.dio != nil {
+			q, c = d.dio.Charge(v[c0])
+		} else {
+			var vv [1]float64
+			vv[0] = v[c0]
+			qs, cs := s.charges(d.chg, vv[:])
+			q, c = qs[0], cs[0]
+		}
+		i[c0] += g*(q-s.qPrev[c0]) - s.iqPrev[c0]
+		jd[c0] += g * c
 		return
 	}
 	c1 := (c0 + 1) & (smallK - 1)
-	var vv [2]float64
-	vv[0], vv[1] = v[c0], v[c1]
-	q, c := s.charges(d.chg, vv[:])
-	g := s.twoOverT
+	var q [2]float64
+	var c [4]float64
+	if d.bjt != nil {
+		q[0], q[1], c = d.bjt.Charges2(v[c0], v[c1])
+	} else {
+		var vv [2]float64
+		vv[0], vv[1] = v[c0], v[c1]
+		qs, cs := s.charges(d.chg, vv[:])
+		q[0], q[1] = qs[0], qs[1]
+		c[0], c[1], c[2], c[3] = cs[0], cs[1], cs[2], cs[3]
+	}
 	i[c0] += g*(q[0]-s.qPrev[c0]) - s.iqPrev[c0]
 	i[c1] += g*(q[1]-s.qPrev[c1]) - s.iqPrev[c1]
 	jd[c0] += g * c[0]
