@@ -269,21 +269,7 @@ func TestModelChargesDirectAndThroughInterface(t *testing.T) {
 	si := models.DiodeParams{Is: 2.52e-9, N: 1.752}
 	si.Junction = models.Depletion{C0: 2e-12, Potential: 0.6, Grading: 0.5}
 	si.TransitTime = 5e-9
-	build := func() *bench {
-		b := newBench()
-		b.src("VCC", "vcc", 9, false)
-		b.src("VIN", "in", 0, true)
-		b.cap("C1", "in", "b", 1e-6)
-		b.r("RB", "vcc", "b", 470e3)
-		b.npn("Q1", "vcc", "b", "e", q)
-		b.r("RE", "e", "gnd", 4700)
-		b.cap("C2", "e", "x", 1e-6)
-		b.r("RS", "x", "out", 2200)
-		b.diode("D1", "out", "gnd", si)
-		b.r("RL", "out", "gnd", 100e3)
-		b.out("out")
-		return b
-	}
+	build := func() *bench { return followerIntoDiode(q, si) }
 	hide := func(m models.Nonlinear) models.Nonlinear {
 		return viaInterface{m.(models.Charged), m.(interface{ EmissionVoltage() float64 }).EmissionVoltage()}
 	}

@@ -30,21 +30,7 @@ func TestSmallKernelMatchesGeneral(t *testing.T) {
 			return b
 		}
 	}
-	followerClip := func() *bench {
-		b := newBench()
-		b.src("VCC", "vcc", 9, false)
-		b.src("VIN", "in", 0, true)
-		b.cap("C1", "in", "b", 1e-6)
-		b.r("RB", "vcc", "b", 470e3)
-		b.npn("Q1", "vcc", "b", "e", q)
-		b.r("RE", "e", "gnd", 4700)
-		b.cap("C2", "e", "x", 1e-6)
-		b.r("RS", "x", "out", 2200)
-		b.diode("D1", "out", "gnd", si)
-		b.r("RL", "out", "gnd", 100e3)
-		b.out("out")
-		return b
-	}
+	followerClip := func() *bench { return followerIntoDiode(q, si) }
 	// Charged devices (charge_test.go), evaluated through models.Nonlinear
 	// and with their charge terms, in both kernels.
 	charged := map[int]func(models.Nonlinear) models.Nonlinear{
@@ -91,4 +77,23 @@ func TestSmallKernelMatchesGeneral(t *testing.T) {
 		}
 		t.Logf("%s: %d samples identical; %+v", tc.name, 9600, fast.Stats())
 	}
+}
+
+// followerIntoDiode is an emitter follower (transistor q) driving a diode
+// d to ground through a coupling capacitor and a resistor: three root
+// ports, values of this project's own choosing.
+func followerIntoDiode(q models.BJTParams, d models.DiodeParams) *bench {
+	b := newBench()
+	b.src("VCC", "vcc", 9, false)
+	b.src("VIN", "in", 0, true)
+	b.cap("C1", "in", "b", 1e-6)
+	b.r("RB", "vcc", "b", 470e3)
+	b.npn("Q1", "vcc", "b", "e", q)
+	b.r("RE", "e", "gnd", 4700)
+	b.cap("C2", "e", "x", 1e-6)
+	b.r("RS", "x", "out", 2200)
+	b.diode("D1", "out", "gnd", d)
+	b.r("RL", "out", "gnd", 100e3)
+	b.out("out")
+	return b
 }
