@@ -1,10 +1,10 @@
 // Package spectrum measures what a circuit did to a test signal: the
 // harmonic analysis of a settled sine response (THD in its IEC forms,
 // THD+N, harmonic lines, DC, peaks and their asymmetry), one-third-octave
-// band levels of a long-term-average spectrum, the spectral centroid and
-// the crest factor; and what a figure of it needs: a short-time spectrum
-// (spectrogram), a dense logarithmic frequency grid, phase unwrapping and
-// group delay.
+// band levels of a long-term-average spectrum, the spectral centroid, the
+// crest factor, and the signal-to-alias ratio of a sine's response; and
+// what a figure of it needs: a short-time spectrum (spectrogram), a dense
+// logarithmic frequency grid, phase unwrapping and group delay.
 //
 // # Harmonic analysis
 //
@@ -30,6 +30,14 @@
 // AES17 notch), then keeps the residual's DFT bins inside the band
 // (default 20 Hz – 20 kHz), so it counts harmonics, noise and anything
 // else in the band.
+//
+// # Aliasing
+//
+// SignalToAlias takes the coherent record of a sine's response and
+// returns the power in the harmonic bins (every order below Nyquist, the
+// fundamental included) over the power in all other bins except DC: the
+// signal-to-alias ratio of a system that makes harmonics at a finite
+// internal rate, whose folded lines fall between the harmonic bins.
 //
 // # Band analysis
 //

@@ -67,3 +67,24 @@ func ExampleLTAS() {
 	// 1000 Hz band [891.3, 1122.0] Hz: -6.02 dB re full-scale sine
 	// centroid 1000.0 Hz, crest factor 3.01 dB
 }
+
+// A fuzz-like response: a 1319 Hz sine with odd harmonics, and a folded
+// line at 3 kHz, 60 dB under the fundamental. One second at 48 kHz holds
+// exactly 1319 cycles, so every line sits on its own bin.
+func ExampleSignalToAlias() {
+	const fs, f0 = 48000.0, 1319.0
+	x := make([]float64, 48000)
+	for i := range x {
+		p := 2 * math.Pi * f0 * float64(i) / fs
+		x[i] = math.Sin(p) + 0.3*math.Sin(3*p) + 0.1*math.Sin(5*p) +
+			1e-3*math.Sin(2*math.Pi*3000*float64(i)/fs)
+	}
+	r, err := spectrum.SignalToAlias(x, fs, f0)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("%d cycles, %d orders below Nyquist, signal-to-alias %.2f dB\n", r.Cycles, r.Orders, r.DB)
+	// Output:
+	// 1319 cycles, 18 orders below Nyquist, signal-to-alias 60.41 dB
+}

@@ -19,11 +19,13 @@
 // Nonlinear root. With a = v + R·i and b = v − R·i at the root's ports the
 // scattering relation becomes the Kirchhoff-domain relation v = p + K·i (the
 // K-method form of the joint solve), p linear in the leaves' waves and the
-// inputs, K constant. Newton solves v = p + K·f(v) from a predictor
-// (quadratic extrapolation of the last solutions), with classical junction
-// limiting and a step / error-estimate convergence test; a failed sample is
-// retried from the last solution, then by continuation in p over 4 and 16
-// sub-steps; what still fails keeps the best finite iterate and is counted
+// inputs, K constant. Newton solves v = p + K·f(v) from a predictor (the
+// last solution moved along the linearised solution map by the change in
+// p, with the last Newton matrix's factors, plus the last sample's error
+// of that linear step), with classical junction limiting and a step /
+// error-estimate convergence test; a failed sample is retried from the
+// last solution, then by continuation in p over 4 and 16 sub-steps; what
+// still fails keeps the best finite iterate and is counted
 // (Stats.NonConverged), so nothing non-finite reaches the output. The
 // device Jacobians are analytic (models package) and are checked against
 // central differences in that package's tests.
@@ -31,13 +33,32 @@
 // Start. Compile takes the DC operating point and sets every state from it
 // (capacitor waves from their voltages, inductor waves from their currents,
 // the Newton start from the junction voltages), so a render starts at rest,
-// without a thump.
+// without a thump. SlowestDecay and WarmupSamples give the slowest decay of
+// the circuit linearised there, for sizing how long a clone must run
+// before it has forgotten its start (segmented rendering).
 //
-// Hot path. Solver.Process(dst, src) does no allocation: per sample, a few
-// dense dot products over [states, 1, input, root waves] and the small
-// Newton solve.
+// Hot path. Solver.Process(dst, src) does no allocation: per sample, one
+// matrix-vector product for p, the Newton solve, and one for the next
+// states and the output, over [states, 1, input, root waves]. The
+// benchmarks (chain_bench_test.go) report ns per input sample, the
+// realtime factor and Newton iterations per internal sample for the demo
+// chain, a twelve-port cascade (testdata/cascade12.toml), a purely linear
+// chain and roots of 2 to 12 ports.
+//
+// Device charges. A device that stores charge (models.Charged: junction
+// depletion and diffusion charge) adds its capacitive currents to the
+// Newton residual with the trapezoidal rule, the bilinear discretisation of
+// every linear reactive leaf, and (2/T)·C(v) to the Jacobian; the charge
+// and current of each accepted solution are the state of the next sample,
+// starting from the operating point's charge at Reset. Devices without
+// charges cost nothing for it (charge.go).
+//
+// Kernels. Roots of up to four ports whose devices have one or two ports
+// each run in a fixed-size kernel (arrays, written-out elimination); others
+// in the general one. Both do the same arithmetic in the same order (a test
+// checks them bit for bit on the same circuits).
 //
 // Non-goals: time-varying knobs within a render (recompile per setting),
-// noise analysis, reactive parasitics of the devices (junction
-// capacitances), and the Early effect.
+// noise analysis. Device physics (which charges, the Early effect) belongs
+// to the models package.
 package wdf

@@ -14,6 +14,14 @@ import (
 // tolerance used.
 func TestNewtonMatrixAgainstCentralDifferences(t *testing.T) {
 	s, _ := twoTransistor().compile(t, 96000)
+	checkNewtonMatrix(t, s)
+}
+
+// checkNewtonMatrix drives s with a 700 Hz sine and, every 250 samples,
+// checks buildJacobian's J against central differences of the residual
+// F(v) = v − p − K·f(v) (step and tolerance as above).
+func checkNewtonMatrix(t *testing.T, s *Solver) {
+	t.Helper()
 	k := s.k
 	residual := func(v []float64) []float64 {
 		save := append([]float64(nil), s.v...)
