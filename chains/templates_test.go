@@ -315,10 +315,9 @@ func TestTemplatesAgainstTransientReference(t *testing.T) {
 }
 
 // The same with the named models' charges in place (junction and
-// diffusion capacitances): the reference integrates them; the render's
-// solver does so once it supports device charges.
+// diffusion capacitances): the reference and the render's solver both
+// integrate them by the trapezoidal rule.
 func TestTemplatesWithChargesAgainstTransientReference(t *testing.T) {
-	t.Skip("waits for device-charge support in the wave digital solver (dsp/wdf): until then a render leaves device charges out while mna.Transient includes them")
 	for _, tc := range templateCases {
 		t.Run(tc.name, func(t *testing.T) {
 			ch := templateChain(t, tc.name, tc.supply)
