@@ -40,7 +40,7 @@ func ExamplePrepared_NewChannel() {
 	}
 	rms := math.Sqrt(sum / float64(n-2400))
 	fmt.Printf("crest factor %.1f dB\n", 20*math.Log10(peak/rms))
-	// Output: crest factor 2.3 dB
+	// Output: crest factor 2.2 dB
 }
 
 // The pole analysis of a prepared chain: a 10 kΩ, 22 nF low-pass has one
