@@ -81,6 +81,7 @@ type BJTSecondOrder struct {
 type BJT struct {
 	pnp              bool
 	is, bf, br, vt   float64
+	ivt              float64 // 1/Vt
 	icbo             float64
 	ivaf             float64 // 1/VA, 0 without the Early effect
 	vcritBE, vcritBC float64
@@ -93,7 +94,7 @@ type BJT struct {
 func NewBJT(p BJTParams, t float64) *BJT {
 	vt := ThermalVoltage(t)
 	is := SaturationCurrentAt(p.Is, 1, p.Eg, p.XTI, t, NominalTemperature)
-	b := &BJT{pnp: p.PNP, is: is, bf: p.BetaF, br: p.BetaR, vt: vt,
+	b := &BJT{pnp: p.PNP, is: is, bf: p.BetaF, br: p.BetaR, vt: vt, ivt: 1 / vt,
 		icbo: LeakageAt(p.Icbo, p.LeakDoubling, t, NominalTemperature)}
 	b.vcritBE = criticalVoltage(vt, is/p.BetaF)
 	b.vcritBC = criticalVoltage(vt, is/p.BetaR)
@@ -133,12 +134,41 @@ func (b *BJT) Eval(v, i, jac []float64) {
 // Eval2 is Eval without slices: it returns Ib, Ic and the Jacobian
 // [dIb/dVbe, dIb/dVce, dIc/dVbe, dIc/dVce] for port voltages Vbe, Vce.
 func (b *BJT) Eval2(vbe, vce float64) (ib, ic float64, jac [4]float64) {
+	ib, ic, jac, _, _ = b.eval2(vbe, vce)
+	return ib, ic, jac
+}
+
+// BJTState is a transistor's state at one pair of port voltages (Vbe,
+// Vce): the port currents and Jacobian of Eval2 and the charges and
+// capacitance matrix of Charges2, in their layouts.
+type BJTState struct {
+	Ib, Ic float64
+	J      [4]float64 // dIb/dVbe, dIb/dVce, dIc/dVbe, dIc/dVce
+	Qb, Qc float64
+	C      [4]float64 // dqb/dVbe, dqb/dVce, dqc/dVbe, dqc/dVce
+}
+
+// EvalCharges writes Eval2 and Charges2 at (vbe, vce) into st, the same
+// numbers bit for bit, with the base–emitter exponential computed once
+// for the transport current and the diffusion charge.
+func (b *BJT) EvalCharges(vbe, vce float64, st *BJTState) {
+	var ef, def float64
+	st.Ib, st.Ic, st.J, ef, def = b.eval2(vbe, vce)
+	if b.pnp {
+		vbe, vce = -vbe, -vce
+	}
+	st.Qb, st.Qc, st.C = b.charges2(vbe, vce, ef, def)
+}
+
+// eval2 is Eval2, also returning exp(Vbe/Vt) and its derivative with
+// respect to Vbe (limexp, for the polarity-corrected Vbe).
+func (b *BJT) eval2(vbe, vce float64) (ib, ic float64, jac [4]float64, ef, def float64) {
 	if b.pnp {
 		vbe, vce = -vbe, -vce
 	}
 	vbc := vbe - vce
-	ivt := 1 / b.vt
-	ef, def := limexp(vbe * ivt)
+	ivt := b.ivt
+	ef, def = limexp(vbe * ivt)
 	er, der := limexp(vbc * ivt)
 	def *= ivt
 	der *= ivt
@@ -183,7 +213,7 @@ func (b *BJT) Eval2(vbe, vce float64) (ib, ic float64, jac [4]float64) {
 		// i(v) = −f(−v): the Jacobian is f'(−v), unchanged.
 		ib, ic = -ib, -ic
 	}
-	return ib, ic, jac
+	return ib, ic, jac, ef, def
 }
 
 // Limit2 is Limit without slices: it returns the limited (Vbe, Vce) for a
@@ -234,18 +264,31 @@ func (b *BJT) HasCharges() bool { return b.charged }
 // [dqb/dVbe, dqb/dVce, dqc/dVbe, dqc/dVce], farads, for port voltages Vbe,
 // Vce (the layout of Eval2's Jacobian).
 func (b *BJT) Charges2(vbe, vce float64) (qb, qc float64, c [4]float64) {
+	if b.pnp {
+		vbe, vce = -vbe, -vce
+	}
+	var ef, def float64
+	if b.tf != 0 {
+		ef, def = limexp(vbe * b.ivt)
+		def *= b.ivt
+	}
+	return b.charges2(vbe, vce, ef, def)
+}
+
+// charges2 is Charges2 at the polarity-corrected port voltages, with
+// exp(Vbe/Vt) and its derivative with respect to Vbe given (used only
+// with a transit time).
+func (b *BJT) charges2(vbe, vce, ef, def float64) (qb, qc float64, c [4]float64) {
 	s := 1.0
 	if b.pnp {
-		s, vbe, vce = -1, -vbe, -vce
+		s = -1
 	}
 	vbc := vbe - vce
 	qbe, cbe := b.be.charge(vbe)
 	qbc, cbc := b.bc.charge(vbc)
 	if b.tf != 0 {
-		ivt := 1 / b.vt
-		ef, def := limexp(vbe * ivt)
 		qbe += b.tf * b.is * (ef - 1)
-		cbe += b.tf * b.is * def * ivt
+		cbe += b.tf * b.is * def
 	}
 	// q(v) = −f(−v) for a PNP: the capacitance matrix is unchanged.
 	c = [4]float64{cbe + cbc, -cbc, -cbc, cbc}
