@@ -76,7 +76,9 @@ func (s *Solver) evalSmall(v, i, jd, jo *[smallK]float64) {
 	for n := range s.small.devs {
 		d := &s.small.devs[n]
 		c := d.c & (smallK - 1)
-		if d.bjt != nil {
+		if d.chg != nil {
+			s.evalChargedSmall(d, v, i, jd, jo)
+		} else if d.bjt != nil {
 			c1 := (c + 1) & (smallK - 1)
 			var j [4]float64
 			i[c], i[c1], j = d.bjt.Eval2(v[c], v[c1])
@@ -85,9 +87,6 @@ func (s *Solver) evalSmall(v, i, jd, jo *[smallK]float64) {
 			i[c], jd[c] = d.dio.Current(v[c])
 		} else {
 			s.evalOther(d, v, i, jd, jo)
-		}
-		if d.chg != nil {
-			s.addChargesSmall(d, v, i, jd, jo)
 		}
 	}
 }
@@ -236,6 +235,14 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 			for c := 0; c < smallK; c++ {
 				q := sr.partner[c] & (smallK - 1)
 				i[c] += jd[c]*dv[c] + jo[q]*dv[q]
+			}
+			if s.charged {
+				// The charges likewise (see commitCharges).
+				qe := (*[smallK]float64)(s.qEval[:smallK])
+				for c := 0; c < smallK; c++ {
+					q := sr.partner[c] & (smallK - 1)
+					qe[c] += s.cd4[c]*dv[c] + s.co4[q]*dv[q]
+				}
 			}
 			*(*[smallK]float64)(s.v[:smallK]) = v
 			*(*[smallK]float64)(s.i[:smallK]) = i
