@@ -13,11 +13,16 @@ import "renderchain/models"
 // i_q[n] (Chua & Lin, "Computer-Aided Analysis of Electronic Circuits",
 // 1975, ch. 4, the trapezoidal companion model of a nonlinear capacitor,
 // from memory). It joins the device's current in the residual and (2/T)·C(v)
-// joins its Jacobian, C = ∂q/∂v the device's capacitance matrix. After each
-// sample the accepted solution's charge and capacitive current become the
-// state; at Reset the state is the DC operating point's (q = q(v0), no
-// current), so a render starts at rest. A device without charges (not
-// models.Charged, or reporting HasCharges() false) costs nothing here.
+// joins its Jacobian, C = ∂q/∂v the device's capacitance matrix. The state
+// carried from sample to sample is one number per port, the history
+//
+//	h[n] = (2/T)·q[n−1] + i_q[n−1],   so   i_q[n] = (2/T)·q(v[n]) − h[n],
+//
+// and h[n+1] = (2/T)·q[n] + i_q[n] = 2·(2/T)·q[n] − h[n] once sample n is
+// accepted. At Reset the state is the DC operating point's (q = q(v0), no
+// current: h = (2/T)·q(v0)), so a render starts at rest. A device without
+// charges (not models.Charged, or reporting HasCharges() false) costs
+// nothing here.
 
 // chargedModel returns m's charge interface, or nil when m stores no
 // charge.
@@ -62,11 +67,11 @@ func (s *Solver) addCharges(d *devSlot, o int, v, i, jd []float64) {
 		q, c = s.charges(d.chg, v)
 	}
 	g := s.twoOverT
-	qp, ip := s.qPrev[d.off:d.off+d.n], s.iqPrev[d.off:d.off+d.n]
+	h := s.hist[d.off : d.off+d.n]
 	copy(s.qEval[d.off:d.off+d.n], q)
 	copy(s.cEval[o:o+d.n*d.n], c)
 	for r := range q {
-		i[r] += g*(q[r]-qp[r]) - ip[r]
+		i[r] += g*q[r] - h[r]
 	}
 	for x, cx := range c {
 		jd[x] += g * cx
@@ -84,10 +89,7 @@ func (s *Solver) addCharges(d *devSlot, o int, v, i, jd []float64) {
 func (s *Solver) evalChargedSmall(d *smallDev, v, i, jd, jo *[smallK]float64) {
 	c0 := d.c & (smallK - 1)
 	g := s.twoOverT
-	qp := (*[smallK]float64)(s.qPrev[:smallK])
-	ip := (*[smallK]float64)(s.iqPrev[:smallK])
-	qe := (*[smallK]float64)(s.qEval[:smallK])
-	cd, co := &s.cd4, &s.co4
+	h, qe, cd, co := &s.hist4, &s.qEval4, &s.cd4, &s.co4
 	if d.n == 1 {
 		var q, c float64
 		if d.dio != nil {
@@ -99,31 +101,29 @@ func (s *Solver) evalChargedSmall(d *smallDev, v, i, jd, jo *[smallK]float64) {
 			qs, cs := s.charges(d.chg, vv[:])
 			q, c = qs[0], cs[0]
 		}
-		i[c0] += g*(q-qp[c0]) - ip[c0]
+		i[c0] += g*q - h[c0]
 		jd[c0] += g * c
 		qe[c0], cd[c0] = q, c
 		return
 	}
 	c1 := (c0 + 1) & (smallK - 1)
-	var q [2]float64
-	var c [4]float64
 	if d.bjt != nil {
 		st := &s.bst
 		d.bjt.EvalCharges(v[c0], v[c1], st)
-		i[c0], i[c1] = st.Ib, st.Ic
-		j := &st.J
-		jd[c0], jo[c0], jd[c1], jo[c1] = j[0], j[2], j[3], j[1]
-		q[0], q[1], c = st.Qb, st.Qc, st.C
-	} else {
-		s.evalOther(d, v, i, jd, jo)
-		var vv [2]float64
-		vv[0], vv[1] = v[c0], v[c1]
-		qs, cs := s.charges(d.chg, vv[:])
-		q[0], q[1] = qs[0], qs[1]
-		c[0], c[1], c[2], c[3] = cs[0], cs[1], cs[2], cs[3]
+		i[c0] = st.Ib + (g*st.Qb - h[c0])
+		i[c1] = st.Ic + (g*st.Qc - h[c1])
+		j, c := &st.J, &st.C
+		jd[c0], jo[c0], jd[c1], jo[c1] = j[0]+g*c[0], j[2]+g*c[2], j[3]+g*c[3], j[1]+g*c[1]
+		qe[c0], qe[c1] = st.Qb, st.Qc
+		cd[c0], co[c0], cd[c1], co[c1] = c[0], c[2], c[3], c[1]
+		return
 	}
-	i[c0] += g*(q[0]-qp[c0]) - ip[c0]
-	i[c1] += g*(q[1]-qp[c1]) - ip[c1]
+	s.evalOther(d, v, i, jd, jo)
+	var vv [2]float64
+	vv[0], vv[1] = v[c0], v[c1]
+	q, c := s.charges(d.chg, vv[:])
+	i[c0] += g*q[0] - h[c0]
+	i[c1] += g*q[1] - h[c1]
 	jd[c0] += g * c[0]
 	jo[c0] += g * c[2]
 	jd[c1] += g * c[3]
@@ -132,44 +132,44 @@ func (s *Solver) evalChargedSmall(d *smallDev, v, i, jd, jo *[smallK]float64) {
 	cd[c0], co[c0], cd[c1], co[c1] = c[0], c[2], c[3], c[1]
 }
 
-// commitCharges makes the accepted solution the charge state: q[n] and
-// i_q[n] for the next sample. The charges are those of the last device
-// evaluation moved to the accepted voltages to first order (s.qEval,
-// updated by the kernels with the capacitance matrix and the last step,
-// as the currents are): the capacitive currents that went into the
-// accepted root waves and the state are then the same numbers, and the
-// device is not evaluated again. The second-order term left out,
-// ½·(dC/dv)·Δv² with the last step Δv within the Newton tolerance, is
-// below 1e-20 C for junction charges of picofarads (and the diffusion
-// charge's relative error, (Δv/Vt)²/2, below 1e-8 of a capacitive current
-// that is itself far below the device current). It also records, in s.dh,
-// the change of the history term h = (2/T)·q[n−1] + i_q[n−1] that the next
-// sample's residual carries (for the predictor: see predict). Ports of
-// devices without charges hold zeros throughout.
+// commitCharges makes the accepted solution the charge state. The charges
+// are those of the last device evaluation moved to the accepted voltages
+// to first order (s.qEval, updated by the kernels with the capacitance
+// matrix and the last step, as the currents are): the capacitive currents
+// that went into the accepted root waves and the state are then the same
+// numbers, and the devices are not evaluated again. The second-order term
+// left out, ½·(dC/dv)·Δv² with the last step Δv within the Newton
+// tolerance, is below 1e-20 C for junction charges of picofarads (and the
+// diffusion charge's relative error, (Δv/Vt)²/2, below 1e-8 of a
+// capacitive current that is itself far below the device current). It
+// also records in s.dh the change of the history, which the predictor
+// uses. Ports of devices without charges hold zeros throughout.
 func (s *Solver) commitCharges() {
-	g := s.twoOverT
+	g2 := 2 * s.twoOverT
 	k := s.k
-	qe, qp, ip, dh := s.qEval[:k], s.qPrev[:k], s.iqPrev[:k], s.dh[:k]
+	qe, h, dh := s.qEval[:k], s.hist[:k], s.dh[:k]
 	for r, q := range qe {
-		old := g*qp[r] + ip[r]
-		ip[r] = g*(q-qp[r]) - ip[r]
-		qp[r] = q
-		dh[r] = g*qp[r] + ip[r] - old
+		hn := g2*q - h[r]
+		dh[r] = hn - h[r]
+		h[r] = hn
 	}
 }
 
 // resetCharges sets the charge state at the operating point v0: q = q(v0)
 // and no capacitive current.
 func (s *Solver) resetCharges() {
+	clear(s.hist)
+	clear(s.dh)
+	clear(s.qEval)
 	for n := range s.devs {
 		d := &s.devs[n]
 		if d.chg == nil {
 			continue
 		}
 		q, _ := s.charges(d.chg, s.v0[d.off:d.off+d.n])
-		copy(s.qPrev[d.off:d.off+d.n], q)
-		copy(s.qEval[d.off:d.off+d.n], q)
-		clear(s.iqPrev[d.off : d.off+d.n])
-		clear(s.dh[d.off : d.off+d.n])
+		for r, x := range q {
+			s.hist[d.off+r] = s.twoOverT * x
+			s.qEval[d.off+r] = x
+		}
 	}
 }

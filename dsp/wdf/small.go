@@ -238,7 +238,7 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 			}
 			if s.charged {
 				// The charges likewise (see commitCharges).
-				qe := (*[smallK]float64)(s.qEval[:smallK])
+				qe := &s.qEval4
 				for c := 0; c < smallK; c++ {
 					q := sr.partner[c] & (smallK - 1)
 					qe[c] += s.cd4[c]*dv[c] + s.co4[q]*dv[q]

@@ -111,19 +111,18 @@ type Solver struct {
 	jac         []float64 // k×k Newton matrix
 	ki          []float64 // K·i
 	pd, po      []float64 // Jf by columns, for buildJacobianPairs
-	// Device charges (charge.go): per port the last sample's charge and
-	// capacitive current, and scratch for one device's evaluation.
-	qPrev, iqPrev []float64
-	// dh is the change of the charge history term (2/T)·q[n−1] + i_q[n−1]
-	// from the last sample to this one (commitCharges; used by predict).
-	dh []float64
-	// The charges of the last device evaluation (per port) and the
-	// capacitance matrix (per device, packed as jd; by columns as cd4 and
-	// co4 in the fixed-size kernel), moved to the accepted voltages to
-	// first order on convergence: the next charge state (commitCharges).
-	qEval, cEval  []float64
-	cd4, co4      [smallK]float64
-	bst           models.BJTState // scratch for BJT.EvalCharges
+	// Device charges (charge.go): per port the history h and its last
+	// change (for the predictor), the charges of the last device
+	// evaluation (moved to the accepted voltages to first order on
+	// convergence: the next state) and per device the capacitance matrix,
+	// packed as jd. The fixed-size kernel keeps them in arrays (hist4,
+	// qEval4, the capacitances by columns in cd4, co4), which the slices
+	// hist and qEval then alias.
+	hist, dh, qEval, cEval []float64
+	hist4, qEval4          [smallK]float64
+	cd4, co4               [smallK]float64
+	bst                    models.BJTState // scratch for BJT.EvalCharges
+	// Scratch for one device's charges.
 	chv, chq, chc []float64
 	gv, gi, gj    []float64 // scratch for devices called through models.Nonlinear
 	lastOut       float64
@@ -402,9 +401,14 @@ func (sh *shared) newChannel() *Solver {
 		v: vec(), i: vec(), p: vec(), pPrev: vec(), pSub: vec(),
 		vPrev: vec(), vBest: vec(), f: vec(), dv: vec(), dp: vec(), lin: vec(), linErr: vec(),
 		jd: make([]float64, jdLen), jac: make([]float64, k*k), piv: make([]int, k),
-		ki: vec(), pd: vec(), po: vec(), qPrev: vec(), iqPrev: vec(), dh: vec(), qEval: vec(), cEval: make([]float64, jdLen),
+		ki: vec(), pd: vec(), po: vec(), dh: vec(), cEval: make([]float64, jdLen),
 		chv: make([]float64, sh.maxPorts), chq: make([]float64, sh.maxPorts), chc: make([]float64, sh.maxPorts*sh.maxPorts),
 		gv: make([]float64, sh.maxPorts), gi: make([]float64, sh.maxPorts), gj: make([]float64, sh.maxPorts*sh.maxPorts)}
+	if k <= smallK {
+		s.hist, s.qEval = s.hist4[:k:smallK], s.qEval4[:k:smallK]
+	} else {
+		s.hist, s.qEval = vec(), vec()
+	}
 	s.Reset()
 	return s
 }
