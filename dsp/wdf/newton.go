@@ -410,6 +410,10 @@ func (s *Solver) predict() {
 		s.limit(v, vp)
 		return
 	}
+	if s.small != nil {
+		s.predictSmall()
+		return
+	}
 	d := s.dp[:len(v)]
 	p, pp := s.p[:len(d)], s.pPrev[:len(d)]
 	for r := range d {
@@ -425,11 +429,7 @@ func (s *Solver) predict() {
 			d[r] -= dot(kk[r*k:r*k+k], dh)
 		}
 	}
-	if s.small != nil {
-		applyLU4(&s.lu4, &s.piv4, (*[smallK]float64)(s.dp[:smallK]))
-	} else {
-		applyLU(s.jac, s.piv, d, s.k)
-	}
+	applyLU(s.jac, s.piv, d, s.k)
 	lin, le := s.lin[:len(d)], s.linErr[:len(d)]
 	for r := range d {
 		lin[r] = vp[r] + d[r]

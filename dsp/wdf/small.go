@@ -254,6 +254,39 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 	return maxIter, false
 }
 
+// predictSmall is predict (with factors) on the fixed-size vectors: the
+// same sums in the same order (K·dh in the order of dot).
+func (s *Solver) predictSmall() {
+	v := (*[smallK]float64)(s.v[:smallK])
+	vp := (*[smallK]float64)(s.vPrev[:smallK])
+	p := (*[smallK]float64)(s.p[:smallK])
+	pp := (*[smallK]float64)(s.pPrev[:smallK])
+	var d [smallK]float64
+	for r := range d {
+		d[r] = p[r] - pp[r]
+	}
+	if s.charged {
+		K, dh := &s.small.kk, (*[smallK]float64)(s.dh[:smallK])
+		for r := range d {
+			kr := &K[r]
+			d[r] -= (kr[0]*dh[0] + kr[1]*dh[1]) + (kr[2]*dh[2] + kr[3]*dh[3])
+		}
+	}
+	applyLU4(&s.lu4, &s.piv4, &d)
+	lin := (*[smallK]float64)(s.lin[:smallK])
+	le := (*[smallK]float64)(s.linErr[:smallK])
+	big := false
+	for r := range d {
+		lin[r] = vp[r] + d[r]
+		v[r] = lin[r] + le[r]
+		x := v[r] - vp[r]
+		big = big || x > s.freeStep || x < -s.freeStep
+	}
+	if big {
+		s.limitSmall(v, vp)
+	}
+}
+
 // solve4 is solveInPlace written out for four ports; piv receives the
 // pivot row of the first three columns, for applyLU4.
 func solve4(a *[4][4]float64, b *[4]float64, piv *[3]int) bool {
