@@ -50,22 +50,10 @@ func (s *Solver) charges(d models.Charged, v []float64) (q, c []float64) {
 // addCharges adds device d's capacitive currents to i (its ports) and
 // (2/T)·C to its Jacobian block jd (row-major n×n), at port voltages v,
 // and keeps the charges and the capacitance block (s.qEval, s.cEval at
-// the device's offsets o) for the commit. Diodes and transistors are
-// called directly (Charge, Charges2: the same numbers Charges gives).
+// the device's offsets o) for the commit. It serves devices other than
+// diodes and transistors (evalChargedDirect evaluates those).
 func (s *Solver) addCharges(d *devSlot, o int, v, i, jd []float64) {
-	var q, c []float64
-	switch {
-	case d.bjt != nil:
-		var m [4]float64
-		q, c = s.chq[:2], s.chc[:4]
-		q[0], q[1], m = d.bjt.Charges2(v[0], v[1])
-		c[0], c[1], c[2], c[3] = m[0], m[1], m[2], m[3]
-	case d.dio != nil:
-		q, c = s.chq[:1], s.chc[:1]
-		q[0], c[0] = d.dio.Charge(v[0])
-	default:
-		q, c = s.charges(d.chg, v)
-	}
+	q, c := s.charges(d.chg, v)
 	g := s.twoOverT
 	h := s.hist[d.off : d.off+d.n]
 	copy(s.qEval[d.off:d.off+d.n], q)
@@ -76,6 +64,34 @@ func (s *Solver) addCharges(d *devSlot, o int, v, i, jd []float64) {
 	for x, cx := range c {
 		jd[x] += g * cx
 	}
+}
+
+// evalChargedDirect is the general kernel's evaluation of a transistor
+// or diode d that stores charge, with its Jacobian block at offset o of
+// s.jd: the fused device call (BJT.EvalCharges, Diode.EvalCharge) and
+// the capacitive terms as addCharges adds them.
+func (s *Solver) evalChargedDirect(d *devSlot, o int) {
+	g := s.twoOverT
+	c0 := d.off
+	if d.dio != nil {
+		var q, c float64
+		s.i[c0], s.jd[o], q, c = d.dio.EvalCharge(s.v[c0])
+		s.i[c0] += g*q - s.hist[c0]
+		s.jd[o] += g * c
+		s.qEval[c0], s.cEval[o] = q, c
+		return
+	}
+	st := &s.bst
+	d.bjt.EvalCharges(s.v[c0], s.v[c0+1], st)
+	h := s.hist[c0 : c0+2 : c0+2]
+	i := s.i[c0 : c0+2 : c0+2]
+	i[0] = st.Ib + (g*st.Qb - h[0])
+	i[1] = st.Ic + (g*st.Qc - h[1])
+	jd, ce := s.jd[o:o+4:o+4], s.cEval[o:o+4:o+4]
+	j, c := &st.J, &st.C
+	jd[0], jd[1], jd[2], jd[3] = j[0]+g*c[0], j[1]+g*c[1], j[2]+g*c[2], j[3]+g*c[3]
+	ce[0], ce[1], ce[2], ce[3] = c[0], c[1], c[2], c[3]
+	s.qEval[c0], s.qEval[c0+1] = st.Qb, st.Qc
 }
 
 // evalChargedSmall is the fixed-size kernel's evaluation of a device that

@@ -10,8 +10,11 @@ import (
 func (s *Solver) evalDevices() {
 	o := 0
 	v, i, jd := s.v, s.i, s.jd
-	for _, d := range s.devs {
+	for n := range s.devs {
+		d := &s.devs[n]
 		switch {
+		case d.chg != nil && (d.bjt != nil || d.dio != nil):
+			s.evalChargedDirect(d, o)
 		case d.bjt != nil:
 			var j [4]float64
 			i[d.off], i[d.off+1], j = d.bjt.Eval2(v[d.off], v[d.off+1])
@@ -21,9 +24,9 @@ func (s *Solver) evalDevices() {
 			i[d.off], jd[o] = d.dio.Current(v[d.off])
 		default:
 			d.model.Eval(v[d.off:d.off+d.n], i[d.off:d.off+d.n], jd[o:o+d.n*d.n])
-		}
-		if d.chg != nil {
-			s.addCharges(&d, o, v[d.off:d.off+d.n], i[d.off:d.off+d.n], jd[o:o+d.n*d.n])
+			if d.chg != nil {
+				s.addCharges(d, o, v[d.off:d.off+d.n], i[d.off:d.off+d.n], jd[o:o+d.n*d.n])
+			}
 		}
 		o += d.n * d.n
 	}
