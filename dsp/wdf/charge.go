@@ -94,18 +94,18 @@ func (s *Solver) evalChargedDirect(d *devSlot, o int) {
 	s.qEval[c0], s.qEval[c0+1] = st.Qb, st.Qc
 }
 
-// evalChargedSmall is the fixed-size kernel's evaluation of a device that
-// stores charge: its currents and Jacobian (by columns, as evalSmall)
+// evalChargedPorts is the array kernels' evaluation of a device that
+// stores charge: its currents and Jacobian (by columns, as evalPorts)
 // with the capacitive terms added as addCharges adds them (the same
-// arithmetic, so both kernels agree bit for bit), the charges kept in
-// s.qEval and the capacitance matrix by columns in s.cd4, s.co4.
+// arithmetic, so the kernels agree bit for bit), the charges kept in
+// s.qEval16 and the capacitance matrix by columns in s.cd16, s.co16.
 // Transistors and diodes are evaluated with their charges in one call
 // (BJT.EvalCharges, Diode.EvalCharge: the same numbers as the separate
 // calls, one exponential fewer).
-func (s *Solver) evalChargedSmall(d *smallDev, v, i, jd, jo *[smallK]float64) {
-	c0 := d.c & (smallK - 1)
+func (s *Solver) evalChargedPorts(d *smallDev, v, i, jd, jo *portVec) {
+	c0 := d.c & portMask
 	g := s.twoOverT
-	h, qe, cd, co := &s.hist4, &s.qEval4, &s.cd4, &s.co4
+	h, qe, cd, co := &s.hist16, &s.qEval16, &s.cd16, &s.co16
 	if d.n == 1 {
 		var q, c float64
 		if d.dio != nil {
@@ -122,7 +122,7 @@ func (s *Solver) evalChargedSmall(d *smallDev, v, i, jd, jo *[smallK]float64) {
 		qe[c0], cd[c0] = q, c
 		return
 	}
-	c1 := (c0 + 1) & (smallK - 1)
+	c1 := (c0 + 1) & portMask
 	if d.bjt != nil {
 		st := &s.bst
 		d.bjt.EvalCharges(v[c0], v[c1], st)

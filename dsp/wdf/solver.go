@@ -115,13 +115,16 @@ type Solver struct {
 	// change (for the predictor), the charges of the last device
 	// evaluation (moved to the accepted voltages to first order on
 	// convergence: the next state) and per device the capacitance matrix,
-	// packed as jd. The fixed-size kernel keeps them in arrays (hist4,
-	// qEval4, the capacitances by columns in cd4, co4), which the slices
-	// hist and qEval then alias.
+	// packed as jd. The array kernels keep them in arrays (hist16,
+	// qEval16, the capacitances by columns in cd16, co16), which the
+	// slices hist and qEval then alias.
 	hist, dh, qEval, cEval []float64
-	hist4, qEval4          [smallK]float64
-	cd4, co4               [smallK]float64
+	hist16, qEval16        portVec
+	cd16, co16             portVec
 	bst                    models.BJTState // scratch for BJT.EvalCharges
+	// The array kernels' Newton vectors (voltages, currents, the last
+	// iterate, Jf by columns).
+	kv, ki4, kvOld, kjd, kjo portVec
 	// Scratch for one device's charges.
 	chv, chq, chc []float64
 	gv, gi, gj    []float64 // scratch for devices called through models.Nonlinear
@@ -404,8 +407,8 @@ func (sh *shared) newChannel() *Solver {
 		ki: vec(), pd: vec(), po: vec(), dh: vec(), cEval: make([]float64, jdLen),
 		chv: make([]float64, sh.maxPorts), chq: make([]float64, sh.maxPorts), chc: make([]float64, sh.maxPorts*sh.maxPorts),
 		gv: make([]float64, sh.maxPorts), gi: make([]float64, sh.maxPorts), gj: make([]float64, sh.maxPorts*sh.maxPorts)}
-	if k <= smallK {
-		s.hist, s.qEval = s.hist4[:k:smallK], s.qEval4[:k:smallK]
+	if k <= midK {
+		s.hist, s.qEval = s.hist16[:k:midK], s.qEval16[:k:midK]
 	} else {
 		s.hist, s.qEval = vec(), vec()
 	}
