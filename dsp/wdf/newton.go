@@ -1,10 +1,6 @@
 package wdf
 
-import (
-	"math"
-
-	"gonum.org/v1/gonum/blas/gonum"
-)
+import "math"
 
 // evalDevices evaluates every device at s.v into s.i and s.jd.
 func (s *Solver) evalDevices() {
@@ -43,6 +39,9 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 	if s.small != nil {
 		return s.newtonSmall(p, maxIter)
 	}
+	if s.mid != nil {
+		return s.newtonMid(p, maxIter)
+	}
 	s.haveLU = false
 	k := s.k
 	if k == 0 {
@@ -56,13 +55,10 @@ func (s *Solver) newton(p []float64, maxIter int) (int, bool) {
 		s.evalDevices()
 		// Residual F = v − p − K·i and Newton matrix J = I − K·Jf.
 		res := 0.0
+		// Row by row in the order of dot (as the array kernels sum).
 		ki := s.ki[:k]
-		if k*k >= gemvMin {
-			matVec(ki, kk, i)
-		} else {
-			for r := range ki {
-				ki[r] = dot(kk[r*k:r*k+k], i)
-			}
+		for r := range ki {
+			ki[r] = dot(kk[r*k:r*k+k], i)
 		}
 		for r := range f {
 			acc := v[r] - p[r] - ki[r]
@@ -310,17 +306,8 @@ func solveInPlace(a, b []float64, piv []int, k int) bool {
 		rc[c] = inv
 		tail := rc[c+1:]
 		bc := b[c]
-		if m := k - 1 - c; m >= gerMin {
-			// The trailing block's update a[r][j] −= (a[r][c]·inv)·a[c][j]
-			// as one rank-one update: gonum's kernel forms (−inv·a[r][c])
-			// and adds its product with a[c][j], the same roundings as the
-			// loop below (negation is exact).
-			gonum.Implementation{}.Dger(m, m, -inv, a[(c+1)*k+c:], k, tail, 1, a[(c+1)*k+c+1:], k)
-			for r := c + 1; r < k; r++ {
-				b[r] -= a[r*k+c] * inv * bc
-			}
-			continue
-		}
+		// Rows with a zero multiplier (structural zeros of a sparse
+		// Newton matrix: see pruneK) are passed over.
 		for r := c + 1; r < k; r++ {
 			rr := a[r*k+c : r*k+k]
 			l := rr[0] * inv
@@ -373,11 +360,6 @@ func applyLU(a []float64, piv []int, d []float64, k int) {
 		d[r] = acc * a[r*k+r]
 	}
 }
-
-// gerMin is the trailing block size from which solveInPlace hands the
-// update to gonum: below it the call's checks cost more than its kernel
-// saves (instruction counts of the twelve-port benchmark).
-const gerMin = 4
 
 func abs(x float64) float64 {
 	if x < 0 {
@@ -432,7 +414,11 @@ func (s *Solver) predict() {
 			d[r] -= dot(kk[r*k:r*k+k], dh)
 		}
 	}
-	applyLU(s.jac, s.piv, d, s.k)
+	if s.mid != nil {
+		applyLUPorts(&s.lu16, &s.piv16, &s.perm16, d)
+	} else {
+		applyLU(s.jac, s.piv, d, s.k)
+	}
 	lin, le := s.lin[:len(d)], s.linErr[:len(d)]
 	for r := range d {
 		lin[r] = vp[r] + d[r]

@@ -43,31 +43,44 @@ func newSmallRoot(sh *shared) *smallRoot {
 	if sh.k == 0 || sh.k > smallK {
 		return nil
 	}
-	sr := &smallRoot{}
-	for c := range sr.partner {
+	var partner [midK]int
+	devs, ok := pairDevices(sh, &partner)
+	if !ok {
+		return nil
+	}
+	sr := &smallRoot{devs: devs}
+	for r := 0; r < sh.k; r++ {
+		sr.partner[r] = partner[r]
+		for c := 0; c < sh.k; c++ {
+			sr.kk[r][c] = sh.kk[r*sh.k+c]
+			sr.kp[r][c] = sh.kk[r*sh.k+partner[c]]
+		}
+	}
+	for c := sh.k; c < smallK; c++ {
 		sr.partner[c] = c
+	}
+	return sr
+}
+
+// pairDevices lists the root's devices for the array kernels and writes
+// each port's device partner (the port itself for a one-port device); it
+// reports false when a device has more than two ports.
+func pairDevices(sh *shared, partner *[midK]int) ([]smallDev, bool) {
+	var devs []smallDev
+	for c := range partner {
+		partner[c] = c
 	}
 	for _, d := range sh.devs {
 		switch d.n {
 		case 1:
 		case 2:
-			sr.partner[d.off], sr.partner[d.off+1] = d.off+1, d.off
+			partner[d.off&portMask], partner[(d.off+1)&portMask] = d.off+1, d.off
 		default:
-			return nil
+			return nil, false
 		}
-		sr.devs = append(sr.devs, smallDev{d.bjt, d.dio, d.model, d.chg, d.off, d.n})
+		devs = append(devs, smallDev{d.bjt, d.dio, d.model, d.chg, d.off, d.n})
 	}
-	for r := 0; r < sh.k; r++ {
-		for c := 0; c < sh.k; c++ {
-			sr.kk[r][c] = sh.kk[r*sh.k+c]
-		}
-	}
-	for r := range sr.kp {
-		for c := range sr.kp[r] {
-			sr.kp[r][c] = sr.kk[r][sr.partner[c]]
-		}
-	}
-	return sr
+	return devs, true
 }
 
 // evalPorts evaluates the devices devs (of the fixed-size or the
