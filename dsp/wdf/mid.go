@@ -218,18 +218,25 @@ func solvePorts(a *[midK]portVec, b *portVec, piv, perm *[midK]int, k int) bool 
 			b[r&portMask] -= l * bc
 		}
 	}
+	backSubstitute(a, perm, b, k)
+	return true
+}
+
+// backSubstitute overwrites x with U⁻¹·x, U the upper factor solvePorts
+// left in a and perm (the pivots' reciprocals on its diagonal), in the
+// order of solveInPlace's and applyLU's back substitution.
+func backSubstitute(a *[midK]portVec, perm *[midK]int, x *portVec, k int) {
 	for r := k - 1; r >= 0; r-- {
 		rr := r & portMask
 		ra := a[perm[rr]&portMask][r+1 : k : k]
-		bt := b[r+1 : k : k]
-		bt = bt[:len(ra)]
-		acc := b[rr]
-		for j, x := range bt {
-			acc -= ra[j] * x
+		xt := x[r+1 : k : k]
+		xt = xt[:len(ra)]
+		acc := x[rr]
+		for j, y := range xt {
+			acc -= ra[j] * y
 		}
-		b[rr] = acc * a[perm[rr]&portMask][rr]
+		x[rr] = acc * a[perm[rr]&portMask][rr]
 	}
-	return true
 }
 
 // applyLUPorts is applyLU for the factors solvePorts left in a, piv and
@@ -251,16 +258,6 @@ func applyLUPorts(a *[midK]portVec, piv, perm *[midK]int, d []float64) {
 			x[rr] -= a[perm[rr]&portMask][cc] * inv * xc
 		}
 	}
-	for r := k - 1; r >= 0; r-- {
-		rr := r & portMask
-		ra := a[perm[rr]&portMask][r+1 : k : k]
-		xt := x[r+1 : k : k]
-		xt = xt[:len(ra)]
-		acc := x[rr]
-		for j, y := range xt {
-			acc -= ra[j] * y
-		}
-		x[rr] = acc * a[perm[rr]&portMask][rr]
-	}
+	backSubstitute(a, perm, &x, k)
 	copy(d, x[:k])
 }
