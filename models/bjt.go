@@ -97,13 +97,8 @@ func NewBJT(p BJTParams, t float64) *BJT {
 	is := SaturationCurrentAt(p.Is, 1, p.Eg, p.XTI, t, NominalTemperature)
 	b := &BJT{pnp: p.PNP, is: is, bf: p.BetaF, br: p.BetaR, vt: vt, ivt: 1 / vt, isr: is / p.BetaR, isf: is / p.BetaF,
 		icbo: LeakageAt(p.Icbo, p.LeakDoubling, t, NominalTemperature)}
-	// Junction limiting starts at the critical voltage of the transport
-	// saturation current Is on both junctions: the exponential that the
-	// collector and emitter currents follow, so the one whose overshoot
-	// limiting must stop (the choice of classical circuit simulators'
-	// transistor models: common practice).
-	b.vcritBE = criticalVoltage(vt, is)
-	b.vcritBC = criticalVoltage(vt, is)
+	b.vcritBE = criticalVoltage(vt, is/p.BetaF)
+	b.vcritBC = criticalVoltage(vt, is/p.BetaR)
 	if p.EarlyVoltage > 0 {
 		b.ivaf = 1 / p.EarlyVoltage
 	}
