@@ -32,6 +32,15 @@ type midRoot struct {
 	kk, kp  [midK]portVec
 	partner [midK]int
 	devs    []smallDev
+	// kl is the Newton matrix's lower bandwidth: every entry more than kl
+	// below the diagonal is an exact zero (K and kp zero there, see
+	// pruneK). With partial pivoting no row further below the column in
+	// elimination can then hold a nonzero in it, nor can have been
+	// exchanged or updated (the band elimination of LAPACK's dgbtrf), so
+	// the pivot search and the elimination stop kl rows below the
+	// diagonal: the rows they pass over have zero multipliers, which the
+	// general kernel passes over too.
+	kl int
 }
 
 // newMidRoot returns the mid-size kernel's data, or nil when the root
@@ -51,6 +60,9 @@ func newMidRoot(sh *shared) *midRoot {
 		for c := 0; c < k; c++ {
 			m.kk[r][c] = sh.kk[r*k+c]
 			m.kp[r][c] = sh.kk[r*k+m.partner[c]]
+			if c < r && (m.kk[r][c] != 0 || m.kp[r][c] != 0) {
+				m.kl = max(m.kl, r-c)
+			}
 		}
 	}
 	return m
@@ -110,12 +122,20 @@ func (s *Solver) newtonMid(pIn []float64, maxIter int) (int, bool) {
 			ar := a[rr][:k]
 			kr, pr := m.kk[rr][:len(ar)], m.kp[rr][:len(ar)]
 			jdk, jok := jdk[:len(ar)], jok[:len(ar)]
-			for c := range ar {
+			c := 0
+			for ; c+4 <= len(ar); c += 4 {
+				w, x, y, u, z := ar[c:c+4:c+4], kr[c:c+4:c+4], jdk[c:c+4:c+4], pr[c:c+4:c+4], jok[c:c+4:c+4]
+				w[0] = -(x[0]*y[0] + u[0]*z[0])
+				w[1] = -(x[1]*y[1] + u[1]*z[1])
+				w[2] = -(x[2]*y[2] + u[2]*z[2])
+				w[3] = -(x[3]*y[3] + u[3]*z[3])
+			}
+			for ; c < len(ar); c++ {
 				ar[c] = -(kr[c]*jdk[c] + pr[c]*jok[c])
 			}
 			a[rr][rr]++
 		}
-		if !solvePorts(a, f, &s.piv16, &s.perm16, k) {
+		if !solvePorts(a, f, &s.piv16, &s.perm16, k, m.kl) {
 			copy(sv, v[:k])
 			return it, false
 		}
@@ -173,19 +193,21 @@ func (s *Solver) newtonMid(pIn []float64, maxIter int) (int, bool) {
 	return maxIter, false
 }
 
-// solvePorts is solveInPlace on the first k rows and columns of a and b:
-// the same pivots, multipliers and sums, passing over the same zero
-// multipliers. Rows are exchanged through the permutation perm (logical
-// row r is stored in a[perm[r]]) rather than moved; piv receives the
-// exchanges as solveInPlace records them.
-func solvePorts(a *[midK]portVec, b *portVec, piv, perm *[midK]int, k int) bool {
+// solvePorts is solveInPlace on the first k rows and columns of a and b,
+// whose lower bandwidth is at most kl (see midRoot.kl): the same pivots,
+// multipliers and sums, passing over the same zero multipliers. Rows are
+// exchanged through the permutation perm (logical row r is stored in
+// a[perm[r]]) rather than moved; piv receives the exchanges as
+// solveInPlace records them.
+func solvePorts(a *[midK]portVec, b *portVec, piv, perm *[midK]int, k, kl int) bool {
 	for r := range perm {
 		perm[r] = r
 	}
 	for c := 0; c < k; c++ {
 		cc := c & portMask
+		end := min(k, c+kl+1) // rows below end are zero in column c
 		p, pv := c, math.Abs(a[perm[cc]&portMask][cc])
-		for r := c + 1; r < k; r++ {
+		for r := c + 1; r < end; r++ {
 			if v := math.Abs(a[perm[r&portMask]&portMask][cc]); v > pv {
 				p, pv = r, v
 			}
@@ -204,7 +226,7 @@ func solvePorts(a *[midK]portVec, b *portVec, piv, perm *[midK]int, k int) bool 
 		rc[cc] = inv
 		bc := b[cc]
 		tail := rc[c+1 : k : k]
-		for r := c + 1; r < k; r++ {
+		for r := c + 1; r < end; r++ {
 			rr := &a[perm[r&portMask]&portMask]
 			l := rr[cc] * inv
 			if l == 0 {
@@ -212,8 +234,16 @@ func solvePorts(a *[midK]portVec, b *portVec, piv, perm *[midK]int, k int) bool 
 			}
 			row := rr[c+1 : k : k]
 			row = row[:len(tail)]
-			for j, x := range tail {
-				row[j] -= l * x
+			j := 0
+			for ; j+4 <= len(tail); j += 4 {
+				t, w := tail[j:j+4:j+4], row[j:j+4:j+4]
+				w[0] -= l * t[0]
+				w[1] -= l * t[1]
+				w[2] -= l * t[2]
+				w[3] -= l * t[3]
+			}
+			for ; j < len(tail); j++ {
+				row[j] -= l * tail[j]
 			}
 			b[r&portMask] -= l * bc
 		}
@@ -240,7 +270,9 @@ func backSubstitute(a *[midK]portVec, perm *[midK]int, x *portVec, k int) {
 }
 
 // applyLUPorts is applyLU for the factors solvePorts left in a, piv and
-// perm, on d (len k ≤ midK).
+// perm, on d (len k ≤ midK). (Its forward substitution runs over every
+// row: after the later exchanges a row holding a multiplier of column c
+// may sit more than kl rows below it.)
 func applyLUPorts(a *[midK]portVec, piv, perm *[midK]int, d []float64) {
 	k := len(d)
 	var x portVec
