@@ -75,7 +75,7 @@ func (s *Solver) newtonMid(pIn []float64, maxIter int) (int, bool) {
 	s.haveLU = false
 	m := s.mid
 	k := m.k
-	v, i, vOld, jd, jo := &s.kv, &s.ki4, &s.kvOld, &s.kjd, &s.kjo
+	v, i, vOld, jd, jo := &s.kv, &s.kcur, &s.kvOld, &s.kjd, &s.kjo
 	f, dv, a := &s.kf, &s.kdv, &s.lu16
 	sv, p := s.v[:k], pIn[:k]
 	for r, x := range sv {

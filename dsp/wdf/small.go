@@ -181,7 +181,7 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 	var f [smallK]float64
 	// The first smallK entries in use; in the solver, so that they need
 	// not be cleared at each call (entries beyond k are never written).
-	v, i, vOld, jd, jo := &s.kv, &s.ki4, &s.kvOld, &s.kjd, &s.kjo
+	v, i, vOld, jd, jo := &s.kv, &s.kcur, &s.kvOld, &s.kjd, &s.kjo
 	// The solver's vectors have room for smallK entries, zero beyond k.
 	sv := (*[smallK]float64)(s.v[:smallK])
 	v[0], v[1], v[2], v[3] = sv[0], sv[1], sv[2], sv[3]

@@ -125,7 +125,7 @@ type Solver struct {
 	bst                    models.BJTState // scratch for BJT.EvalCharges
 	// The array kernels' Newton vectors (voltages, currents, the last
 	// iterate, Jf by columns).
-	kv, ki4, kvOld, kjd, kjo portVec
+	kv, kcur, kvOld, kjd, kjo portVec
 	kf, kdv                  portVec // the mid-size kernel's residual and step
 	lu16                     [midK]portVec
 	piv16, perm16            [midK]int
