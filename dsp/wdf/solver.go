@@ -126,9 +126,9 @@ type Solver struct {
 	// The array kernels' Newton vectors (voltages, currents, the last
 	// iterate, Jf by columns).
 	kv, kcur, kvOld, kjd, kjo portVec
-	kf, kdv                  portVec // the mid-size kernel's residual and step
-	lu16                     [midK]portVec
-	piv16, perm16            [midK]int
+	kf, kdv                   portVec // the mid-size kernel's residual and step
+	lu16                      [midK]portVec
+	piv16, perm16             [midK]int
 	// Scratch for one device's charges.
 	chv, chq, chc []float64
 	gv, gi, gj    []float64 // scratch for devices called through models.Nonlinear
