@@ -91,3 +91,21 @@ func TestMidKernelMatchesGeneral(t *testing.T) {
 		t.Logf("%s: 19200 samples identical (lower bandwidth %d); %+v", tc.name, mid.mid.kl, mid.Stats())
 	}
 }
+
+// The mid-size kernel allocates nothing per block (its vectors live in
+// the solver), with charged transistors and diodes driven into clipping.
+func TestMidKernelDoesNotAllocate(t *testing.T) {
+	const fs = 192000.0
+	s := compileChain(t, "testdata/cascade12.toml", fs, nil)
+	if s.mid == nil {
+		t.Fatal("the mid-size kernel was not chosen")
+	}
+	src := make([]float64, 256)
+	for n := range src {
+		src[n] = 2 * math.Sin(2*math.Pi*440*float64(n)/fs)
+	}
+	dst := make([]float64, len(src))
+	if a := testing.AllocsPerRun(20, func() { s.Process(dst, src) }); a != 0 {
+		t.Errorf("%.1f allocations per block", a)
+	}
+}
