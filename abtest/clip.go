@@ -32,7 +32,7 @@ type job struct {
 // measures it.
 func (j *job) render(ctx context.Context, dry string, oversample int, pr *progress) error {
 	fail := func(err error) error { return &VariantError{Label: j.label, Err: err} }
-	eng, err := engine.Prepare(j.ch, oversample)
+	eng, err := engine.PrepareContext(ctx, j.ch, oversample)
 	if err != nil {
 		return fail(err)
 	}

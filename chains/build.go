@@ -11,8 +11,12 @@ import (
 // the signal source drives "in", the supply is an ideal source on "v+",
 // and the output load hangs on the chain's output. A stage with buffer =
 // true is fed through an ideal unity-gain buffer instead. A stage whose
-// parts never use "out" is a shunt stage: its out is its in.
+// parts never use "out" is a shunt stage: its out is its in. A chain beyond
+// the limits of CheckSize is refused first, with a *LimitError.
 func (ch *Chain) Build() (*models.Circuit, error) {
+	if err := ch.CheckSize(); err != nil { // the one place: nothing is built or allocated beyond the limits
+		return nil, err
+	}
 	w := ch.Wiring()
 	c := models.NewCircuit(ch.Name, ch.Temperature)
 	in := c.Node("in")

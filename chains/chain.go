@@ -204,6 +204,9 @@ func Parse(name, src string) (*Chain, error) {
 	if len(raw.Stages) == 0 {
 		return nil, &Error{File: name, Msg: "no [[stage]] tables: a chain needs at least one stage"}
 	}
+	if n := len(raw.Stages) + len(ch.Stages); n > MaxStages { // before expanding any template
+		return nil, &LimitError{File: name, What: "number of stages", Value: int64(n), Limit: MaxStages, Unit: "stages"}
+	}
 	seen := map[string]bool{}
 	for k, rs := range raw.Stages {
 		st, err := ch.parseStage(k, rs)
@@ -345,7 +348,7 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 				if ce.Line == 0 {
 					ce.Line = ch.loc.find(k, "template")
 				}
-				ce.Where = strings.TrimPrefix(where+": "+ce.Where, ": ")
+				ce.Where = joinWhere(where, ce.Where)
 			}
 			return nil, err
 		}
@@ -379,6 +382,18 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 		return nil, fail(ch.loc.find(k, "knobs"), err.Error())
 	}
 	return st, nil
+}
+
+// joinWhere joins the parts of an error's Where with ": ", leaving out
+// empty ones (no "stage f: : part").
+func joinWhere(parts ...string) string {
+	var kept []string
+	for _, p := range parts {
+		if p != "" {
+			kept = append(kept, p)
+		}
+	}
+	return strings.Join(kept, ": ")
 }
 
 func validID(s string) bool {

@@ -227,7 +227,8 @@ func scanText(name, src string) (textStats, error) {
 // node count is an upper bound (every pin name of a stage counted as its
 // own node, plus a series-resistance node per diode, a buffer node per
 // buffered stage and the shared ones); matrix memory is estimated as in
-// circuitBytes. Call it after Load and the --set overrides, before Build.
+// circuitBytes. Build calls it first, so every command that builds a
+// chain (after Load and the --set overrides) is bounded in one place.
 func (ch *Chain) CheckSize() error {
 	if len(ch.Stages) > MaxStages {
 		return &LimitError{File: ch.File, What: "number of stages", Value: int64(len(ch.Stages)), Limit: MaxStages, Unit: "stages"}

@@ -86,6 +86,11 @@ func checkFreqs(freqs []float64, limit float64, rateText string) error {
 // its small-signal conductances, capacitors and inductors by their
 // admittances): from the source EMF (or opt.Ref) to opt.Probe.
 func SmallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, error) {
+	return smallSignal(context.Background(), ch, freqs, opt)
+}
+
+// smallSignal is SmallSignal stopping when ctx is done (in the DC solve).
+func smallSignal(ctx context.Context, ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, error) {
 	if opt.SampleRate == 0 {
 		opt.SampleRate = DefaultSampleRate
 	}
@@ -97,7 +102,7 @@ func SmallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Poin
 	if err := checkFreqs(freqs, internal/2, models.FormatValue(internal, "Hz")+" internal rate"); err != nil {
 		return nil, err
 	}
-	p, err := engine.Prepare(ch, os)
+	p, err := engine.PrepareContext(ctx, ch, os)
 	if err != nil {
 		return nil, err
 	}
@@ -151,7 +156,7 @@ func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freq
 		if err != nil {
 			return nil, err
 		}
-		pts, err := SmallSignal(c, freqs, opt)
+		pts, err := smallSignal(ctx, c, freqs, opt)
 		if err != nil {
 			return nil, err
 		}

@@ -1,6 +1,7 @@
 package mna
 
 import (
+	"context"
 	"fmt"
 	"math"
 
@@ -58,6 +59,15 @@ type DCOptions struct {
 // continuations of classical circuit simulation (Nagel, UCB ERL-M520,
 // 1975, sec. 4.4).
 func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
+	return SolveDCContext(context.Background(), c, opt)
+}
+
+// SolveDCContext is SolveDC that stops when ctx is done: every Newton
+// iteration of every continuation (plain Newton, gmin stepping, source
+// stepping) checks ctx first, so a cancelled solve returns within one
+// iteration (one factorisation of the DC system) with an error wrapping
+// ctx's error (errors.Is context.Canceled, or the context's cause).
+func SolveDCContext(ctx context.Context, c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 	if opt.MaxIter == 0 {
 		opt.MaxIter = 200
 	}
@@ -68,6 +78,7 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 		return nil, err
 	}
 	s := newDCSolver(c, opt)
+	s.ctx = ctx
 	total := 0
 	x := make([]float64, s.lay.Dim)
 	// 1. Plain Newton from zero.
@@ -103,6 +114,9 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 			}
 		}
 	}
+	if cerr := s.cancelled(); cerr != nil {
+		return nil, cerr
+	}
 	if err != nil {
 		// 3. Source stepping with an adaptive step.
 		method = "source"
@@ -115,6 +129,9 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 			next := math.Min(1, lambda+step)
 			it, e := s.newton(x, 0, next)
 			total += it
+			if cerr := s.cancelled(); cerr != nil {
+				return nil, cerr
+			}
 			if e != nil {
 				copy(x, good)
 				step /= 4
@@ -144,6 +161,7 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 const junctionGmin = 1e-12
 
 type dcSolver struct {
+	ctx      context.Context
 	portGmin float64 // conductance across every device port (last resort)
 	c        *models.Circuit
 	opt      DCOptions
@@ -164,6 +182,28 @@ func newDCSolver(c *models.Circuit, opt DCOptions) *dcSolver {
 	}
 	return s
 }
+
+// cancelled returns the error of a done context, else nil.
+func (s *dcSolver) cancelled() error {
+	if s.ctx == nil {
+		return nil
+	}
+	select {
+	case <-s.ctx.Done():
+		return &CancelError{Cause: context.Cause(s.ctx)}
+	default:
+		return nil
+	}
+}
+
+// CancelError reports a DC solve stopped by its context; it unwraps to
+// the context's cause (context.Canceled, or what the canceller gave).
+type CancelError struct{ Cause error }
+
+func (e *CancelError) Error() string { return "DC operating point: stopped (" + e.Cause.Error() + ")" }
+
+// Unwrap returns the context's cause.
+func (e *CancelError) Unwrap() error { return e.Cause }
 
 func (s *dcSolver) resetDevices() {
 	for k := range s.vold {
@@ -203,6 +243,9 @@ func portVoltages(x []float64, ports []models.Port, v []float64) {
 func (s *dcSolver) newton(x []float64, gmin, lambda float64) (int, error) {
 	step := math.Inf(1)
 	for it := 1; it <= s.opt.MaxIter; it++ {
+		if err := s.cancelled(); err != nil {
+			return it - 1, err
+		}
 		s.stampLinear(gmin, lambda)
 		for k := range s.devs {
 			d := &s.devs[k]
@@ -220,7 +263,7 @@ func (s *dcSolver) newton(x []float64, gmin, lambda float64) (int, error) {
 			}
 		}
 		if err := s.lu.Factor(s.sys.A); err != nil {
-			return it, &models.CircuitError{What: "circuit", Reason: "DC equations are singular (a node or loop is undetermined)"}
+			return it, Singular(s.c, s.lay, err, "DC equations are singular")
 		}
 		xn := s.sys.Z
 		s.lu.Solve(xn)
