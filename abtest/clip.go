@@ -26,6 +26,11 @@ type job struct {
 	before analyze.Levels
 	stats  wdf.Stats
 	clip   Clip
+
+	// What the reader of the take let pass (pass 1 of a rendered clip):
+	// float samples beyond full scale, and header faults it tolerated.
+	overs    int64
+	readWarn []string
 }
 
 // render runs the variant's chain over the dry take into a float64 WAV and
@@ -83,6 +88,7 @@ func (j *job) render(ctx context.Context, dry string, oversample int, pr *progre
 	if err := meter.Err(); err != nil {
 		return fail(err)
 	}
+	j.overs, j.readWarn = in.Overs(), in.Warnings()
 	j.stats.Add(info.Stats)
 	j.before = analyze.LevelsOf(meter)
 	sv := report.SolverOf(j.stats)

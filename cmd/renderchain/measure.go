@@ -85,6 +85,12 @@ func runMeasure(c *cli.Context) error {
 			return usagef("--plot: %v", err)
 		}
 	}
+	set := newOutputs(c)
+	plot := optionalFile(c, set, "plot")
+	if err := set.Check(); err != nil { // before any work
+		return err
+	}
+	defer set.Abort()
 	freq, err := parseFlag(c, "freq", models.ParseFrequency)
 	if err != nil {
 		return err
@@ -135,14 +141,17 @@ func runMeasure(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	if plotPath != "" {
+	if plot != nil {
 		fig, err := rep.Figure()
 		if err == nil {
-			err = plotting.Save(plotPath, fig)
+			err = drawTo(plot, fig)
 		}
 		if err != nil {
 			return fmt.Errorf("writing plot %s: %w", plotPath, err)
 		}
+	}
+	if err := commitOutputs(c, set); err != nil {
+		return err
 	}
 	switch {
 	case c.Bool("json"):

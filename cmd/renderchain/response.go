@@ -72,6 +72,12 @@ func runResponse(c *cli.Context) error {
 			return usagef("--plot: %v", err)
 		}
 	}
+	set := newOutputs(c)
+	plot := optionalFile(c, set, "plot")
+	if err := set.Check(); err != nil { // before any work
+		return err
+	}
+	defer set.Abort()
 	freqs, err := responseFreqs(c)
 	if err != nil {
 		return err
@@ -107,10 +113,13 @@ func runResponse(c *cli.Context) error {
 			return err
 		}
 	}
-	if plotPath != "" {
-		if err := plotting.Save(plotPath, rep.Figure()); err != nil {
+	if plot != nil {
+		if err := drawTo(plot, rep.Figure()); err != nil {
 			return fmt.Errorf("writing plot %s: %w", plotPath, err)
 		}
+	}
+	if err := commitOutputs(c, set); err != nil {
+		return err
 	}
 	switch {
 	case c.Bool("json"):
