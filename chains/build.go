@@ -2,6 +2,8 @@ package chains
 
 import (
 	"fmt"
+	"maps"
+	"slices"
 
 	"renderchain/models"
 )
@@ -18,6 +20,9 @@ func (ch *Chain) Build() (*models.Circuit, error) {
 		return nil, err
 	}
 	w := ch.Wiring()
+	if err := ch.checkPinNames(w); err != nil {
+		return nil, err
+	}
 	c := models.NewCircuit(ch.Name, ch.Temperature)
 	in := c.Node("in")
 	vplus := c.Node("v+")
@@ -51,6 +56,25 @@ func (ch *Chain) Build() (*models.Circuit, error) {
 	}
 	c.AddLeaks()
 	return c, nil
+}
+
+// checkPinNames refuses a pin whose node would be named like a node Build
+// adds inside a part (InternalNode, models.IsInternal): such a pin would
+// silently join that part's inside (a wire to a diode's junction behind
+// its series resistance, say).
+func (ch *Chain) checkPinNames(w *Wiring) error {
+	for _, st := range ch.Stages {
+		for _, p := range st.Parts {
+			for _, role := range slices.Sorted(maps.Keys(p.Pins)) {
+				pin := p.Pins[role]
+				if n := w.Node(st.ID, pin); InternalNode(n) || models.IsInternal(n) {
+					return &Error{File: ch.File, Line: ch.loc.find(st.index, `"`+pin+`"`), Where: "stage " + st.ID + ": part " + p.Ref,
+						Msg: fmt.Sprintf("node %q: a node name has no '.' or '%s' (those name the inside of parts)", pin, models.InternalMark)}
+				}
+			}
+		}
+	}
+	return nil
 }
 
 func (st *Stage) usesPin(name string) bool {
