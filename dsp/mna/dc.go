@@ -85,6 +85,9 @@ func SolveDCContext(ctx context.Context, c *models.Circuit, opt DCOptions) (*Ope
 	it, err := s.newton(x, 0, 1)
 	total += it
 	method := "newton"
+	if stopped(err) {
+		return nil, err
+	}
 	if err != nil {
 		// 2. gmin stepping.
 		method = "gmin"
@@ -94,6 +97,9 @@ func SolveDCContext(ctx context.Context, c *models.Circuit, opt DCOptions) (*Ope
 		for g := 1e-3; g >= 1e-13; g /= 10 {
 			it, err = s.newton(x, g, 1)
 			total += it
+			if stopped(err) {
+				return nil, err
+			}
 			if err != nil {
 				break
 			}
@@ -102,6 +108,9 @@ func SolveDCContext(ctx context.Context, c *models.Circuit, opt DCOptions) (*Ope
 			saved := append([]float64(nil), x...)
 			it, err = s.newton(x, 0, 1)
 			total += it
+			if stopped(err) {
+				return nil, err
+			}
 			if err != nil {
 				// A node held only by junctions that are off has no defined
 				// voltage without some conductance: finish with the classical
@@ -111,11 +120,11 @@ func SolveDCContext(ctx context.Context, c *models.Circuit, opt DCOptions) (*Ope
 				it, err = s.newton(x, 0, 1)
 				total += it
 				method = "gmin-junction"
+				if stopped(err) {
+					return nil, err
+				}
 			}
 		}
-	}
-	if cerr := s.cancelled(); cerr != nil {
-		return nil, cerr
 	}
 	if err != nil {
 		// 3. Source stepping with an adaptive step.
@@ -129,8 +138,8 @@ func SolveDCContext(ctx context.Context, c *models.Circuit, opt DCOptions) (*Ope
 			next := math.Min(1, lambda+step)
 			it, e := s.newton(x, 0, next)
 			total += it
-			if cerr := s.cancelled(); cerr != nil {
-				return nil, cerr
+			if stopped(e) {
+				return nil, e
 			}
 			if e != nil {
 				copy(x, good)
@@ -194,6 +203,12 @@ func (s *dcSolver) cancelled() error {
 	default:
 		return nil
 	}
+}
+
+// stopped reports whether err is the solve's own cancellation.
+func stopped(err error) bool {
+	_, ok := err.(*CancelError)
+	return ok
 }
 
 // CancelError reports a DC solve stopped by its context; it unwraps to
