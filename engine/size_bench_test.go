@@ -39,6 +39,26 @@ func ladderChain(tb testing.TB, parts int) *chains.Chain {
 	return ch
 }
 
+// pedalChain is blocks copies of a pedal (a buffered two-transistor
+// silicon fuzz, a blend tone and a volume stage: 20 parts, 2 transistors,
+// 4 nonlinear ports each), the kind of chain whose cost the nonlinear
+// ports set.
+func pedalChain(tb testing.TB, blocks int) *chains.Chain {
+	tb.Helper()
+	var b strings.Builder
+	b.WriteString("name = \"pedals\"\nsupply = \"9V\"\n[output]\nload = \"1M\"\n")
+	for i := 0; i < blocks; i++ {
+		fmt.Fprintf(&b, "[[stage]]\nid = \"f%d\"\ntemplate = \"fuzz-si\"\nknobs = { fuzz = 0.5 }\nbuffer = true\n", i)
+		fmt.Fprintf(&b, "[[stage]]\nid = \"t%d\"\ntemplate = \"tone-blend\"\n", i)
+		fmt.Fprintf(&b, "[[stage]]\nid = \"v%d\"\ntemplate = \"volume\"\nknobs = { level = 0.1 }\n", i)
+	}
+	ch, err := chains.Parse("pedals.toml", b.String())
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return ch
+}
+
 // BenchmarkChainSize measures, at a quarter, half and all of chains.MaxParts,
 // what a command does with the largest chains the size bound lets through:
 // flatten the chain (Build), solve its DC operating point, and render one
@@ -48,10 +68,23 @@ func ladderChain(tb testing.TB, parts int) *chains.Chain {
 //	go test -run XXX -bench ChainSize -benchtime 1x ./engine/
 //
 // and read s/op of each step (the render reports its realtime factor).
+// The pedals sub-benchmarks do the same for 4 and 16 pedals in a row (80
+// and 320 parts), whose cost the transistors set.
 func BenchmarkChainSize(b *testing.B) {
+	type size struct {
+		name string
+		ch   *chains.Chain
+	}
+	var sizes []size
 	for _, parts := range []int{chains.MaxParts / 4, chains.MaxParts / 2, chains.MaxParts} {
-		ch := ladderChain(b, parts)
-		b.Run(fmt.Sprintf("parts=%d/build", parts), func(b *testing.B) {
+		sizes = append(sizes, size{fmt.Sprintf("ladder/parts=%d", parts), ladderChain(b, parts)})
+	}
+	for _, blocks := range []int{4, 16} {
+		sizes = append(sizes, size{fmt.Sprintf("pedals/blocks=%d", blocks), pedalChain(b, blocks)})
+	}
+	for _, sz := range sizes {
+		ch := sz.ch
+		b.Run(sz.name+"/build", func(b *testing.B) {
 			for i := 0; i < b.N; i++ {
 				if _, err := ch.Build(); err != nil {
 					b.Fatal(err)
@@ -62,7 +95,7 @@ func BenchmarkChainSize(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		b.Run(fmt.Sprintf("parts=%d/dc", parts), func(b *testing.B) {
+		b.Run(sz.name+"/dc", func(b *testing.B) {
 			b.ReportMetric(float64(len(c.Nodes)), "nodes")
 			for i := 0; i < b.N; i++ {
 				if _, err := mna.SolveDC(c, mna.DCOptions{}); err != nil {
@@ -70,7 +103,7 @@ func BenchmarkChainSize(b *testing.B) {
 				}
 			}
 		})
-		b.Run(fmt.Sprintf("parts=%d/render-1s", parts), func(b *testing.B) {
+		b.Run(sz.name+"/render-1s", func(b *testing.B) {
 			p, err := Prepare(ch, 0)
 			if err != nil {
 				b.Fatal(err)

@@ -264,3 +264,40 @@ func TestHiddenNodeNames(t *testing.T) {
 		}
 	}
 }
+
+// Case 8 (messages that mislead): a template stage's error has no empty
+// segment ("stage f: : template …" before).
+func TestStageErrorHasNoEmptySegment(t *testing.T) {
+	dir := t.TempDir()
+	chain := filepath.Join(dir, "f.toml")
+	os.WriteFile(chain, []byte("name = \"x\"\n[[stage]]\nid = \"f\"\ntemplate = \"fuzz-si\"\nknobs = { nope = 0.5 }\n"), 0o644)
+	code, _, stderr := capture(t, "bias", "--chain", chain)
+	if code != exitFailure {
+		t.Errorf("unknown knob: exit %d, want %d", code, exitFailure)
+	}
+	oneLineError(t, "unknown knob", stderr, "f.toml:5: stage f: template fuzz-si has no knob \"nope\"")
+	if strings.Contains(stderr, ": :") {
+		t.Errorf("an empty segment: %q", stderr)
+	}
+}
+
+// Case 8: a folder that cannot be written is reported by the target the
+// user typed (--out), never by the hidden temporary name.
+func TestUnwritableFolderNamesTheFlag(t *testing.T) {
+	if os.Geteuid() == 0 {
+		t.Skip("as root every folder is writable: the read-only case cannot be made here")
+	}
+	dir := t.TempDir()
+	dry := dryTake(t, dir)
+	ro := filepath.Join(dir, "ro")
+	os.Mkdir(ro, 0o555)
+	defer os.Chmod(ro, 0o755)
+	code, _, stderr := capture(t, "render", "--chain", demoChain, "--in", dry, "--out", filepath.Join(ro, "wet.wav"), "--quiet")
+	if code != exitFailure {
+		t.Errorf("read-only folder: exit %d, want %d", code, exitFailure)
+	}
+	oneLineError(t, "read-only folder", stderr, "--out", filepath.Join(ro, "wet.wav"), "cannot be written")
+	if strings.Contains(stderr, ".tmp") {
+		t.Errorf("the message names the temporary file: %q", stderr)
+	}
+}
