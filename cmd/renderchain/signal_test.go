@@ -71,6 +71,26 @@ func (c *child) wait(t *testing.T, limit time.Duration) int {
 	return -1
 }
 
+// interrupt sends sig and waits at most limit for the program to end; it
+// fails unless the exit status is 128 + the signal's number and stderr is
+// the command's own one line about it. It returns the time from the signal
+// to the exit.
+func (c *child) interrupt(t *testing.T, sig syscall.Signal, limit time.Duration) time.Duration {
+	t.Helper()
+	sent := time.Now()
+	if err := c.cmd.Process.Signal(sig); err != nil {
+		t.Fatal(err)
+	}
+	code := c.wait(t, limit)
+	lag := time.Since(sent)
+	t.Logf("%v: exit %d, %v after the signal", sig, code, lag.Round(time.Millisecond))
+	if want := 128 + int(sig); code != want {
+		t.Errorf("exit %d, want %d", code, want)
+	}
+	oneLineError(t, sig.String(), c.stderr.String(), "interrupted by", "its temporary files are removed")
+	return lag
+}
+
 // waitFor polls until cond holds, or fails after limit.
 func waitFor(t *testing.T, limit time.Duration, what string, cond func() bool) {
 	t.Helper()
@@ -130,17 +150,8 @@ func TestSignalsLeaveNothing(t *testing.T) {
 			c := startChild(t, dir, "render", "--chain", chain, "--in", "long.wav", "--out", "wet.wav", "--report", "r.json", "--quiet")
 			waitFor(t, 60*time.Second, "the render's temporary files", func() bool { return len(temps(dir)) >= 2 })
 			time.Sleep(200 * time.Millisecond)
-			sent := time.Now()
-			if err := c.cmd.Process.Signal(sig); err != nil {
-				t.Fatal(err)
-			}
-			code := c.wait(t, 20*time.Second)
-			t.Logf("%v: exit %d, %v after the signal", sig, code, time.Since(sent).Round(time.Millisecond))
-			if want := 128 + int(sig); code != want {
-				t.Errorf("exit %d, want %d", code, want)
-			}
+			c.interrupt(t, sig, 20*time.Second)
 			stderr := c.stderr.String()
-			oneLineError(t, sig.String(), stderr, "interrupted by", "its temporary files are removed")
 			if strings.Contains(stderr, "goroutine ") || strings.Contains(stderr, "panic") {
 				t.Errorf("a runtime dump on stderr: %q", stderr)
 			}
@@ -251,15 +262,7 @@ func TestSignalStopsSlowDCSolve(t *testing.T) {
 		t.Fatalf("the operating points were done within 1.5 s (stderr %q): make the chain larger", c.stderr.String())
 	default:
 	}
-	sent := time.Now()
-	c.cmd.Process.Signal(syscall.SIGINT)
-	code := c.wait(t, 10*time.Second)
-	lag := time.Since(sent)
-	t.Logf("exit %d, %v after SIGINT", code, lag.Round(time.Millisecond))
-	if code != 130 {
-		t.Errorf("exit %d, want 130", code)
-	}
-	oneLineError(t, "SIGINT in a DC solve", c.stderr.String(), "interrupted by SIGINT", "its temporary files are removed")
+	lag := c.interrupt(t, syscall.SIGINT, 10*time.Second)
 	if lag > time.Second {
 		t.Errorf("stopped %v after SIGINT, want under 1 s", lag)
 	}
