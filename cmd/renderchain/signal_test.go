@@ -37,6 +37,9 @@ type child struct {
 
 func startChild(t *testing.T, dir string, args ...string) *child {
 	t.Helper()
+	if testing.Short() {
+		t.Skip("runs the program as a process of its own")
+	}
 	c := &child{cmd: exec.Command(os.Args[0], args...), done: make(chan error, 1)}
 	c.cmd.Dir = dir
 	c.cmd.Env = append(os.Environ(), childEnv+"=1")
@@ -139,9 +142,6 @@ func longTake(t *testing.T, dir string, seconds int) string {
 // two-second grace after which outputs.Watch would end it: the line is the
 // command's, not Watch's.
 func TestSignalsLeaveNothing(t *testing.T) {
-	if testing.Short() {
-		t.Skip("runs the program as a process of its own")
-	}
 	dir := t.TempDir()
 	longTake(t, dir, 60)
 	chain := demoChainFrom(t, dir)
@@ -174,19 +174,22 @@ func demoChainFrom(t *testing.T, dir string) string {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if err := os.WriteFile(filepath.Join(dir, "demo.toml"), b, 0o644); err != nil {
+	return writeText(t, dir, "demo.toml", string(b))
+}
+
+// writeText writes text to dir/name and returns name.
+func writeText(t *testing.T, dir, name, text string) string {
+	t.Helper()
+	if err := os.WriteFile(filepath.Join(dir, name), []byte(text), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	return "demo.toml"
+	return name
 }
 
 // Case 7: two renders to one --out both succeed (the last to finish wins,
 // as with any two writers of one file), and the later one says so on
 // stderr: the target was created by the other since it checked its paths.
 func TestTwoRendersToOneOut(t *testing.T) {
-	if testing.Short() {
-		t.Skip("runs the program as a process of its own")
-	}
 	dir := t.TempDir()
 	longTake(t, dir, 8)
 	dry := dryTake(t, dir)
@@ -234,11 +237,7 @@ func diodeLadderChain(t *testing.T, dir string, rungs int) string {
 		}
 		fmt.Fprintf(&b, "  { ref = \"R%d\", kind = \"resistor\", value = \"1k\", pins = [%q, \"out\"] },\n]\n", per, prev)
 	}
-	p := filepath.Join(dir, "ladder.toml")
-	if err := os.WriteFile(p, []byte(b.String()), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	return p
+	return filepath.Join(dir, writeText(t, dir, "ladder.toml", b.String()))
 }
 
 // Case 7: SIGINT during slow DC solves (operating points of a large diode
@@ -250,9 +249,6 @@ func diodeLadderChain(t *testing.T, dir string, rungs int) string {
 // the program must stop through its own path, not Watch's two-second
 // grace exit.
 func TestSignalStopsSlowDCSolve(t *testing.T) {
-	if testing.Short() {
-		t.Skip("runs the program as a process of its own")
-	}
 	dir := t.TempDir()
 	chain := diodeLadderChain(t, dir, 320)
 	c := startChild(t, dir, "bias", "--chain", chain, "--supply", "9,8.8,8.6,8.4,8.2,8,7.8,7.6,7.4,7.2", "--temp", "0,10,20,30,40")
