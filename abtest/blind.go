@@ -48,4 +48,6 @@ type KeyClip struct {
 	TruePeak  report.Level   `json:"true_peak_dbtp"` // as written
 	Before    analyze.Levels `json:"before_gain"`
 	LRA       report.Level   `json:"loudness_range_lu"`
+	Flag      string         `json:"flag,omitempty"`
+	Warnings  []string       `json:"warnings"`
 }

@@ -206,9 +206,10 @@ type pageReport struct {
 			Later      float64 `json:"later"`
 		} `json:"switches"`
 		Images []struct {
-			Src      string `json:"src"`
-			Complete bool   `json:"complete"`
-			Width    int    `json:"width"`
+			Src      string  `json:"src"`
+			Complete bool    `json:"complete"`
+			Width    int     `json:"width"`
+			Shown    float64 `json:"shown"`
 		} `json:"images"`
 	}
 	Problems []string // console errors, exceptions, failed loads
@@ -356,8 +357,10 @@ func writePNG(t *testing.T, path string) {
 // player has a source that loads (metadata read, duration within 1 ms of
 // the clip's); switching clips keeps the playback position (the new clip's
 // currentTime right after the switch within 50 ms of the old clip's, the old
-// one paused, the new one playing on); the plot image loads; and, for the
-// blind set, loading the key reveals every label.
+// one paused, the new one playing on); the plot image loads; the plain
+// set's four pictures load at their files' pixel widths and show at least
+// 700 px wide in the browser's default 800-px window; and, for the blind
+// set (which gets no pictures), loading the key reveals every label.
 func TestPageInBrowser(t *testing.T) {
 	if testing.Short() {
 		t.Skip("browser test skipped in -short mode")
@@ -374,7 +377,7 @@ func TestPageInBrowser(t *testing.T) {
 	base := Options{Chain: ch, ChainPath: chPath, Dry: dry, Oversample: 2,
 		TargetLUFS: DefaultTargetLUFS, CeilingDBTP: DefaultCeilingDBTP, PlotDir: plots,
 		Variants: []Variant{{Label: "as built"}, {Label: "more fuzz", Settings: []string{"fuzz.fuzz=1"}}},
-		Sequence: SequenceOptions{Segment: 0.5, Crossfade: 0.01, Rounds: 1}}
+		Sequence: SequenceOptions{Segment: 0.5, Crossfade: 0.01, Rounds: 1}, Pictures: PictureOptions{On: true}}
 	plain := base
 	plain.OutDir = filepath.Join(dir, "plain")
 	setPlain, err := Build(context.Background(), plain)
@@ -472,9 +475,7 @@ func TestPageInBrowser(t *testing.T) {
 						s.From, s.To, s.Before, s.After, s.Later, s.FromPaused, s.Playing)
 				}
 			}
-			if len(st.Images) != 1 || !st.Images[0].Complete || st.Images[0].Width != 8 {
-				t.Errorf("plot images: %+v, want one 8-pixel-wide picture", st.Images)
-			}
+			checkImages(t, tc.set, st.Images)
 			if !st.OK {
 				t.Errorf("page self-test failed: %+v", st)
 			}
@@ -497,6 +498,48 @@ func TestPageInBrowser(t *testing.T) {
 			}
 			t.Logf("%d requests (%d file: URLs in the folder, the rest data: URLs); switches: %+v", len(rep.Requests), files, st.Switches)
 		})
+	}
+}
+
+// checkImages: the page shows the hand-made plot (8 px wide) and the set's
+// pictures, each loaded at its file's width, the pictures at least 700 px
+// wide on the page (so their 9 pt text stays readable).
+func checkImages(t *testing.T, set *Set, imgs []struct {
+	Src      string  `json:"src"`
+	Complete bool    `json:"complete"`
+	Width    int     `json:"width"`
+	Shown    float64 `json:"shown"`
+}) {
+	t.Helper()
+	want := map[string]int{}
+	for _, c := range set.Variants {
+		for _, p := range c.Plots {
+			want[p.File] = 8
+		}
+	}
+	for _, p := range set.Pictures {
+		f, err := os.Open(filepath.Join(set.Dir, p.File))
+		if err != nil {
+			t.Fatal(err)
+		}
+		cfg, err := png.DecodeConfig(f)
+		f.Close()
+		if err != nil {
+			t.Fatalf("%s: %v", p.File, err)
+		}
+		want[p.File] = cfg.Width
+	}
+	if len(imgs) != len(want) || len(set.Pictures) != map[bool]int{true: 0, false: 4}[set.Blind] {
+		t.Errorf("%d images on the page, %d pictures in the set; want %d images", len(imgs), len(set.Pictures), len(want))
+	}
+	for _, im := range imgs {
+		w, ok := want[im.Src]
+		if !ok || !im.Complete || im.Width != w {
+			t.Errorf("image %s: loaded %v, %d px wide, want %d", im.Src, im.Complete, im.Width, w)
+		}
+		if strings.HasPrefix(im.Src, "fig-") && im.Shown < 700 {
+			t.Errorf("picture %s shows %.0f px wide on the page, want at least 700", im.Src, im.Shown)
+		}
 	}
 }
 

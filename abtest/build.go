@@ -55,7 +55,7 @@ type builder struct {
 // not write are left alone.
 //
 // The steps: plan (options, take, variants, blind order, sequence), a
-// workspace beside the folder, pass 1 (render every variant, measure every
+// check of every path and a work folder, pass 1 (render every variant, measure every
 // clip), the loudness match, pass 2 (gain and write every clip), the set's
 // description with its sequence file and plots, the key, ab.json and the
 // page, and the commit.
@@ -85,6 +85,9 @@ func Build(ctx context.Context, opt Options) (*Set, error) {
 	if err := b.addPlots(set); err != nil {
 		return nil, err
 	}
+	if err := b.addPictures(ctx, set); err != nil {
+		return nil, err
+	}
 	if err := b.writeDescriptions(ctx, set); err != nil {
 		return nil, err
 	}
@@ -107,6 +110,11 @@ func planSet(opt Options) (*builder, error) {
 	}
 	if need := int64(math.Ceil(0.4 * float64(b.take.SampleRate))); b.take.Frames < need {
 		return nil, &ShortTakeError{File: o.Dry, Seconds: b.take.Seconds, Need: 0.4, Why: "one 400 ms loudness block"}
+	}
+	if o.Pictures.On {
+		if b.o.Pictures, err = checkPictures(o.Pictures, float64(b.take.SampleRate)); err != nil {
+			return nil, err
+		}
 	}
 	if b.jobs, err = makeJobs(o); err != nil {
 		return nil, err
@@ -257,11 +265,31 @@ func (b *builder) match() (common float64, gains []float64, limited bool, err er
 		m[i] = Measured{LUFS: float64(j.before.LUFS), TruePeakDBTP: float64(j.before.TruePeakDBTP)}
 	}
 	common, gains, limited = Match(m, b.o.TargetLUFS, b.o.CeilingDBTP)
+	b.flagQuiet(gains)
 	if common < -70 {
 		return 0, nil, false, paramErr("ceiling", fmt.Sprintf("%g dBTP", b.o.CeilingDBTP),
 			fmt.Sprintf("a ceiling the clips can be matched under (they would meet at %.1f LUFS, below the −70 LUFS gate)", common))
 	}
 	return common, gains, limited, nil
+}
+
+// flagQuiet compares each variant's gain with the others'
+// (GainOverOthers) and flags one that needs more than QuieterLimitDB.
+func (b *builder) flagQuiet(gains []float64) {
+	bypass := make([]bool, len(b.jobs))
+	for i, j := range b.jobs {
+		bypass[i] = j.bypass
+	}
+	for i, over := range GainOverOthers(gains, bypass) {
+		c := &b.jobs[i].clip
+		c.GainOverOthersDB = report.Level(over)
+		c.Warnings = report.Warnings{}
+		if over > QuieterLimitDB {
+			c.Flag = MuchQuieter
+			c.Warnings.Add("%s", MuchQuieter)
+		}
+		c.Warnings.Merge(b.jobs[i].chainWarnings)
+	}
 }
 
 // writeClips is pass 2: every clip's source times its gain, written in the
@@ -288,7 +316,7 @@ func (b *builder) describe(common float64, limited bool) *Set {
 		Chain: o.Chain.Name, ChainFile: o.ChainPath, Dry: b.take,
 		TargetLUFS: report.Level(common), RequestedLUFS: report.Level(o.TargetLUFS), CeilingDBTP: report.Level(o.CeilingDBTP),
 		CeilingLimited: limited, Oversample: o.Oversample, Format: o.Format, Blind: o.Blind,
-		Page: PageFile, HearingCaution: HearingCaution, Warnings: report.Warnings{}, Dir: b.dir,
+		Page: PageFile, HearingCaution: HearingCaution, Warnings: report.Warnings{}, Dir: b.dir, Pictures: []Plot{},
 	}
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, ji := range b.order {
@@ -297,8 +325,26 @@ func (b *builder) describe(common float64, limited bool) *Set {
 		lo, hi = math.Min(lo, float64(c.LUFS)), math.Max(hi, float64(c.LUFS))
 	}
 	set.SpreadLU = report.Level(hi - lo)
+	for _, c := range set.Variants {
+		if c.Flag != "" {
+			set.Warnings.Add("%s: %s (its match gain, %+.1f dB, is %.1f dB above the others' median; flagged above %g dB)",
+				c.Shown(), c.Flag, float64(c.GainDB), float64(c.GainOverOthersDB), QuieterLimitDB)
+		}
+	}
 	if limited {
-		set.Warnings.Add("the %.1f dBTP ceiling keeps the clips at %.2f LUFS, below the %.1f LUFS asked for", o.CeilingDBTP, common, o.TargetLUFS)
+		set.Warnings.Add("the %.1f dBTP ceiling keeps the clips at %.2f LUFS, below the %.1f LUFS asked for (the peaks of %s set it)",
+			o.CeilingDBTP, common, o.TargetLUFS, b.limiter().clip.Shown())
+	}
+	if !o.Blind {
+		// A blind set keeps these to its key: they name parts and settings.
+		var labels []string
+		var lists []report.Warnings
+		for _, j := range b.jobs {
+			if !j.bypass {
+				labels, lists = append(labels, j.clip.Label), append(lists, j.chainWarnings)
+			}
+		}
+		set.Warnings.Merge(report.Combine(labels, lists))
 	}
 	var overs int64
 	var readWarn []string
@@ -314,6 +360,18 @@ func (b *builder) describe(common float64, limited bool) *Set {
 		}
 	}
 	return set
+}
+
+// limiter returns the clip whose true peak decides a ceiling-limited
+// common loudness: the least room between its loudness and its true peak.
+func (b *builder) limiter() *job {
+	var worst *job
+	for _, j := range b.jobs {
+		if worst == nil || j.before.TruePeakDBTP-j.before.LUFS > worst.before.TruePeakDBTP-worst.before.LUFS {
+			worst = j
+		}
+	}
+	return worst
 }
 
 // addSequence writes the sequence file into the workspace.
@@ -352,7 +410,8 @@ func (b *builder) writeDescriptions(ctx context.Context, set *Set) error {
 			"load it into index.html to reveal the labels.", Set: filepath.Base(b.dir), Seed: b.o.Seed}
 		for _, c := range set.Variants {
 			key.Clips = append(key.Clips, KeyClip{Blind: c.BlindLabel, File: c.File, Label: c.Label, Bypass: c.Bypass,
-				ChainFile: c.ChainFile, Settings: c.Settings, GainDB: c.GainDB, TruePeak: c.TruePeakDBTP, Before: c.Before, LRA: c.LRA})
+				ChainFile: c.ChainFile, Settings: c.Settings, GainDB: c.GainDB, TruePeak: c.TruePeakDBTP, Before: c.Before, LRA: c.LRA,
+				Flag: c.Flag, Warnings: c.Warnings})
 		}
 		kb, err := json.MarshalIndent(key, "", "  ")
 		if err != nil {
@@ -466,7 +525,7 @@ func makeJobs(o Options) ([]*job, error) {
 		}
 		settings := append([]string{}, v.Settings...)
 		j := &job{label: v.Label, ch: ch,
-			clip: Clip{Label: v.Label, Settings: settings, Plots: []Plot{}, SupplyV: ch.Supply}}
+			clip: Clip{Label: v.Label, Settings: settings, Plots: []Plot{}, SupplyV: ch.Supply, Warnings: report.Warnings{}}}
 		if v.ChainFile != "" {
 			j.clip.ChainFile = file
 		}
@@ -477,7 +536,7 @@ func makeJobs(o Options) ([]*job, error) {
 			return nil, &LabelError{Label: o.BypassLabel, Msg: "is the bypass clip's label too: rename the variant or the bypass clip, or leave the bypass out"}
 		}
 		jobs = append(jobs, &job{label: o.BypassLabel, bypass: true,
-			clip: Clip{Label: o.BypassLabel, Bypass: true, Settings: []string{}, Plots: []Plot{}}})
+			clip: Clip{Label: o.BypassLabel, Bypass: true, Settings: []string{}, Plots: []Plot{}, Warnings: report.Warnings{}}})
 	}
 	return jobs, nil
 }

@@ -541,3 +541,62 @@ func TestOtherChainFile(t *testing.T) {
 		t.Errorf("want the variant and the bypass, got %d jobs", len(jobs))
 	}
 }
+
+// A dead variant is flagged (seen case: a germanium build's variant that
+// came out dead was raised to match and nothing said so). The germanium
+// example with Q1's collector trimmer at zero saturates Q2 and passes
+// almost nothing; its match needs over 20 dB more gain than the build as
+// written, past QuieterLimitDB: ab.json flags it, names it in the set's
+// warnings, carries its chain's idle-point warnings, and leaves the
+// working build unflagged. A blind set flags it by its neutral label.
+func TestDeadVariantFlagged(t *testing.T) {
+	dir := t.TempDir()
+	dry := makeDry(t, dir, 2.5, 1)
+	chPath := filepath.Join("..", "chains", "germanium.toml")
+	ch, err := chains.Load(chPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vars := []Variant{{Label: "as built", Settings: []string{}}, {Label: "trim1 at zero", Settings: []string{"fuzz.trim1=0"}}}
+	for _, blind := range []bool{false, true} {
+		out := filepath.Join(dir, map[bool]string{false: "set", true: "blind"}[blind])
+		set, err := Build(context.Background(), Options{Chain: ch, ChainPath: chPath, Dry: dry, OutDir: out, Variants: vars,
+			Oversample: 1, TargetLUFS: DefaultTargetLUFS, CeilingDBTP: DefaultCeilingDBTP, Sequence: SequenceOptions{Off: true},
+			Blind: blind, Seed: 1, KeyPath: out + "-key.json"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var dead, built *Clip
+		for i := range set.Variants {
+			switch set.Variants[i].Label {
+			case "trim1 at zero":
+				dead = &set.Variants[i]
+			case "as built":
+				built = &set.Variants[i]
+			}
+		}
+		if dead.Flag != MuchQuieter || !(float64(dead.GainOverOthersDB) > QuieterLimitDB) || built.Flag != "" {
+			t.Fatalf("blind %v: dead %q (%.1f dB over), as built %q", blind, dead.Flag, float64(dead.GainOverOthersDB), built.Flag)
+		}
+		if len(set.Warnings) == 0 || !strings.HasPrefix(set.Warnings[0], dead.Shown()+": "+MuchQuieter) {
+			t.Errorf("blind %v: set warnings %q", blind, set.Warnings)
+		}
+		b, err := os.ReadFile(filepath.Join(out, ManifestFile))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(string(b), `"flag": "`+MuchQuieter+`"`) {
+			t.Errorf("blind %v: ab.json has no flag", blind)
+		}
+		if !blind && !strings.Contains(strings.Join(dead.Warnings, "\n"), "saturated at idle") {
+			t.Errorf("the dead variant's own warnings: %q", dead.Warnings)
+		}
+		if blind && strings.Contains(string(b), "saturated") {
+			t.Errorf("a blind ab.json names what a clip's chain does")
+		}
+		page, _ := os.ReadFile(filepath.Join(out, PageFile))
+		if !strings.Contains(string(page), `"flag":"`+MuchQuieter+`"`) {
+			t.Errorf("blind %v: the page has no flag", blind)
+		}
+	}
+}

@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 
 	"renderchain/analyze"
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/dsp/wavio"
 	"renderchain/dsp/wdf"
@@ -26,6 +27,8 @@ type job struct {
 	before analyze.Levels
 	stats  wdf.Stats
 	clip   Clip
+	// chainWarnings are the variant's prepared chain's (bias.Warnings).
+	chainWarnings report.Warnings
 
 	// What the reader of the take let pass (pass 1 of a rendered clip):
 	// float samples beyond full scale, and header faults it tolerated.
@@ -39,6 +42,12 @@ func (j *job) render(ctx context.Context, dry string, oversample int, pr *progre
 	fail := func(err error) error { return &VariantError{Label: j.label, Err: err} }
 	eng, err := engine.PrepareContext(ctx, j.ch, oversample)
 	if err != nil {
+		return fail(err)
+	}
+	if j.chainWarnings, err = bias.Warnings(ctx, eng); err != nil {
+		if ctx.Err() != nil {
+			return ctx.Err()
+		}
 		return fail(err)
 	}
 	in, err := wavio.Open(dry)

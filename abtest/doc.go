@@ -45,6 +45,22 @@
 // the −70 LUFS absolute gate and moved the result by more than 0.001 LU, the
 // gain is corrected and the clip rewritten (at most three times).
 //
+// # Flags and warnings
+//
+// A variant whose match needs much more gain than the others is suspect: a
+// dead build comes out quiet and the match raises it to the same loudness,
+// so it sounds like just another variant. GainOverOthers compares each
+// variant's gain with the median gain of the other variants (of the bypass,
+// for a lone variant: a fuzz is normally louder than its dry take, so the
+// bypass is otherwise left out); above QuieterLimitDB (12 dB) the clip is
+// flagged "much quieter than the others: check it" in ab.json (flag,
+// gain_over_others_db), in the set's warnings and beside its label on the
+// page. Each variant also carries its chain's warnings (bias.Warnings: the
+// build's, the stability check's with its rendered check, the operating
+// point's), joined in the set's warnings with the variant's label where
+// only some variants have them. A blind set keeps those chain warnings to
+// its key (they name parts and settings) and shows flags by neutral label.
+//
 // # Sequence file
 //
 // sequence.wav holds K = rounds × len(order) segments. With S the segment, F
@@ -78,7 +94,18 @@
 // buttons and keys 1–9 switch between them keeping the playback position and
 // play state; a table gives settings, loudness, true peak, gain and loudness
 // range. Plots are PNG files copied from Options.PlotDir (SLUG.TITLE.png, SLUG
-// being Slug of the variant's label). The page shows a hearing caution and
+// being Slug of the variant's label).
+//
+// # Pictures
+//
+// With Options.Pictures the set carries its own pictures, every variant in
+// one figure each (PictureOptions): small-signal response, harmonics of a
+// stated test sine, the same 40 ms of every clip from the middle of the
+// take's loudest half second, and each clip's long-term third-octave
+// spectrum; fig-*.png files listed in ab.json's "pictures". Clip i is drawn
+// in style i of package plotting, and the page shows a swatch of that
+// colour (plotting.Hex) beside its player; pictures are at least 700 px
+// wide on the page. A blind set gets none. The page shows a hearing caution and
 // starts its players at half volume. Its script's abPage.selfTest() (run on
 // load when the page is opened with #selftest, the result written into the
 // page) checks in the browser that every player loads and that switching
@@ -115,7 +142,8 @@
 //
 // # Non-goals
 //
-// No limiting, compression or equalisation of clips; no loudness matching of
+// No limiting, compression or equalisation of clips; no pictures of a
+// blind set; no loudness matching of
 // the sequence's segments beyond their clips'; no surround channel weights;
 // no scoring or collection of a listener's answers (the key is for the
 // builder); no streaming server — the page is opened from disk; no lossy

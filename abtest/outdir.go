@@ -107,6 +107,7 @@ func checkOutDir(dir string, force bool, dry string) ([]string, error) {
 			File  string `json:"file"`
 			Plots []Plot `json:"plots"`
 		} `json:"variants"`
+		Pictures []Plot `json:"pictures"`
 	}
 	if b, err := os.ReadFile(filepath.Join(dir, ManifestFile)); err == nil && json.Unmarshal(b, &old) == nil {
 		for _, v := range old.Variants {
@@ -114,6 +115,9 @@ func checkOutDir(dir string, force bool, dry string) ([]string, error) {
 			for _, p := range v.Plots {
 				stale = append(stale, p.File)
 			}
+		}
+		for _, p := range old.Pictures {
+			stale = append(stale, p.File)
 		}
 	}
 	var keep []string

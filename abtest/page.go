@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"renderchain/plotting"
 	"renderchain/report"
 )
 
@@ -27,7 +28,11 @@ type pageClip struct {
 	Settings     []string      `json:"settings,omitempty"`
 	ChainFile    string        `json:"chain_file,omitempty"`
 	Bypass       bool          `json:"bypass,omitempty"`
+	Flag         string        `json:"flag,omitempty"`
 	Plots        []Plot        `json:"plots"`
+	// Colour is the clip's colour in the set's pictures (plotting.Hex of
+	// its position), shown beside its player.
+	Colour string `json:"colour"`
 }
 
 type pageData struct {
@@ -46,6 +51,7 @@ type pageData struct {
 	Clips          []pageClip   `json:"clips"`
 	Sequence       *Sequence    `json:"sequence"`
 	Warnings       []string     `json:"warnings"`
+	Pictures       []Plot       `json:"pictures"`
 }
 
 // Page returns the listening page of a set: one HTML file with its styles,
@@ -65,14 +71,15 @@ func Page(s *Set) ([]byte, error) {
 		SampleRate: s.Dry.SampleRate, Channels: s.Dry.Channels,
 		TargetLUFS: s.TargetLUFS, RequestedLUFS: s.RequestedLUFS, CeilingDBTP: s.CeilingDBTP,
 		CeilingLimited: s.CeilingLimited, Blind: s.Blind, HearingCaution: HearingCaution,
-		Sequence: s.Sequence, Warnings: s.Warnings,
+		Sequence: s.Sequence, Warnings: s.Warnings, // a blind set's name clips by their neutral labels only
+		Pictures: s.Pictures,
 	}
-	if s.Blind {
-		d.Warnings = nil // they name clips
+	if d.Pictures == nil {
+		d.Pictures = []Plot{}
 	}
 	for i := range s.Variants {
 		c := &s.Variants[i]
-		pc := pageClip{Label: c.Shown(), File: c.File, LUFS: c.LUFS, Plots: c.Plots}
+		pc := pageClip{Label: c.Shown(), File: c.File, LUFS: c.LUFS, Flag: c.Flag, Plots: c.Plots, Colour: plotting.Hex(i)}
 		if !s.Blind {
 			g, l, tp := c.GainDB, c.LRA, c.TruePeakDBTP
 			pc.GainDB, pc.LRA, pc.TruePeakDBTP = &g, &l, &tp

@@ -52,6 +52,10 @@ type Options struct {
 	// the set under the clip's own name and shown on the page.
 	PlotDir string
 
+	// Pictures asks for the set's own pictures, every variant in one
+	// figure each (see PictureOptions); not in a blind set.
+	Pictures PictureOptions
+
 	Force bool // replace the clips of an earlier run in OutDir
 	Jobs  int  // variants rendered at once; 0 means runtime.NumCPU()
 
@@ -83,6 +87,7 @@ type Set struct {
 	Blind          bool            `json:"blind"`
 	Variants       []Clip          `json:"variants"`
 	Sequence       *Sequence       `json:"sequence"` // null without a sequence file
+	Pictures       []Plot          `json:"pictures"` // the set's own pictures (PictureOptions), in page order
 	Page           string          `json:"page"`
 	HearingCaution string          `json:"hearing_caution"`
 	Warnings       report.Warnings `json:"warnings"`
@@ -111,7 +116,15 @@ type Clip struct {
 	Settings     []string       `json:"settings"`             // --set overrides; empty: the chain as written
 	Solver       *report.Solver `json:"solver,omitempty"`
 	Plots        []Plot         `json:"plots"`
-	BlindLabel   string         `json:"-"` // the neutral label of a blind set, else ""
+	// GainOverOthersDB is the clip's gain minus the median gain of the
+	// clips it is compared with (GainOverOthers); null for the bypass.
+	GainOverOthersDB report.Level `json:"gain_over_others_db"`
+	// Flag is MuchQuieter when GainOverOthersDB passes QuieterLimitDB.
+	Flag string `json:"flag,omitempty"`
+	// Warnings are the variant's chain's (build, stability and its
+	// rendered check, operating point; bias.Warnings), the flag first.
+	Warnings   report.Warnings `json:"warnings"`
+	BlindLabel string          `json:"-"` // the neutral label of a blind set, else ""
 }
 
 // Shown returns the label the listener sees: the neutral one in a blind set.
@@ -136,6 +149,7 @@ type blindClip struct {
 	LUFS         report.Level `json:"lufs"`
 	TruePeakDBTP report.Level `json:"true_peak_dbtp"`
 	PeakDBFS     report.Level `json:"peak_dbfs"`
+	Flag         string       `json:"flag,omitempty"`
 	Plots        []Plot       `json:"plots"`
 }
 
@@ -150,7 +164,7 @@ func (s *Set) MarshalJSON() ([]byte, error) {
 	clips := make([]blindClip, len(s.Variants))
 	for i, c := range s.Variants {
 		clips[i] = blindClip{Label: c.Shown(), File: c.File, GainDB: c.GainDB, LUFS: c.LUFS,
-			TruePeakDBTP: c.TruePeakDBTP, PeakDBFS: c.PeakDBFS, Plots: c.Plots}
+			TruePeakDBTP: c.TruePeakDBTP, PeakDBFS: c.PeakDBFS, Flag: c.Flag, Plots: c.Plots}
 	}
 	return json.Marshal(struct {
 		*plain

@@ -244,3 +244,49 @@ func TestSlug(t *testing.T) {
 		}
 	}
 }
+
+// GainOverOthers compares each variant with the median of the other
+// variants (the bypass only for a lone variant); medians by hand.
+func TestGainOverOthers(t *testing.T) {
+	nan := math.NaN()
+	for _, tc := range []struct {
+		gains  []float64
+		bypass []bool
+		want   []float64
+	}{
+		// Others of 29: {0, 1}, median 0.5; of 0: {1, 29}, median 15; of 1: {0, 29}, median 14.5.
+		{[]float64{0, 1, 29}, []bool{false, false, false}, []float64{-15, -13.5, 28.5}},
+		// The bypass (5) is left out while there are other variants.
+		{[]float64{-20, 5, 3}, []bool{false, true, false}, []float64{-23, nan, 23}},
+		// A lone variant is compared with the bypass.
+		{[]float64{2, -12}, []bool{false, true}, []float64{14, nan}},
+		// Nothing to compare with.
+		{[]float64{4}, []bool{false}, []float64{nan}},
+		// Odd counts: the others of 13 are {-1, 0, 7}, median 0; of 0, {-1, 7, 13}, median 7.
+		{[]float64{13, -1, 0, 7}, []bool{false, false, false, false}, []float64{13, -8, -7, 7}},
+	} {
+		got := GainOverOthers(tc.gains, tc.bypass)
+		for i := range got {
+			if !(got[i] == tc.want[i] || math.IsNaN(got[i]) && math.IsNaN(tc.want[i])) {
+				t.Errorf("%v %v: %v, want %v", tc.gains, tc.bypass, got, tc.want)
+				break
+			}
+		}
+	}
+}
+
+// The page shows a clip's flag beside its label, in a blind set too (by the
+// neutral label: the flag is about the audio, not the build).
+func TestPageShowsFlag(t *testing.T) {
+	for _, blind := range []bool{false, true} {
+		s := &Set{Chain: "c", Blind: blind, Variants: []Clip{{Label: "dead", BlindLabel: map[bool]string{true: "A"}[blind], Flag: MuchQuieter}, {Label: "ok"}},
+			Warnings: []string{"A: " + MuchQuieter}}
+		b, err := Page(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(string(b), `"flag":"`+MuchQuieter+`"`) || !strings.Contains(string(b), `"warnings":["A: `+MuchQuieter) {
+			t.Errorf("blind %v: the page's data lacks the flag or the warning", blind)
+		}
+	}
+}

@@ -7,6 +7,12 @@
 // memory. It also gives the loudness meter and the loudness figures the
 // A/B sets match with (Meter, Levels, Loudness).
 //
+// Spectrogram reads a file's channel mean into a short-time spectrum
+// (85 ms Hann frames, a quarter-frame hop, at most MaxSpectrogramFrames
+// frames whatever the file's length); SpectrogramFigure draws it, or a
+// dry take above its wet render on one colour scale, so a builder sees
+// where a circuit's fizz sits.
+//
 // Levels are relative to digital full scale (±1): a full-scale sine has
 // peak 0 dBFS and RMS −3.01 dBFS. A level that does not exist (silence, or
 // a file shorter than a window) is −∞ or NaN inside and null in JSON
@@ -21,6 +27,9 @@
 //   - EBU Tech 3341 (2016), Loudness metering (test cases used in tests);
 //     EBU Tech 3342 (2016), Loudness range.
 //   - IEC 61260-1:2014, one-third-octave bands.
+//   - F. J. Harris, "On the use of windows for harmonic analysis with the
+//     discrete Fourier transform", Proc. IEEE 66(1), 1978 (the Hann
+//     window of the spectrogram, as in package spectrum).
 //
 // # Non-goals
 //

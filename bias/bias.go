@@ -88,10 +88,16 @@ type Bias struct {
 	Nodes       []Node  // in circuit order, ground left out
 	Transistors []Transistor
 	Diodes      []Diode
+	FETs        []FET   // JFETs and MOSFETs
+	OpAmps      []OpAmp // op-amps (their macromodels' helper elements hidden)
 	// SupplyCurrent is the current the supply delivers, A (its magnitude),
 	// and SupplyPower the power, W.
 	SupplyCurrent, SupplyPower float64
 	Warnings                   report.Warnings
+	// Notes are the chain lint's notes: choices the tool made that the
+	// user should know about (a node reached only through capacitors
+	// given a leak to ground).
+	Notes []string
 	// Method and Iterations report how the DC solve finished.
 	Method     string
 	Iterations int
@@ -117,12 +123,45 @@ func SolveContext(ctx context.Context, ch *chains.Chain) (*Bias, error) {
 	return Of(p), nil
 }
 
-// Of reads the operating point of a prepared chain.
+// Of reads the operating point of a prepared chain. Its warnings are the
+// prepared chain's (the build's and the stability check's) followed by the
+// operating point's.
 func Of(p *engine.Prepared) *Bias {
 	b := Analyse(p.Circuit, p.DC)
 	b.Chain, b.File = p.Chain.Name, p.Chain.File
 	b.Prepared = p
+	b.Warnings = append(append(report.Warnings{}, p.Warnings...), b.Warnings...)
+	b.Notes = p.Findings.Notes()
 	return b
+}
+
+// Check backs a stability warning with the rendered check: for an unstable
+// chain it runs engine.Prepared.IdleWarning (a second or two of render)
+// and puts its line right after the stability warning. A stable chain, or
+// a Bias read without a prepared chain, is left as it is.
+func (b *Bias) Check(ctx context.Context) error {
+	if b.Prepared == nil {
+		return nil
+	}
+	w, err := b.Prepared.CheckedWarnings(ctx)
+	if err != nil {
+		return err
+	}
+	w.Merge(b.Warnings)
+	b.Warnings = w
+	return nil
+}
+
+// Warnings returns every warning a report on the prepared chain p
+// carries, in order: the build's, the stability check's with its rendered
+// check (Check), and the operating point's (transistors saturated, cut
+// off, reversed or near a rail).
+func Warnings(ctx context.Context, p *engine.Prepared) (report.Warnings, error) {
+	b := Of(p)
+	if err := b.Check(ctx); err != nil {
+		return nil, err
+	}
+	return b.Warnings, nil
 }
 
 // Analyse reads an operating point of circuit c: node voltages, the
@@ -149,7 +188,7 @@ func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
 			b.Transistors = append(b.Transistors, transistorAt(c, op, e, d))
 		case models.DiodeKind:
 			anode := e.Nodes[0]
-			if rs := c.Element(e.Ref + ".rs"); rs != nil {
+			if rs := c.Element(models.InternalNode(e.Ref, "rs")); rs != nil {
 				anode = rs.Nodes[0]
 			}
 			v := op.Node[anode] - op.Node[e.Nodes[1]]
@@ -161,6 +200,7 @@ func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
 	for _, t := range b.Transistors {
 		b.Warnings.Merge(transistorWarnings(t, c, vplus, b.Supply))
 	}
+	b.readDevices(c, op)
 	return b
 }
 
@@ -214,20 +254,33 @@ func transistorWarnings(t Transistor, c *models.Circuit, vplus int, supply float
 	case Saturated:
 		w = append(w, fmt.Sprintf("%s is saturated at idle (Vce %s): its collector cannot swing further towards the emitter", t.Ref, models.FormatValue(t.Vce, "V")))
 	case CutOff:
-		w = append(w, fmt.Sprintf("%s is cut off at idle (Ic %s): it passes no signal until driven on", t.Ref, models.FormatValue(t.Ic, "A")))
+		ic := "Ic " + models.FormatValue(t.Ic, "A")
+		if math.Abs(t.Ic) < report.CurrentFloor {
+			ic = "Ic under " + models.FormatValue(report.CurrentFloor, "A")
+		}
+		w = append(w, fmt.Sprintf("%s is cut off at idle (%s): it passes no signal until driven on", t.Ref, ic))
 	case Reverse:
 		w = append(w, fmt.Sprintf("%s works in reverse (collector and emitter swapped in effect): check its pins", t.Ref))
 	}
 	nc := c.Lookup(t.Collector)
 	if nc != models.Ground && nc != vplus {
 		if d := math.Abs(t.Vc); d < RailMargin {
-			w = append(w, fmt.Sprintf("%s's collector sits %s from ground (under %g V of room to swing)", t.Ref, models.FormatValue(d, "V"), RailMargin))
+			w = append(w, fmt.Sprintf("%s's collector sits %s ground (under %g V of room to swing)", t.Ref, distance(d), RailMargin))
 		}
-		if d := math.Abs(t.Vc - supply); d < RailMargin {
-			w = append(w, fmt.Sprintf("%s's collector sits %s from the supply rail (under %g V of room to swing)", t.Ref, models.FormatValue(d, "V"), RailMargin))
+		if d := math.Abs(t.Vc - supply); d < RailMargin && !inductiveLoad(c, nc) {
+			w = append(w, fmt.Sprintf("%s's collector sits %s the supply rail (under %g V of room to swing)", t.Ref, distance(d), RailMargin))
 		}
 	}
 	return w
+}
+
+// distance words how far a node sits from a rail: "at" below the display
+// floor of voltages, else "X V from".
+func distance(d float64) string {
+	if d < report.VoltageFloor {
+		return "at"
+	}
+	return models.FormatValue(d, "V") + " from"
 }
 
 // Kind is the transistor's part kind, npn or pnp.

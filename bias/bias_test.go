@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"renderchain/chains"
+	"renderchain/internal/refnodal"
 	"renderchain/internal/testchains"
 	"renderchain/models"
 )
@@ -62,7 +63,8 @@ func TestCommonEmitterAgainstHandbook(t *testing.T) {
 }
 
 // The direct-coupled pair with DC feedback against an independent nodal
-// Ebers–Moll solve (helpers_test.go): node voltages within 1 mV, the
+// Ebers–Moll solve (internal/refnodal; the germanium pair's named model
+// adds its Early voltage and base resistance): node voltages within 1 mV, the
 // issue's figure (both solve the same equations to far better than that).
 func TestPairAgainstIndependentNodalSolve(t *testing.T) {
 	type setting struct{ trim1, trim2 float64 }
@@ -76,13 +78,6 @@ func TestPairAgainstIndependentNodalSolve(t *testing.T) {
 			}
 			vcc := ch.Supply
 			vt := models.ThermalVoltage(models.NominalTemperature)
-			dev := func(c, bb, e string, beta float64) refBJT {
-				q := refBJT{c: c, b: bb, e: e, is: 10e-15, bf: beta, br: 4, vt: vt}
-				if p.Kind == "pnp" {
-					q.pnp, q.is, q.icbo = true, 200e-9, 2e-6
-				}
-				return q
-			}
 			r := func(s string) float64 {
 				v, err := models.ParseValue(s, models.Resistance)
 				if err != nil {
@@ -90,23 +85,34 @@ func TestPairAgainstIndependentNodalSolve(t *testing.T) {
 				}
 				return v
 			}
-			net := &refNet{
-				fixed: map[string]float64{"gnd": 0, "v+": vcc, "in": 0},
-				res: []refRes{
-					{"in", "fz.i1", 10e3},
-					{"v+", "fz.t1", 50e3 * s.trim1}, // linear taper: R·x from ccw to wiper
-					{"fz.t1", "fz.c1", r(p.R1)},
-					{"v+", "fz.t2", 10e3 * s.trim2},
-					{"fz.t2", "fz.c2", r(p.R2)},
-					{"fz.e2", "gnd", r(p.R3)},
-					{"fz.fz", "fz.e2", 1e3 * (1 - p.Gain)},
-					{"fz.e2", "fz.b1", r(p.R4)},
-					{"out", "gnd", 470e3},
-					{"out", "gnd", 1e6},
-				},
-				bjts: []refBJT{dev("fz.c1", "fz.b1", "gnd", p.Beta1), dev("fz.c2", "fz.c1", "fz.e2", p.Beta2)},
+			net := refnodal.New(map[string]float64{"v+": vcc, "in": 0})
+			net.R("in", "fz.i1", 10e3)
+			net.R("v+", "fz.t1", 50e3*s.trim1) // linear taper: R·x from ccw to wiper
+			net.R("fz.t1", "fz.c1", r(p.R1))
+			net.R("v+", "fz.t2", 10e3*s.trim2)
+			net.R("fz.t2", "fz.c2", r(p.R2))
+			net.R("fz.e2", "gnd", r(p.R3))
+			net.R("fz.fz", "fz.e2", 1e3*(1-p.Gain))
+			net.R("fz.e2", "fz.b1", r(p.R4))
+			net.R("out", "gnd", 470e3)
+			net.R("out", "gnd", 1e6)
+			dev := func(ref, c, bb, e string, beta float64) {
+				q := refnodal.BJT{C: c, B: bb, E: e, Is: 10e-15, BF: beta, BR: 4, Vt: vt}
+				if p.Kind == "pnp" {
+					// The named germanium model brings its Early voltage
+					// and base resistance (models.Presets, Complete).
+					second := models.Presets[p.Model].Complete().BJT
+					q.PNP, q.Is, q.Icbo = true, 200e-9, 2e-6
+					q.VA, q.BaseResistance, q.InternalBaseNode = second.EarlyVoltage, second.BaseResistance, "fz."+ref+"#base"
+				}
+				net.BJT(q)
 			}
-			want := net.solve(t)
+			dev("Q1", "fz.c1", "fz.b1", "gnd", p.Beta1)
+			dev("Q2", "fz.c2", "fz.c1", "fz.e2", p.Beta2)
+			want, err := net.Solve(nil)
+			if err != nil {
+				t.Fatal(err)
+			}
 			worst := 0.0
 			for name, w := range want {
 				got, ok := b.Voltage(name)
@@ -252,6 +258,7 @@ parts = [
   { ref = "R1", kind = "resistor", value = "10k", pins = ["v+", "a"] },
   { ref = "D1", kind = "diode", is = "2.52n", n = 1.75, rs = 10, pins = { anode = "a", cathode = "gnd" } },
   { ref = "C1", kind = "capacitor", value = "1u", pins = ["in", "a"] },
+  { ref = "C2", kind = "capacitor", value = "1u", pins = ["a", "out"] },
 ]`)
 	if err != nil {
 		t.Fatal(err)
@@ -264,7 +271,7 @@ parts = [
 	for _, n := range b.Nodes {
 		if n.Internal {
 			internal++
-			if n.Name != "clip.D1.junction" {
+			if n.Name != "clip.D1#junction" {
 				t.Errorf("internal node %s", n.Name)
 			}
 		}
@@ -286,7 +293,7 @@ parts = [
 		t.Errorf("diode terminals %s %s, V %g vs node %g", d.Anode, d.Cathode, d.V, va)
 	}
 	r := b.Report()
-	if _, ok := r.Nodes["clip.D1.junction"]; ok || r.InternalNodes["clip.D1.junction"] != d.Vj {
+	if _, ok := r.Nodes["clip.D1#junction"]; ok || r.InternalNodes["clip.D1#junction"] != d.Vj {
 		t.Errorf("JSON: junction in nodes %v, internal %v", r.Nodes, r.InternalNodes)
 	}
 }

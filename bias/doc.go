@@ -7,7 +7,7 @@
 //
 // Solve prepares a chain (engine.Prepare: build, DC operating point) and
 // reads it as a Bias: every node's voltage by name (nodes Build adds inside a part, such
-// as a diode's "stage.D1.junction" behind its series resistance, are marked
+// as a diode's "stage.D1#junction" behind its series resistance or a transistor's "stage.Q1#base" behind its base resistance, are marked
 // Internal), and for each transistor its terminal voltages Vc, Vb, Ve, Vbe,
 // Vce, Vbc, currents Ib, Ic (into the base and collector) and Ie = Ib + Ic
 // (out of the emitter), dissipation Vbe·Ib + Vce·Ic and region. All values
@@ -34,7 +34,18 @@
 //
 // Warnings flag a transistor saturated, cut off or reversed at idle, and a
 // collector within RailMargin (1 V) of either rail (ground or v+) unless
-// it is wired to that rail.
+// it is wired to that rail (or, for the supply rail, loaded by an inductor
+// or a transformer winding, which idles near the rail by design).
+//
+// JFETs and MOSFETs are read as FET: Vgs, Vds, Id, the overdrive past
+// pinch-off or threshold, and a region by FETRegionRule (cut-off, ohmic,
+// active, reverse), with warnings for a FET cut off, ohmic or reversed at
+// idle, a JFET gate junction forward biased, and a MOSFET gate that only
+// board leakage holds. Op-amps are read as OpAmp from the elements of
+// their macromodel (which stay out of the device lists): the pins'
+// voltages, the output's swing limits at these rails and the room left
+// each way, with warnings for an output at a limit at idle, a lopsided idle
+// point, rails the wrong way round and inputs outside the rails.
 //
 // # Targets
 //

@@ -20,12 +20,20 @@ type BiasReport struct {
 	InternalNodes  map[string]float64 `json:"internal_nodes,omitempty"`
 	Devices        []DeviceReport     `json:"devices"`
 	Diodes         []DiodeReport      `json:"diodes"`
+	FETs           []FETReport        `json:"fets"`
+	OpAmps         []OpAmpReport      `json:"opamps"`
 	SupplyCurrentA float64            `json:"supply_current_a"`
 	SupplyPowerW   float64            `json:"supply_power_w"`
 	Warnings       []string           `json:"warnings"`
+	Notes          []string           `json:"notes,omitempty"`
 	DCMethod       string             `json:"dc_method"`
 	DCIterations   int                `json:"dc_iterations"`
 	RegionRule     string             `json:"region_rule"`
+	FETRegionRule  string             `json:"fet_region_rule"`
+
+	// Stability is the pole analysis at this operating point (absent for
+	// a bare circuit read without a prepared chain).
+	Stability *report.Stability `json:"stability,omitempty"`
 
 	Target     *TargetReport    `json:"target,omitempty"`
 	Symmetric  *SymmetricReport `json:"symmetric,omitempty"`
@@ -135,7 +143,8 @@ func RegionRule() string {
 func (b *Bias) Report() *BiasReport {
 	r := &BiasReport{Chain: b.Chain, ChainFile: b.File, SupplyV: b.Supply, TemperatureC: b.Temperature - models.ZeroCelsius,
 		Nodes: map[string]float64{"gnd": 0}, SupplyCurrentA: b.SupplyCurrent, SupplyPowerW: b.SupplyPower,
-		Warnings: nonNil(b.Warnings), DCMethod: b.Method, DCIterations: b.Iterations, RegionRule: RegionRule()}
+		Warnings: nonNil(b.Warnings), Notes: b.Notes, DCMethod: b.Method, DCIterations: b.Iterations, RegionRule: RegionRule(),
+		FETRegionRule: FETRegionRule()}
 	for _, n := range b.Nodes {
 		if n.Internal {
 			if r.InternalNodes == nil {
@@ -147,6 +156,10 @@ func (b *Bias) Report() *BiasReport {
 		}
 	}
 	r.Devices, r.Diodes = deviceReports(b)
+	if b.Prepared != nil {
+		r.Stability = b.Prepared.StabilityReport()
+	}
+	r.FETs, r.OpAmps = otherReports(b)
 	return r
 }
 

@@ -27,7 +27,13 @@ type Chain struct {
 	Load        float64 // Ω from out to gnd; 0 for none
 	FullScale   float64 // output volts written as 0 dBFS
 	Stages      []*Stage
-	loc         *locator
+	// Nets are the node names shared by every stage besides gnd, v+, in
+	// and out, declared once by the top-level nets list (see nets.go).
+	Nets []string
+	// Power is the supply network between the ideal supply and v+, from
+	// the [power] table; nil for an ideal supply straight on v+.
+	Power *Stage
+	loc   *locator
 }
 
 // Stage is one stage of a chain, its parts resolved (template expanded and
@@ -62,19 +68,18 @@ type Part struct {
 	Tolerance float64 // fraction; 0 = unspecified
 	Adjusts   string  // a trimmer's transistor, for bias targets
 	About     string
+	// Windings are a transformer's windings (its pins are in them, and in
+	// Pins as "w1.start", "w1.end", …).
+	Windings []Winding
+	// Positions are a switch's positions, Position the one selected
+	// (0-based; Text holds its name).
+	Positions []Position
+	Position  int
 }
-
-// Device parameters a part may carry, with their quantities.
-var deviceParams = map[PartKind]map[string]models.Quantity{
-	Diode: {"is": models.Current, "n": models.Dimensionless, "rs": models.Resistance, "eg": models.Dimensionless, "xti": models.Dimensionless},
-	NPN: {"is": models.Current, "hfe": models.Dimensionless, "br": models.Dimensionless, "icbo": models.Current,
-		"leak_doubling": models.Dimensionless, "eg": models.Dimensionless, "xti": models.Dimensionless},
-}
-
-func init() { deviceParams[PNP] = deviceParams[NPN] }
 
 var commonKeys = map[string]bool{"ref": true, "kind": true, "value": true, "pins": true, "tolerance": true,
-	"taper": true, "knob": true, "per_metre": true, "model": true, "adjusts": true, "about": true}
+	"taper": true, "knob": true, "per_metre": true, "model": true, "adjusts": true, "about": true,
+	"windings": true, "positions": true}
 
 type rawChain struct {
 	Name        string     `toml:"name"`
@@ -84,6 +89,8 @@ type rawChain struct {
 	Input       rawInput   `toml:"input"`
 	Output      rawOutput  `toml:"output"`
 	Stages      []rawStage `toml:"stage"`
+	Nets        any        `toml:"nets"`
+	Power       *rawPower  `toml:"power"`
 }
 
 type rawInput struct {
@@ -140,12 +147,7 @@ func Parse(name, src string) (*Chain, error) {
 	}
 	loc := newLocator(src)
 	if und := undecoded(md); len(und) > 0 {
-		k := und[0]
-		line := loc.findKey(strings.Join(k[:len(k)-1], "."), k[len(k)-1])
-		if k[0] == "stage" {
-			line = 0
-		}
-		return nil, &Error{File: name, Line: line, Msg: fmt.Sprintf("unknown key %q", k.String())}
+		return nil, unknownChainKey(name, loc, und[0])
 	}
 	ch := &Chain{Name: raw.Name, File: name, Oversample: raw.Oversample, loc: loc, Source: raw.Input.Source}
 	top := func(table, key string, v any, q models.Quantity, r models.Range, def string) (float64, error) {
@@ -207,6 +209,12 @@ func Parse(name, src string) (*Chain, error) {
 	if n := len(raw.Stages) + len(ch.Stages); n > MaxStages { // before expanding any template
 		return nil, &LimitError{File: name, What: "number of stages", Value: int64(n), Limit: MaxStages, Unit: "stages"}
 	}
+	if err := ch.parseNets(raw.Nets); err != nil {
+		return nil, err
+	}
+	if err := ch.parsePower(raw.Power); err != nil {
+		return nil, err
+	}
 	seen := map[string]bool{}
 	for k, rs := range raw.Stages {
 		st, err := ch.parseStage(k, rs)
@@ -215,6 +223,9 @@ func Parse(name, src string) (*Chain, error) {
 		}
 		if seen[st.ID] {
 			return nil, &Error{File: name, Line: loc.find(k), Where: "stage " + st.ID, Msg: "duplicate stage id"}
+		}
+		if err := ch.checkStageTemplate(k, st); err != nil {
+			return nil, err
 		}
 		seen[st.ID] = true
 		ch.Stages = append(ch.Stages, st)
@@ -340,7 +351,14 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 		if len(rs.Parts) > 0 {
 			return nil, fail(ch.loc.find(k, "parts"), "a stage takes either template or parts, not both")
 		}
-		st, err := expandTemplate(rs.Template, rs.ID, knobs, rs.Values, func(needles ...string) int { return ch.loc.find(k, needles...) })
+		st, err := expandTemplate(rs.Template, rs.ID, knobs, rs.Values, func(needles ...string) int {
+			if len(needles) == 1 { // a knob or part name: the line that assigns it
+				if line := ch.loc.findAssign(k, needles[0]); line > 0 {
+					return line
+				}
+			}
+			return ch.loc.find(k, needles...)
+		})
 		if err != nil {
 			var ce *Error
 			if errors.As(err, &ce) && ce.File == "" {
@@ -348,7 +366,7 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 				if ce.Line == 0 {
 					ce.Line = ch.loc.find(k, "template")
 				}
-				ce.Where = joinWhere(where, ce.Where)
+				ce.Where = strings.TrimSuffix(where+": "+ce.Where, ": ")
 			}
 			return nil, err
 		}
@@ -382,18 +400,6 @@ func (ch *Chain) parseStage(k int, rs rawStage) (*Stage, error) {
 		return nil, fail(ch.loc.find(k, "knobs"), err.Error())
 	}
 	return st, nil
-}
-
-// joinWhere joins the parts of an error's Where with ": ", leaving out
-// empty ones (no "stage f: : part").
-func joinWhere(parts ...string) string {
-	var kept []string
-	for _, p := range parts {
-		if p != "" {
-			kept = append(kept, p)
-		}
-	}
-	return strings.Join(kept, ": ")
 }
 
 func validID(s string) bool {
@@ -474,14 +480,23 @@ func parsePart(rp map[string]any) (*Part, error) {
 		if commonKeys[key] {
 			continue
 		}
-		if _, ok := deviceParams[kind][key]; ok {
+		if _, ok := deviceParams[kind][key]; ok || kind == Transformer && windingKey.MatchString(key) {
 			continue
 		}
-		return fail("unknown key %q for a %s", key, kind)
+		return fail("unknown key %q for a %s%s", key, kind, didYouMean(key, partKeys(kind)))
+	}
+	if (rp["windings"] != nil) != (kind == Transformer) {
+		return fail("only a transformer has windings")
+	}
+	if (rp["positions"] != nil) != (kind == Switch) {
+		return fail("only a switch has positions")
 	}
 	// Pins.
 	switch pins := rp["pins"].(type) {
 	case []any:
+		if kind == Transformer || kind == Switch {
+			return fail("a %s's pins sit in its %s", kind, map[PartKind]string{Transformer: "windings", Switch: "positions"}[kind])
+		}
 		if pinRoles != nil {
 			return fail("pins of a %s are named: %s", kind, strings.Join(pinRoles, ", "))
 		}
@@ -493,9 +508,15 @@ func parsePart(rp map[string]any) (*Part, error) {
 			if !ok || s == "" {
 				return fail("pin %d is not a node name", i+1)
 			}
+			if err := checkNodeName(s); err != nil {
+				return fail("pin %d: %v", i+1, err)
+			}
 			p.Pins[fmt.Sprint(i+1)] = s
 		}
 	case map[string]any:
+		if kind == Transformer || kind == Switch {
+			return fail("a %s's pins sit in its %s", kind, map[PartKind]string{Transformer: "windings", Switch: "positions"}[kind])
+		}
 		if pinRoles == nil {
 			return fail("pins of a %s are a two-name list, e.g. pins = [\"a\", \"b\"]", kind)
 		}
@@ -511,7 +532,19 @@ func parsePart(rp map[string]any) (*Part, error) {
 			if !isStr || s == "" {
 				return fail("pin %s is not a node name", role)
 			}
+			if err := checkNodeName(s); err != nil {
+				return fail("pin %s: %v", role, err)
+			}
 			p.Pins[role] = s
+		}
+		if kind == OpAmp {
+			// The supply pins default to the chain's rails.
+			if _, ok := p.Pins["rail_pos"]; !ok {
+				p.Pins["rail_pos"] = "v+"
+			}
+			if _, ok := p.Pins["rail_neg"]; !ok {
+				p.Pins["rail_neg"] = "gnd"
+			}
 		}
 		for _, r := range pinRoles {
 			if _, ok := p.Pins[r]; !ok && !(kind == Pot && r == "cw") {
@@ -519,7 +552,18 @@ func parsePart(rp map[string]any) (*Part, error) {
 			}
 		}
 	case nil:
-		return fail("no pins")
+		switch kind {
+		case Transformer:
+			if err := p.parseWindings(rp["windings"]); err != nil {
+				return fail("%v", err)
+			}
+		case Switch:
+			if err := p.parsePositions(rp["positions"]); err != nil {
+				return fail("%v", err)
+			}
+		default:
+			return fail("no pins")
+		}
 	default:
 		return fail("pins must be a list or a table")
 	}
@@ -539,11 +583,17 @@ func (p *Part) apply(t map[string]any, full bool) error {
 	}
 	for key, v := range t {
 		switch key {
-		case "ref", "kind", "pins":
+		case "ref", "kind", "pins", "windings", "positions":
 			if !full {
 				return fail("%s cannot be overridden", key)
 			}
 		case "value":
+			if p.Kind == Switch {
+				if err := p.selectPosition(v); err != nil {
+					return fail("%v", err)
+				}
+				continue
+			}
 			if !p.Kind.Valued() {
 				if s, isStr := v.(string); isStr && p.Kind.Device() {
 					p.Model = s // a device's "value" names its model
@@ -595,15 +645,13 @@ func (p *Part) apply(t map[string]any, full bool) error {
 			s, _ := v.(string)
 			p.About = s
 		default:
-			q, ok := deviceParams[p.Kind][key]
-			if !ok {
-				return fail("unknown key %q for a %s", key, p.Kind)
+			known, err := p.setParam(key, v)
+			if !known {
+				return fail("unknown key %q for a %s%s", key, p.Kind, didYouMean(key, partKeys(p.Kind)))
 			}
-			x, err := valueOf(v, q)
 			if err != nil {
-				return fail("%s: %s", key, valueMessage(v, err))
+				return fail("%v", err)
 			}
-			p.Params[key] = x
 		}
 	}
 	return nil
@@ -647,67 +695,14 @@ func (p *Part) complete() error {
 		if p.Kind == Cable && !(p.PerMetre > 0 && p.PerMetre < 1e-6) {
 			return fail("per_metre %s is not a cable's capacitance per metre", models.FormatValue(p.PerMetre, "F"))
 		}
-	case p.Kind.Device():
-		if p.Model != "" {
-			pr, ok := models.Presets[p.Model]
-			if !ok {
-				return fail("model %q is not one of %s", p.Model, strings.Join(models.PresetNames(), ", "))
-			}
-			if (p.Kind == Diode) != (pr.Diode != nil) || pr.BJT != nil && pr.BJT.PNP != (p.Kind == PNP) {
-				return fail("model %q is not a %s", p.Model, p.Kind)
-			}
+	case p.Kind.Device() || p.Kind == Transformer:
+		if err := p.checkDevice(); err != nil {
+			return fail("%v", err)
 		}
-		for k, v := range p.Params {
-			if err := finite(v); err != nil || !(v > 0) && k != "icbo" || v < 0 {
-				return fail("%s = %g must be a positive number", k, v)
-			}
-			if k == "hfe" {
-				if err := models.GainRange.Check(v); err != nil {
-					return fail("hfe = %g is outside %s", v, models.GainRange.Describe())
-				}
-			}
+	case p.Kind == Switch:
+		if err := p.checkSwitch(); err != nil {
+			return fail("%v", err)
 		}
 	}
 	return nil
-}
-
-// DiodeParams resolves a diode part's parameters: the named model (or the
-// silicon signal diode), then written parameters. Without a named model
-// and without eg the saturation current does not scale with temperature.
-func (p *Part) DiodeParams() models.DiodeParams {
-	name := p.Model
-	if name == "" {
-		name = "si-signal"
-	}
-	d := *models.Presets[name].Diode
-	if p.Model == "" {
-		d.Eg = 0
-	}
-	p.setParams(map[string]*float64{"is": &d.Is, "n": &d.N, "rs": &d.Rs, "eg": &d.Eg, "xti": &d.XTI})
-	return d
-}
-
-// BJTParams resolves a transistor part's parameters like DiodeParams.
-func (p *Part) BJTParams() models.BJTParams {
-	name := p.Model
-	if name == "" {
-		name = "si-" + p.Kind.String()
-	}
-	b := *models.Presets[name].BJT
-	if p.Model == "" {
-		b.Eg = 0
-	}
-	p.setParams(map[string]*float64{"is": &b.Is, "hfe": &b.BetaF, "br": &b.BetaR, "icbo": &b.Icbo,
-		"leak_doubling": &b.LeakDoubling, "eg": &b.Eg, "xti": &b.XTI})
-	b.PNP = p.Kind == PNP
-	return b
-}
-
-// setParams copies the written parameters over the defaults.
-func (p *Part) setParams(dst map[string]*float64) {
-	for k, v := range p.Params {
-		if d, ok := dst[k]; ok {
-			*d = v
-		}
-	}
 }

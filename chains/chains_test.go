@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/dsp/mna"
 	"renderchain/models"
@@ -67,9 +68,10 @@ func TestParseErrors(t *testing.T) {
 // Circuit faults found when the chain is flattened.
 func TestBuildErrors(t *testing.T) {
 	cases := []struct{ name, parts, want string }{
-		{"floating node", `{ ref = "C1", kind = "capacitor", value = "1n", pins = ["in", "x"] },
-  { ref = "C2", kind = "capacitor", value = "1n", pins = ["x", "out"] },
-  { ref = "R1", kind = "resistor", value = "1k", pins = ["out", "gnd"] }`, "node x.x: has no DC path to ground"},
+		{"floating island", `{ ref = "C1", kind = "capacitor", value = "1n", pins = ["in", "x"] },
+  { ref = "R2", kind = "resistor", value = "1k", pins = ["x", "y"] },
+  { ref = "C2", kind = "capacitor", value = "1n", pins = ["y", "out"] },
+  { ref = "R1", kind = "resistor", value = "1k", pins = ["out", "gnd"] }`, "f.toml:5: stage x: part C1: pin 2 is on node x.x, which has no DC path to ground"},
 		{"short across the supply", `{ ref = "L1", kind = "inductor", value = "1m", pins = ["v+", "gnd"] },
   { ref = "R1", kind = "resistor", value = "1k", pins = ["in", "out"] }`, "short"},
 		{"both pins on one node", `{ ref = "R1", kind = "resistor", value = "1k", pins = ["in", "in"] },
@@ -118,7 +120,7 @@ func TestOverrideErrorsNameKnownKeys(t *testing.T) {
 		}
 	}
 	_, err := chains.Parse("t.toml", "[[stage]]\nid = \"a\"\ntemplate = \"no-such\"\n")
-	if err == nil || !strings.Contains(err.Error(), "built-in: amp-input, fuzz-ge, fuzz-si") {
+	if err == nil || !strings.Contains(err.Error(), "built-in: amp-input, fuzz-ge, fuzz-ge3, fuzz-si") {
 		t.Errorf("unknown template: %v", err)
 	}
 }
@@ -151,7 +153,8 @@ func TestSetKeys(t *testing.T) {
 	}
 }
 
-func response(t *testing.T, ch *chains.Chain, f float64) complex128 {
+// solved builds the chain and solves its DC operating point.
+func solved(t *testing.T, ch *chains.Chain) (*models.Circuit, *mna.OperatingPoint) {
 	t.Helper()
 	c, err := ch.Build()
 	if err != nil {
@@ -161,6 +164,12 @@ func response(t *testing.T, ch *chains.Chain, f float64) complex128 {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return c, op
+}
+
+func response(t *testing.T, ch *chains.Chain, f float64) complex128 {
+	t.Helper()
+	c, op := solved(t, ch)
 	h, err := mna.AC(c, op, []float64{f}, []int{c.Output})
 	if err != nil {
 		t.Fatal(err)
@@ -307,33 +316,54 @@ func TestTemplatesBuild(t *testing.T) {
 	}
 	for _, tp := range list {
 		supply := "9V"
-		if tp.Name == "fuzz-ge" {
-			supply = "-9V"
+		if tp.Name == "fuzz-ge" || tp.Name == "fuzz-ge3" {
+			supply = "-9V" // germanium PNP, positive ground
 		}
-		src := "name = \"t\"\nsupply = \"" + supply + "\"\n[[stage]]\nid = \"s\"\ntemplate = \"" + tp.Name + "\"\n"
-		ch, err := chains.Parse("t.toml", src)
-		if err != nil {
-			t.Fatalf("%s: %v", tp.Name, err)
+		srcs := []string{"name = \"t\"\nsupply = \"" + supply + "\"\n[[stage]]\nid = \"s\"\ntemplate = \"" + tp.Name + "\"\n"}
+		if tp.Supply {
+			// A supply network behind each polarity, feeding a 1 kΩ load.
+			srcs = nil
+			for _, supply := range []string{"9V", "-9V"} {
+				srcs = append(srcs, "name = \"t\"\nsupply = \""+supply+"\"\n[power]\ntemplate = \""+tp.Name+"\"\n[[stage]]\nid = \"s\"\n"+
+					"parts = [\n  { ref = \"R1\", kind = \"resistor\", value = \"1k\", pins = [\"in\", \"out\"] },\n"+
+					"  { ref = \"RL\", kind = \"resistor\", value = \"1k\", pins = [\"v+\", \"gnd\"] },\n]\n")
+			}
 		}
-		c, err := ch.Build()
-		if err != nil {
-			t.Fatalf("%s: %v", tp.Name, err)
-		}
-		if _, err := mna.SolveDC(c, mna.DCOptions{}); err != nil {
-			t.Errorf("%s: %v", tp.Name, err)
+		for _, src := range srcs {
+			ch, err := chains.Parse("t.toml", src)
+			if err != nil {
+				t.Fatalf("%s: %v", tp.Name, err)
+			}
+			c, err := ch.Build()
+			if err != nil {
+				t.Fatalf("%s: %v", tp.Name, err)
+			}
+			if _, err := mna.SolveDC(c, mna.DCOptions{}); err != nil {
+				t.Errorf("%s: %v", tp.Name, err)
+			}
 		}
 	}
 }
 
-// Every example chain parses and builds.
+// Every example chain parses and builds; the device examples under
+// chains/examples also bias without a warning at their settings.
 func TestExampleChains(t *testing.T) {
-	for _, name := range []string{"demo", "germanium", "fuzz-only"} {
+	for _, name := range chains.ExampleNames() {
 		ch, err := chains.Example(name)
 		if err != nil {
 			t.Fatal(err)
 		}
 		if _, err := ch.Build(); err != nil {
 			t.Errorf("%s: %v", name, err)
+		}
+		if !strings.HasPrefix(name, "examples/") {
+			continue
+		}
+		b, err := bias.Solve(ch)
+		if err != nil {
+			t.Errorf("%s: %v", name, err)
+		} else if len(b.Warnings) > 0 {
+			t.Errorf("%s: warnings %q", name, b.Warnings)
 		}
 	}
 }

@@ -54,28 +54,47 @@ func oneLine(s string) string { return strings.NewReplacer("\r", `\r`, "\n", `\n
 type locator struct {
 	lines  []string
 	stages []int // 0-based line index of each [[stage]] header
+	power  int   // 0-based line index of the [power] header, −1 if none
 }
 
+// powerBlock is the block index of the [power] table for find and block.
+const powerBlock = -2
+
 func newLocator(src string) *locator {
-	l := &locator{lines: strings.Split(src, "\n")}
+	l := &locator{lines: strings.Split(src, "\n"), power: -1}
 	for i, ln := range l.lines {
-		if strings.HasPrefix(strings.TrimSpace(ln), "[[stage]]") {
+		t := strings.TrimSpace(ln)
+		if strings.HasPrefix(t, "[[stage]]") {
 			l.stages = append(l.stages, i)
+		}
+		if strings.HasPrefix(t, "[power]") && l.power < 0 {
+			l.power = i
 		}
 	}
 	return l
 }
 
-// block returns the line range [from, to) of stage k, or of the top level
-// (before the first table header) for k < 0.
+// header returns the 0-based line index of block k's header, or −1.
+func (l *locator) header(k int) int {
+	switch {
+	case k == powerBlock:
+		return l.power
+	case k >= 0 && k < len(l.stages):
+		return l.stages[k]
+	}
+	return -1
+}
+
+// block returns the line range [from, to) of stage k (k = powerBlock: the
+// [power] table), or of the whole file for any other k.
 func (l *locator) block(k int) (int, int) {
 	if l == nil {
 		return 0, 0
 	}
-	if k < 0 || k >= len(l.stages) {
+	from := l.header(k)
+	if from < 0 {
 		return 0, len(l.lines)
 	}
-	from := l.stages[k]
 	to := len(l.lines)
 	for i := from + 1; i < len(l.lines); i++ {
 		t := strings.TrimSpace(l.lines[i])
@@ -110,10 +129,7 @@ func (l *locator) find(k int, needles ...string) int {
 			return i + 1
 		}
 	}
-	if k >= 0 && k < len(l.stages) {
-		return l.stages[k] + 1
-	}
-	return 0
+	return l.header(k) + 1
 }
 
 // findKey returns the line on which a top-level or table key is assigned.

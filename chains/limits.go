@@ -15,8 +15,8 @@ import (
 // file (30 000 nested inline tables in 120 KB; a 30 000-part dotted key
 // in 60 KB) exhausts memory or the stack. Each bound is far above what a
 // chain needs: the built-in chains and templates are under 8 KB, 100 lines
-// of at most 300 bytes, nest 3 levels and hold at most 400 keys of at most
-// 3 parts.
+// of at most 300 bytes, nest 6 levels (a transformer's windings, a
+// switch's positions) and hold at most 400 keys of at most 3 parts.
 const (
 	MaxFileBytes = 1 << 20  // bytes in a chain file (1 MiB)
 	MaxLineBytes = 16 << 10 // bytes on one line (16 KiB)
@@ -235,14 +235,15 @@ func scanText(name, src string) (textStats, error) {
 // node count is an upper bound (every pin name of a stage counted as its
 // own node, plus a series-resistance node per diode, a buffer node per
 // buffered stage and the shared ones); matrix memory is estimated as in
-// circuitBytes. Build calls it first, so every command that builds a
-// chain (after Load and the --set overrides) is bounded in one place.
+// circuitBytes. Flatten (and so Build) calls it first, so every command
+// that builds a chain (after Load and the --set overrides) is bounded in
+// one place.
 func (ch *Chain) CheckSize() error {
 	if len(ch.Stages) > MaxStages {
 		return &LimitError{File: ch.File, What: "number of stages", Value: int64(len(ch.Stages)), Limit: MaxStages, Unit: "stages"}
 	}
 	parts := 0
-	for _, st := range ch.Stages {
+	for _, st := range ch.allStages() { // the [power] network's parts too
 		parts += len(st.Parts)
 	}
 	if parts > MaxParts { // before counting nodes, which allocates
@@ -263,10 +264,10 @@ func (ch *Chain) CheckSize() error {
 // terminal part, two per pot, diode with its series resistance and
 // transistor, one leak resistor per node at most, and the output load).
 func (ch *Chain) sizes() (stages, parts, nodes, branches, ports int) {
-	nodes = 4    // gnd, v+, in, out
-	branches = 2 // the signal source and the supply
-	ports = 1    // the output load
-	for _, st := range ch.Stages {
+	nodes = 4                           // gnd, v+, in, out
+	branches = 2                        // the signal source and the supply
+	ports = 1                           // the output load
+	for _, st := range ch.allStages() { // the [power] network too (its emf counted as its out)
 		local := map[string]bool{}
 		if st.Buffer {
 			nodes++
@@ -280,6 +281,8 @@ func (ch *Chain) sizes() (stages, parts, nodes, branches, ports int) {
 					local[n] = true
 				}
 			}
+			// Upper bounds of what models.Circuit.AddPart makes of each
+			// kind: internal nodes, branch rows and adaptor ports.
 			switch p.Kind {
 			case Inductor:
 				branches++ // a branch row in AC and transient analysis
@@ -287,8 +290,24 @@ func (ch *Chain) sizes() (stages, parts, nodes, branches, ports int) {
 			case Diode:
 				nodes++ // the junction behind a series resistance
 				ports += 2
-			case Pot, NPN, PNP:
+			case NPN, PNP:
+				nodes++ // the base behind a base resistance
+				ports += 3
+			case NJFET, PJFET, NMOSFET, PMOSFET, Pot:
 				ports += 2
+			case OpAmp:
+				nodes += 2 // the gain node, the drive behind the output resistance
+				branches++ // the output buffer
+				ports += 7 // rin, gm, rg, cg, two limiters, rout
+			case Transformer:
+				w := len(p.Windings)
+				nodes += 2 * w      // behind each winding's resistance and leakage
+				branches += 2*w + 1 // leakage and magnetising inductors, the ideal transformer's rows
+				ports += 2*w + 1
+			case Switch:
+				for _, pos := range p.Positions {
+					ports += len(pos.Connect) // a contact resistor each (one position is built)
+				}
 			default:
 				ports++
 			}

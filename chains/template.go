@@ -23,9 +23,13 @@ type Template struct {
 	// Environment marks a template that models what a build plugs into
 	// (environment = true in its file): the pickup, the amplifier input.
 	Environment bool
-	Knobs       []KnobInfo
-	Parts       []*Part
-	src         string
+	// Supply marks a supply-network template (supply = true in its file):
+	// it goes in a chain's [power] table, between the ideal supply and v+,
+	// and names the nodes emf and v+ instead of in and out.
+	Supply bool
+	Knobs  []KnobInfo
+	Parts  []*Part
+	src    string
 }
 
 // KnobInfo describes a template knob.
@@ -38,6 +42,7 @@ type KnobInfo struct {
 type rawTemplate struct {
 	About string                     `toml:"about"`
 	Env   bool                       `toml:"environment"`
+	Sup   bool                       `toml:"supply"`
 	Knobs map[string]rawTemplateKnob `toml:"knobs"`
 	Parts []map[string]any           `toml:"parts"`
 }
@@ -118,7 +123,7 @@ func parseTemplate(name string) (*Template, error) {
 	file := "template " + name
 	b, err := templateFS.ReadFile(path.Join("templates", name+".toml"))
 	if err != nil {
-		return nil, &Error{Msg: fmt.Sprintf("unknown template %q (built-in: %s)", name, strings.Join(TemplateNames(), ", "))}
+		return nil, &Error{Msg: fmt.Sprintf("unknown template %q (built-in: %s)%s", name, strings.Join(TemplateNames(), ", "), didYouMean(name, TemplateNames()))}
 	}
 	var raw rawTemplate
 	md, err := toml.Decode(string(b), &raw)
@@ -129,7 +134,7 @@ func parseTemplate(name string) (*Template, error) {
 		return nil, &Error{File: file, Msg: fmt.Sprintf("unknown key %q", und[0].String())}
 	}
 	loc := newLocator(string(b))
-	t := &Template{Name: name, About: raw.About, Environment: raw.Env, src: string(b)}
+	t := &Template{Name: name, About: raw.About, Environment: raw.Env, Supply: raw.Sup, src: string(b)}
 	for k, v := range raw.Knobs {
 		if err := models.RotationRange.Check(v.Default); err != nil {
 			return nil, &Error{File: file, Line: loc.find(-1, k), Msg: fmt.Sprintf("knob %s default %g is outside 0…1", k, v.Default)}
@@ -159,6 +164,8 @@ func clonePart(p *Part) *Part {
 	for k, v := range p.Params {
 		q.Params[k] = v
 	}
+	q.Windings = append([]Winding(nil), p.Windings...)
+	q.Positions = append([]Position(nil), p.Positions...) // read-only after parsing
 	return &q
 }
 
@@ -183,7 +190,7 @@ func expandTemplate(name, id string, knobs map[string]float64, values map[string
 	}
 	for k, v := range knobs {
 		if _, ok := st.Knobs[k]; !ok {
-			return nil, &Error{Line: at(k), Msg: fmt.Sprintf("template %s has no knob %q (knobs: %s)", name, k, listOr(keys(st.Knobs)))}
+			return nil, &Error{Line: at(k), Msg: fmt.Sprintf("template %s has no knob %q (knobs: %s)%s", name, k, listOr(keys(st.Knobs)), didYouMean(k, keys(st.Knobs)))}
 		}
 		st.Knobs[k] = v
 	}
@@ -193,7 +200,7 @@ func expandTemplate(name, id string, knobs map[string]float64, values map[string
 	for _, ref := range keys(values) {
 		p := st.part(ref)
 		if p == nil {
-			return nil, &Error{Line: at(ref), Msg: fmt.Sprintf("template %s has no part %q (parts: %s)", name, ref, strings.Join(st.refs(), ", "))}
+			return nil, &Error{Line: at(ref), Msg: fmt.Sprintf("template %s has no part %q (parts: %s)%s", name, ref, strings.Join(st.refs(), ", "), didYouMean(ref, st.refs()))}
 		}
 		v := values[ref]
 		tbl, isTable := v.(map[string]any)

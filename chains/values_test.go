@@ -57,7 +57,7 @@ parts = [
 		{"fuzz.fuzz=nan", "is not a rotation"},
 		{"fuzz.fuzz=NaN", "is not a rotation"},
 		{"fuzz.Q1.hfe=inf", "not a finite number"},
-		{"fuzz.Q1.hfe=1e6", "hfe = 1e+06 is outside"},
+		{"fuzz.Q1.hfe=1e6", "hfe = 1e+06 must be above 0 and at most 100000"},
 		{"fuzz.R1.tolerance=nan", "not a finite number"},
 		{"fuzz.Q2.is=NaN", "not a finite number"},
 		{"output.load=nan", "not a resistance"},

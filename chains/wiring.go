@@ -35,11 +35,19 @@ type Ends struct {
 // stage's in is a node of its own, "STAGE.in", fed by an ideal unity-gain
 // buffer from the node before it (named "out" when a buffered shunt stage
 // is the chain's output).
+//
+// Nets (the chain's nets list) are entries of the wiring too: a pin on a
+// net lands on the node of the net's own name, whichever stage writes it.
+// A dotted pin name "STAGE.name" lands on that stage's node (its ends for
+// "STAGE.in" and "STAGE.out"); the lint (Flatten) refuses one that names
+// no node of that stage.
 type Wiring struct {
 	Stages []Ends
 	// Out is the chain's output node: "out", or "in" when every stage is
 	// an unbuffered shunt.
 	Out string
+	// Nets are the chain's shared nodes besides gnd, v+, in and out.
+	Nets []string
 }
 
 // Wiring returns the chain's wiring (see Wiring).
@@ -61,7 +69,7 @@ func (ch *Chain) Wiring() *Wiring {
 			break
 		}
 	}
-	w := &Wiring{Stages: make([]Ends, n)}
+	w := &Wiring{Stages: make([]Ends, n), Nets: ch.Nets}
 	prev := "in"
 	for k, st := range ch.Stages {
 		e := Ends{Stage: st.ID, Feed: prev, In: prev, Buffered: st.Buffer, Environment: st.Environment}
@@ -93,8 +101,9 @@ func (w *Wiring) Ends(stage string) *Ends {
 }
 
 // Node returns the flat circuit's name of a pin name written in a stage's
-// parts: gnd and v+ are shared, in and out are the stage's ends, any
-// other name is local, "STAGE.name".
+// parts: gnd, v+ and the nets are shared, in and out are the stage's
+// ends, a dotted name "OTHER.name" is that stage's node (OTHER.in and
+// OTHER.out its ends), any other name is local, "STAGE.name".
 func (w *Wiring) Node(stage, pin string) string {
 	switch pin {
 	case "gnd", "v+":
@@ -107,16 +116,26 @@ func (w *Wiring) Node(stage, pin string) string {
 			return e.Out
 		}
 	}
+	if slices.Contains(w.Nets, pin) {
+		return pin
+	}
+	if other, name, dotted := strings.Cut(pin, "."); dotted {
+		if name == "in" || name == "out" {
+			if e := w.Ends(other); e != nil {
+				return w.Node(other, name)
+			}
+		}
+		return pin
+	}
 	return stage + "." + pin
 }
 
-// internalName is the name Build gives a node inside a part (a diode's
-// junction behind its series resistance): "STAGE.REF.what".
-func internalName(stage, ref, what string) string { return stage + "." + ref + "." + what }
-
-// InternalNode tells the nodes Build adds inside a part ("STAGE.REF.x")
-// from a stage's own nodes ("STAGE.node") and the shared ones.
-func InternalNode(name string) bool { return strings.Count(name, ".") >= 2 }
+// InternalNode tells the nodes Build adds inside a part
+// ("STAGE.REF#role", models.InternalNode: a diode's junction behind its
+// series resistance, a transistor's base behind its base resistance, an
+// op-amp's gain node) from a stage's own nodes ("STAGE.node") and the
+// shared ones. A chain file cannot write the mark.
+func InternalNode(name string) bool { return models.IsInternal(name) }
 
 // ErrNoNode is the sentinel of a node name that names no node.
 var ErrNoNode = errors.New("no such node")

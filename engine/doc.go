@@ -37,6 +37,31 @@
 // last window is then the record. The wait is bounded: past MaxSettle the
 // last window is the record anyway and Settled is false.
 //
+// # Stability and warnings
+//
+// Prepare also finds the poles of the circuit linearised at its operating
+// point (mna.Poles). A pole with a positive real part is a warning on the
+// prepared chain (Prepared.Warnings, StabilityWarning): a complex pair
+// "self-oscillates near F Hz" (motorboating below Motorboating), a real
+// pole "latches". The chain's lint warnings (chains.Findings) come
+// first, so every report made from a prepared chain can carry both. The slowest
+// stable pole's time constant (SlowestTimeConstant) is what a warm-up is
+// sized from.
+//
+// The pole analysis is backed by a rendered check (Idle, and IdleWarning
+// for a report): from the operating point the circuit takes a kick (a
+// 1 mV, 1 ms raised-cosine pulse at the source), then silence; after a
+// wait of 15 slowest time constants (or 20 e-folds of the fastest-growing
+// pole; 0.5–8 s) a window is analysed: the node's RMS about its mean, the
+// shift of its mean from the operating point, and the frequency of its
+// rising crossings. At or above IdleFloor (100 µV) the node oscillates or
+// has latched. The pole gives the frequency an oscillation starts at (the
+// render's early growth follows it to 1e-5); the render gives the one it
+// settles at once the stages limit, which can differ by a factor of two.
+// IdleWarning renders only for an unstable circuit, watching the output
+// and, when that stays quiet, the node the growing mode moves most
+// (mna.Mode).
+//
 // # Cancellation
 //
 // Every loop checks its context between blocks of MaxBlock samples.
@@ -50,6 +75,9 @@
 //   - K. Werner, V. Nangia, J. O. Smith III, J. S. Abel, "Resolving wave
 //     digital filters with multiple/multiport nonlinearities", DAFx-15,
 //     2015 (the solver, package dsp/wdf).
+//   - G. H. Golub, C. F. Van Loan, Matrix Computations, 4th ed., 2013,
+//     sec. 7.6.1 (inverse iteration, for a pole's mode) and 7.7 (the
+//     generalised eigenproblem of the poles, package dsp/mna).
 //
 // # Non-goals
 //

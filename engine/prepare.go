@@ -10,6 +10,7 @@ import (
 	"renderchain/dsp/mna"
 	"renderchain/dsp/resample"
 	"renderchain/models"
+	"renderchain/report"
 )
 
 // DefaultOversample is the oversampling factor when neither the caller nor
@@ -46,24 +47,38 @@ func Oversample(ch *chains.Chain, requested int) (int, error) {
 }
 
 // Prepared is a chain ready to run: flattened to one circuit, its DC
-// operating point solved, its oversampling factor resolved.
+// operating point solved, its stability checked, its oversampling factor
+// resolved.
 type Prepared struct {
 	Chain      *chains.Chain
 	Circuit    *models.Circuit
 	DC         *mna.OperatingPoint
 	Wiring     *chains.Wiring
 	Oversample int
+	// Findings are the chain's lint findings: the wiring's (Flatten) and
+	// the operating point's (CheckOperatingPoint).
+	Findings chains.Findings
+	// Stability holds the poles of the circuit linearised at DC (nil when
+	// the analysis could not run, which Warnings then says).
+	Stability *mna.Stability
+	// Warnings are what every report on this chain carries, in order: the
+	// lint findings' warnings and the stability check's
+	// (StabilityWarning). Never nil.
+	Warnings report.Warnings
+
+	idle idleCache
 }
 
-// Prepare flattens the chain, solves its operating point and resolves the
-// oversampling factor (see Oversample; 0 takes the chain's or the
-// default).
+// Prepare flattens and lints the chain (chains.Chain.Flatten), solves its
+// operating point, lints that (chains.Flat.CheckOperatingPoint), checks
+// its stability and resolves the oversampling factor (see Oversample; 0
+// takes the chain's or the default).
 func Prepare(ch *chains.Chain, oversample int) (*Prepared, error) {
 	return PrepareContext(context.Background(), ch, oversample)
 }
 
 // PrepareContext is Prepare that stops when ctx is done: the chain's size
-// is checked before anything is built (chains.Chain.Build), and the DC
+// is checked before anything is built (chains.Chain.Flatten), and the DC
 // solve checks ctx at every Newton iteration (mna.SolveDCContext). A
 // stopped preparation returns an error wrapping ErrInterrupted and the
 // context's cause.
@@ -75,10 +90,11 @@ func PrepareContext(ctx context.Context, ch *chains.Chain, oversample int) (*Pre
 	if err != nil {
 		return nil, err
 	}
-	c, err := ch.Build()
+	flat, err := ch.Flatten()
 	if err != nil {
 		return nil, err
 	}
+	c := flat.Circuit
 	op, err := mna.SolveDCContext(ctx, c, mna.DCOptions{})
 	var ce *mna.CancelError
 	if errors.As(err, &ce) {
@@ -87,7 +103,12 @@ func PrepareContext(ctx context.Context, ch *chains.Chain, oversample int) (*Pre
 	if err != nil {
 		return nil, fmt.Errorf("%s: at %s, %.1f °C: %w", ch.File, models.FormatValue(ch.Supply, "V"), ch.Temperature-models.ZeroCelsius, err)
 	}
-	return &Prepared{Chain: ch, Circuit: c, DC: op, Wiring: ch.Wiring(), Oversample: os}, nil
+	flat.CheckOperatingPoint(op)
+	p := &Prepared{Chain: ch, Circuit: c, DC: op, Wiring: flat.Wiring, Oversample: os,
+		Findings: flat.Findings, Warnings: report.Warnings{}}
+	p.Warnings.Merge(flat.Findings.Warnings())
+	p.checkStability()
+	return p, nil
 }
 
 // Node resolves a node name as a user writes it (chains.Wiring.Resolve):

@@ -101,10 +101,30 @@
 //
 // # Plots
 //
-// Report.Figure and ResponseReport.Figure build renderchain/plotting
-// figures: the output spectrum and a harmonic bar chart, level and
-// distortion against the swept value, response families (magnitude over
-// phase) on a logarithmic frequency axis.
+// Report.Figure, Report.ScopeFigures and ResponseReport.Figure build
+// renderchain/plotting figures whose titles carry the chain's name, the
+// test signal and the knob positions (Knobs) that no condition changes:
+//
+//   - a sine test: the spectrum at the probe, its harmonics marked, over
+//     a bar chart of the harmonics in dBc, the conditions side by side,
+//     one key naming each with its THD_F;
+//   - a sweep: output level, and THD_F, H2 and H3 against the swept
+//     level or knob;
+//   - the scope view of each measurement kept with Options.Scope: the
+//     first ScopeCycles settled cycles of the analysed record at the
+//     source (the generated sine) and at the probed node, sample for
+//     sample, with the supply rail and ground, and the transfer curve
+//     over the last cycle;
+//   - a response: gain over unwrapped phase (and the group delay when
+//     asked), one style per variant, a swept measurement's harmonic
+//     responses dashed in their variant's colour. DefaultGrid, 48
+//     points a decade, keeps the curves smooth and the phase unwrappable.
+//
+// Levels relative to the fundamental under the analysis floor
+// (FigureFloorDB: −100 dB by default, where the tables print "< floor")
+// are drawn on that floor (sweep curves) or left out (bars), and the
+// panel says so: a simulation in double precision puts the harmonics a
+// circuit does not make near −300 dBc.
 //
 // # References
 //

@@ -69,3 +69,28 @@ func ExampleSine() {
 	fmt.Printf("gain %.2f dB, THD_F below 0.001 %%: %v, settled: %v\n", float64(r.GainDB), r.THDPercent < 0.001, r.Settle.Settled)
 	// Output: gain -1.45 dB, THD_F below 0.001 %: true, settled: true
 }
+
+// The scope view of a sine measurement: the first three settled cycles
+// at the source and at the probed node (1 kHz at 48 kHz: 144 samples and
+// one to close the last cycle), with the rail named where it lies off the
+// scale.
+func ExampleReport_ScopeFigures() {
+	ch, _ := chains.Parse("lowpass.toml", lowpass)
+	rep, err := measure.Run(context.Background(), ch, measure.Plan{Freq: 1000, Amplitude: 0.5,
+		Options: measure.Options{Scope: true}})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	figs, err := rep.ScopeFigures()
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	sc := rep.Measurements[0].Scope
+	fmt.Println(len(figs), len(sc.In), len(sc.Out))
+	fmt.Println(figs[0].Panels[1].Title)
+	// Output:
+	// 1 145 145
+	// Output: out (v+ 9 V above the scale)
+}

@@ -5,12 +5,12 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"slices"
 	"strconv"
 	"strings"
 	"text/tabwriter"
 
 	"renderchain/models"
+	"renderchain/report"
 )
 
 // WriteTable writes a report for people: a full account of a single
@@ -51,20 +51,28 @@ func (m *Result) writeDetail(w io.Writer, chain string) error {
 	f := m.Fundamental
 	fmt.Fprintf(b, "  output     %s rms (%s dBV), gain %s dB, phase %+.1f°\n",
 		models.FormatValue(f.VRMS, "V"), fmtNum(float64(f.DBV), "%.2f"), fmtNum(float64(m.GainDB), "%.2f"), f.PhaseDeg)
+	pct, fdb := m.floorPercent(), float64(m.AnalysisFloorDB)
 	fmt.Fprintf(b, "  THD_F      %s %%  (%s dB)    THD_R %s %%\n",
-		fmtNum(m.THDPercent, "%.4g"), fmtNum(float64(m.THDDB), "%.1f"), fmtNum(m.THDRPercent, "%.4g"))
-	fmt.Fprintf(b, "  THD+N      %s %%  (%s dB)    band %s–%s\n", fmtNum(m.THDNPercent, "%.4g"), fmtNum(float64(m.THDNDB), "%.1f"),
+		report.AtLeast(m.THDPercent, pct, "%.4g"), report.AtLeast(float64(m.THDDB), fdb, "%.1f"), report.AtLeast(m.THDRPercent, pct, "%.4g"))
+	fmt.Fprintf(b, "  THD+N      %s %%  (%s dB)    band %s–%s\n", report.AtLeast(m.THDNPercent, pct, "%.4g"), report.AtLeast(float64(m.THDNDB), fdb, "%.1f"),
 		models.FormatValue(m.THDNBandHz[0], "Hz"), models.FormatValue(m.THDNBandHz[1], "Hz"))
-	fmt.Fprintf(b, "  even/odd   %s (%s dB)\n", fmtNum(float64(m.EvenOddRatio), "%.4g"), fmtNum(float64(m.EvenOddDB), "%.1f"))
-	fmt.Fprintf(b, "  DC, peaks  %s; %+.4g V / %+.4g V, asymmetry %s\n", models.FormatValue(m.DCV, "V"),
-		m.PeakPositiveV, m.PeakNegativeV, fmtNum(float64(m.PeakAsymmetry), "%+.3f"))
-	c := m.Clipping
-	clip := "no"
-	if c.Clips {
-		clip = "YES (flattened peaks)"
+	if m.distorts() {
+		fmt.Fprintf(b, "  even/odd   %s (%s dB)\n", fmtNum(float64(m.EvenOddRatio), "%.4g"), fmtNum(float64(m.EvenOddDB), "%.1f"))
+	} else {
+		fmt.Fprintf(b, "  even/odd   — (no harmonic above the analysis floor)\n")
 	}
-	fmt.Fprintf(b, "  clipping   %s; dwell ratio + %s, − %s; crest %s dB\n", clip,
+	fmt.Fprintf(b, "  DC, peaks  %s; %s V / %s V, asymmetry %s\n", report.Quantity(m.DCV, report.VoltageFloor, "V"),
+		report.Fixed(m.PeakPositiveV, "%+.4g"), report.Fixed(m.PeakNegativeV, "%+.4g"), report.Fixed(float64(m.PeakAsymmetry), "%+.3f"))
+	c := m.Clipping
+	flat := "no: the circuit does not flatten the peaks"
+	if c.Clips {
+		flat = "YES: the circuit flattens the peaks"
+	}
+	fmt.Fprintf(b, "  peaks flat %s (dwell ratio + %s, − %s; crest %s dB)\n", flat,
 		fmtNum(float64(c.DwellPositive), "%.2f"), fmtNum(float64(c.DwellNegative), "%.2f"), fmtNum(float64(c.CrestFactorDB), "%.2f"))
+	fmt.Fprintf(b, "  file clips %s\n", m.fileClips(true))
+	fmt.Fprintf(b, "  floor      %s dB re the fundamental: harmonic and distortion figures under it print as \"< floor\" (the JSON keeps them)\n",
+		fmtNum(fdb, "%.0f"))
 	fmt.Fprintf(b, "  solver     %.2f mean / %d max Newton iterations, %d not converged\n\n",
 		m.Solver.MeanIterations, m.Solver.MaxIterations, m.Solver.NonConverged)
 	if _, err := io.WriteString(w, b.String()); err != nil {
@@ -72,23 +80,23 @@ func (m *Result) writeDetail(w io.Writer, chain string) error {
 	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "  order\tfrequency\tlevel dBV\tdBc\t%\tphase °\t")
-	for _, h := range append([]Line{m.Fundamental}, m.Harmonics...) {
+	for i, h := range append([]Line{m.Fundamental}, m.Harmonics...) {
 		note := ""
 		if h.Attenuated {
 			note = " *"
 		}
-		fmt.Fprintf(tw, "  H%d%s\t%s\t%s\t%s\t%s\t%+.1f\t\n", h.Order, note, models.FormatValue(h.Hz, "Hz"),
-			fmtNum(float64(h.DBV), "%.2f"), fmtNum(float64(h.DBc), "%.2f"), fmtNum(h.Percent, "%.4g"), h.PhaseDeg)
+		level, dbc, percent, phase := fmtNum(float64(h.DBV), "%.2f"), fmtNum(float64(h.DBc), "%.2f"), fmtNum(h.Percent, "%.4g"), report.Fixed(h.PhaseDeg, "%+.1f")
+		if i > 0 && !(float64(h.DBc) >= fdb) {
+			// Under the floor: a bound, and no phase to speak of.
+			level = report.AtLeast(float64(h.DBV), float64(m.Fundamental.DBV)+fdb, "%.2f")
+			dbc, percent, phase = report.AtLeast(float64(h.DBc), fdb, "%.2f"), report.AtLeast(h.Percent, pct, "%.4g"), "—"
+		}
+		fmt.Fprintf(tw, "  H%d%s\t%s\t%s\t%s\t%s\t%s\t\n", h.Order, note, models.FormatValue(h.Hz, "Hz"), level, dbc, percent, phase)
 	}
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	for _, warn := range m.Warnings {
-		if _, err := fmt.Fprintln(w, "  warning: "+warn); err != nil {
-			return err
-		}
-	}
-	return nil
+	return writeWarnings(w, m.Warnings)
 }
 
 func (r *Report) writeRows(w io.Writer) error {
@@ -115,9 +123,8 @@ func (r *Report) writeRows(w io.Writer) error {
 			head += r.Sweep.Key + "\t"
 		}
 	}
-	head += "output dBV\tgain dB\tTHD %\tTHD+N %\tH2 dBc\tH3 dBc\teven/odd dB\tDC V\tclips\tsettled\t"
+	head += "output dBV\tgain dB\tTHD %\tTHD+N %\tH2 dBc\tH3 dBc\teven/odd dB\tDC V\tpeaks flat\tfile clips\tsettled\t"
 	fmt.Fprintln(tw, head)
-	var warned []string
 	for _, m := range r.Measurements {
 		row := "  "
 		if r.hasLabels() {
@@ -130,28 +137,53 @@ func (r *Report) writeRows(w io.Writer) error {
 				row += fmtNum(*m.SweepValue, "%.3g") + "\t"
 			}
 		}
-		row += fmt.Sprintf("%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t",
-			fmtNum(float64(m.Fundamental.DBV), "%.2f"), fmtNum(float64(m.GainDB), "%.2f"),
-			fmtNum(m.THDPercent, "%.4g"), fmtNum(m.THDNPercent, "%.4g"),
-			fmtNum(harmonicDBc(m, 2), "%.1f"), fmtNum(harmonicDBc(m, 3), "%.1f"),
-			fmtNum(float64(m.EvenOddDB), "%.1f"), fmtNum(m.DCV, "%.3g"),
-			yesNo(m.Clipping.Clips), yesNo(m.Settle.Settled))
-		fmt.Fprintln(tw, row)
-		for _, warn := range m.Warnings {
-			if !slices.Contains(warned, warn) {
-				warned = append(warned, warn)
-			}
+		pct, fdb := m.floorPercent(), float64(m.AnalysisFloorDB)
+		evenOdd := "—"
+		if m.distorts() {
+			evenOdd = fmtNum(float64(m.EvenOddDB), "%.1f")
 		}
+		dc := "0"
+		if math.Abs(m.DCV) >= report.VoltageFloor {
+			dc = fmtNum(m.DCV, "%.3g")
+		}
+		row += fmt.Sprintf("%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t",
+			fmtNum(float64(m.Fundamental.DBV), "%.2f"), fmtNum(float64(m.GainDB), "%.2f"),
+			report.AtLeast(m.THDPercent, pct, "%.4g"), report.AtLeast(m.THDNPercent, pct, "%.4g"),
+			report.AtLeast(harmonicDBc(m, 2), fdb, "%.1f"), report.AtLeast(harmonicDBc(m, 3), fdb, "%.1f"),
+			evenOdd, dc, yesNo(m.Clipping.Clips), m.fileClips(false), yesNo(m.Settle.Settled))
+		fmt.Fprintln(tw, row)
 	}
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	for _, warn := range warned {
-		if _, err := fmt.Fprintln(w, "  warning: "+warn); err != nil {
-			return err
+	return writeWarnings(w, r.combinedWarnings())
+}
+
+// combinedWarnings joins the measurements' warnings (report.Combine),
+// naming a measurement by its condition, its settings or its sweep step.
+func (r *Report) combinedWarnings() report.Warnings {
+	labels := make([]string, len(r.Measurements))
+	lists := make([]report.Warnings, len(r.Measurements))
+	for i, m := range r.Measurements {
+		lists[i] = m.Warnings
+		var name []string
+		if m.Label != "" {
+			name = append(name, m.Label)
+		}
+		switch {
+		case r.Sweep != nil && r.Sweep.Kind == LevelSweep:
+			name = append(name, models.FormatValue(m.AmplitudeV, "V")+" in")
+		case r.Sweep != nil && len(m.Settings) > 0:
+			name = append(name, m.Settings[len(m.Settings)-1]) // the knob's step
+		case len(name) == 0 && len(m.Settings) > 0:
+			name = append(name, strings.Join(m.Settings, " "))
+		}
+		labels[i] = strings.Join(name, ", ")
+		if labels[i] == "" {
+			labels[i] = fmt.Sprintf("measurement %d", i+1)
 		}
 	}
-	return nil
+	return report.Combine(labels, lists)
 }
 
 func (r *Report) hasLabels() bool {
@@ -161,6 +193,41 @@ func (r *Report) hasLabels() bool {
 		}
 	}
 	return false
+}
+
+// floorPercent is the analysis floor as a percentage of the fundamental.
+func (m *Result) floorPercent() float64 { return 100 * report.FromDB(float64(m.AnalysisFloorDB)) }
+
+// distorts tells whether any harmonic stands above the analysis floor.
+func (m *Result) distorts() bool { return m.THDPercent >= m.floorPercent() }
+
+// fileClips says whether a render at this level would clip the file:
+// samples past the output's full scale. Only the output has a full scale;
+// at another probe it is "—". Long: a sentence for the detailed view.
+func (m *Result) fileClips(long bool) string {
+	switch {
+	case m.Probe != "out":
+		if long {
+			return "— (the probe is not the output: no full scale)"
+		}
+		return "—"
+	case m.Clipping.ExceedsFullScale && long:
+		return "YES: the output passes its full scale; a render at this level clips the file"
+	case long:
+		return "no: the output stays within its full scale"
+	}
+	return yesNo(m.Clipping.ExceedsFullScale)
+}
+
+// writeWarnings writes a report's warnings at the end of its table, one
+// "warning:" line each.
+func writeWarnings(w io.Writer, ws []string) error {
+	for _, s := range ws {
+		if _, err := fmt.Fprintln(w, "  warning: "+s); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 func yesNo(b bool) string {
@@ -181,7 +248,10 @@ func harmonicDBc(m *Result, h int) float64 {
 }
 
 // WriteCSV writes one row per measurement, with a header. Values are in SI
-// units; a value that is not defined is an empty field.
+// units, exactly (no display floors); a value that is not defined is an
+// empty field. peaks_flattened is the circuit flattening the peaks (a
+// table's "peaks flat"), exceeds_full_scale a render clipping the file
+// ("file clips").
 func (r *Report) WriteCSV(w io.Writer) error {
 	maxOrder := 1
 	for _, m := range r.Measurements {
@@ -192,7 +262,7 @@ func (r *Report) WriteCSV(w io.Writer) error {
 	cw := csv.NewWriter(w)
 	head := []string{"label", "settings", "sweep_value", "frequency_hz", "amplitude_v_peak", "amplitude_dbv", "probe",
 		"output_v_rms", "output_dbv", "gain_db", "phase_deg", "thd_percent", "thd_r_percent", "thdn_percent",
-		"even_odd_db", "dc_v", "peak_positive_v", "peak_negative_v", "peak_asymmetry", "crest_factor_db", "clips",
+		"even_odd_db", "dc_v", "peak_positive_v", "peak_negative_v", "peak_asymmetry", "crest_factor_db", "peaks_flattened",
 		"exceeds_full_scale", "settled", "settle_s"}
 	for h := 2; h <= maxOrder; h++ {
 		head = append(head, fmt.Sprintf("h%d_dbc", h))
@@ -269,7 +339,10 @@ func (r *ResponseReport) WriteTable(w io.Writer) error {
 		}
 		fmt.Fprintln(tw, row)
 	}
-	return tw.Flush()
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	return writeWarnings(w, r.Warnings)
 }
 
 // WriteCSV writes one row per curve and frequency.

@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"math"
 	"strconv"
 	"strings"
@@ -96,7 +97,7 @@ func TestReportCSVAndTable(t *testing.T) {
 	for i, h := range recs[0] {
 		col[h] = i
 	}
-	for _, name := range []string{"thd_percent", "thdn_percent", "output_dbv", "h2_dbc", "h10_dbc", "clips", "label", "sweep_value"} {
+	for _, name := range []string{"thd_percent", "thdn_percent", "output_dbv", "h2_dbc", "h10_dbc", "peaks_flattened", "exceeds_full_scale", "label", "sweep_value"} {
 		if _, ok := col[name]; !ok {
 			t.Errorf("CSV header lacks %s: %v", name, recs[0])
 		}
@@ -126,7 +127,7 @@ func TestReportCSVAndTable(t *testing.T) {
 	if err := single.WriteTable(&buf); err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"THD_F", "THD+N", "H10", "even/odd", "clipping   YES"} {
+	for _, want := range []string{"THD_F", "THD+N", "H10", "even/odd", "peaks flat YES", "file clips "} {
 		if !strings.Contains(buf.String(), want) {
 			t.Errorf("single table lacks %q:\n%s", want, buf.String())
 		}
@@ -151,6 +152,10 @@ func TestFigures(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	respFig, err := resp.Figure(false)
+	if err != nil {
+		t.Fatal(err)
+	}
 	for _, tc := range []struct {
 		name string
 		fig  *plotting.Figure
@@ -158,7 +163,7 @@ func TestFigures(t *testing.T) {
 	}{
 		{"spectrum", single, []string{"clip.R1=4k7", "H3", "frequency (Hz)", "dBc"}},
 		{"sweep", sweep, []string{"THD_F · clip.R1=10k", "H3 · clip.R1=4k7", "source amplitude (V peak)"}},
-		{"response", resp.Figure(), []string{"tone.tone=0", "tone.tone=1", "phase (degrees)", "20k"}},
+		{"response", respFig, []string{"tone.tone=0", "tone.tone=1", "phase (degrees)", "20k"}},
 	} {
 		var buf bytes.Buffer
 		if err := tc.fig.Render(&buf, plotting.SVG); err != nil {
@@ -188,5 +193,47 @@ func TestKeptSpectrum(t *testing.T) {
 	k3 := 3 * k
 	if math.Abs(s.DBV[k3]-float64(r.Harmonics[1].DBV)) > 1e-6 {
 		t.Errorf("H3 bin %.6f dBV, analysis %.6f dBV", s.DBV[k3], float64(r.Harmonics[1].DBV))
+	}
+}
+
+// A figure under the analysis floor prints as under it. The floor is the
+// larger of the rate converter's stopband, 10^(−100/20) = 1e-5 (design
+// figure of package resample), and the settle tolerance. An RC low-pass
+// is linear: its harmonics are rounding (THD near 1e-12 %), so the table
+// shows "< 0.001 %" and "< -100.00" dBc with no phase, and no even/odd
+// ratio; the JSON keeps the exact figure. The clipper's THD is far above
+// the floor and prints as measured.
+func TestTableFloors(t *testing.T) {
+	if got := AnalysisFloor(DefaultSettleTolerance); math.Abs(got-1e-5) > 1e-20 {
+		t.Errorf("floor %g, want 1e-5", got)
+	}
+	if got := AnalysisFloor(1e-3); got != 1e-3 {
+		t.Errorf("floor at a 1e-3 tolerance: %g", got)
+	}
+	r, err := Sine(context.Background(), loadChain(t, "rc-lowpass"), 1000, 0.1, Options{Oversample: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !(r.THDPercent < 1e-6) || math.Abs(float64(r.AnalysisFloorDB)+100) > 1e-9 {
+		t.Fatalf("THD %g %%, floor %g dB: not the linear case", r.THDPercent, float64(r.AnalysisFloorDB))
+	}
+	var buf bytes.Buffer
+	if err := (&Report{Measurements: []*Result{r}}).WriteTable(&buf); err != nil {
+		t.Fatal(err)
+	}
+	out := buf.String()
+	for _, want := range []string{"THD_F      < 0.001 %  (< -100.0 dB)", "< -100.00  < 0.001        —", "even/odd   — "} {
+		if !strings.Contains(out, want) {
+			t.Errorf("table lacks %q:\n%s", want, out)
+		}
+	}
+	if strings.Contains(out, "e-1") {
+		t.Errorf("a figure in exponent form:\n%s", out)
+	}
+	buf.Reset()
+	clip := clipperReport(t, nil, nil, false)
+	clip.WriteTable(&buf)
+	if m := clip.Measurements[0]; !strings.Contains(buf.String(), fmt.Sprintf("THD_F      %.4g %%", m.THDPercent)) {
+		t.Errorf("the clipper's THD %.4g %% is not printed as measured:\n%s", m.THDPercent, buf.String())
 	}
 }

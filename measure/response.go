@@ -6,6 +6,7 @@ import (
 	"math/cmplx"
 	"strings"
 
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/dsp/mna"
 	"renderchain/engine"
@@ -36,6 +37,9 @@ type Curve struct {
 	// reciprocal of its time window.
 	ResolutionHz float64 `json:"resolution_hz,omitempty"`
 	Points       []Point `json:"points"`
+	// Warnings are those of the variant's prepared chain (build, stability
+	// and its rendered check, operating point; bias.Warnings).
+	Warnings report.Warnings `json:"warnings"`
 }
 
 // ResponseOptions configure a response measurement.
@@ -62,6 +66,12 @@ type ResponseReport struct {
 	Reference string     `json:"reference"` // "source" (EMF) or a node name
 	Swept     *SweptInfo `json:"swept,omitempty"`
 	Curves    []Curve    `json:"curves"`
+	// Warnings joins the curves' (report.Combine: one a curve alone has
+	// names it).
+	Warnings report.Warnings `json:"warnings"`
+	// Knobs are the knob positions of the chain the variants start from
+	// (Knobs), for the figure's title.
+	Knobs []string `json:"-"`
 }
 
 // checkFreqs bounds every frequency to [MinFrequency, limit).
@@ -86,41 +96,43 @@ func checkFreqs(freqs []float64, limit float64, rateText string) error {
 // its small-signal conductances, capacitors and inductors by their
 // admittances): from the source EMF (or opt.Ref) to opt.Probe.
 func SmallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, error) {
-	return smallSignal(context.Background(), ch, freqs, opt)
+	pts, _, err := smallSignal(context.Background(), ch, freqs, opt)
+	return pts, err
 }
 
-// smallSignal is SmallSignal stopping when ctx is done (in the DC solve).
-func smallSignal(ctx context.Context, ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, error) {
+// smallSignal is SmallSignal, stopping when ctx is done (in the DC solve)
+// and also returning the prepared chain.
+func smallSignal(ctx context.Context, ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, *engine.Prepared, error) {
 	if opt.SampleRate == 0 {
 		opt.SampleRate = DefaultSampleRate
 	}
 	os, err := engine.Oversample(ch, opt.Oversample)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	internal := opt.SampleRate * float64(os)
 	if err := checkFreqs(freqs, internal/2, models.FormatValue(internal, "Hz")+" internal rate"); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	p, err := engine.PrepareContext(ctx, ch, os)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	probe, err := probeNode(p, "probe", opt.Probe)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	probes := []int{probe}
 	if opt.Ref != "" {
 		ref, err := probeNode(p, "ref", opt.Ref)
 		if err != nil {
-			return nil, err
+			return nil, nil, err
 		}
 		probes = append(probes, ref)
 	}
 	h, err := mna.AC(p.Circuit, p.DC, freqs, probes)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	pts := make([]Point, len(freqs))
 	for i, f := range freqs {
@@ -134,7 +146,7 @@ func smallSignal(ctx context.Context, ch *chains.Chain, freqs []float64, opt Res
 		}
 		pts[i] = point(f, v)
 	}
-	return pts, nil
+	return pts, p, nil
 }
 
 func point(f float64, h complex128) Point {
@@ -147,7 +159,8 @@ func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freq
 	if len(variants) == 0 {
 		variants = []Variant{{}}
 	}
-	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "small-signal", Probe: probeName(opt.Probe), Reference: refName(opt.Ref)}
+	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "small-signal", Probe: probeName(opt.Probe), Reference: refName(opt.Ref),
+		Knobs: Knobs(ch)}
 	for _, v := range variants {
 		if err := ctx.Err(); err != nil {
 			return nil, err
@@ -156,17 +169,22 @@ func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freq
 		if err != nil {
 			return nil, err
 		}
-		pts, err := smallSignal(ctx, c, freqs, opt)
+		pts, p, err := smallSignal(ctx, c, freqs, opt)
 		if err != nil {
 			return nil, err
 		}
-		rep.Curves = append(rep.Curves, Curve{Label: curveLabel(v), Settings: v.Sets, Points: pts})
+		w, err := bias.Warnings(ctx, p)
+		if err != nil {
+			return nil, err
+		}
+		rep.Curves = append(rep.Curves, Curve{Label: curveLabel(v), Settings: v.Sets, Points: pts, Warnings: w})
 	}
+	rep.Warnings = combineCurves(rep.Curves)
 	return rep, nil
 }
 
 // curveLabel names a variant: its varying settings, else every override,
-// else "as set" (the chain as written).
+// else "as written" (the chain as the file has it).
 func curveLabel(v Variant) string {
 	switch {
 	case v.Label != "":
@@ -174,7 +192,7 @@ func curveLabel(v Variant) string {
 	case len(v.Sets) > 0:
 		return strings.Join(v.Sets, " ")
 	}
-	return "as set"
+	return "as written"
 }
 
 func probeName(p string) string {
@@ -189,4 +207,15 @@ func refName(r string) string {
 		return "source"
 	}
 	return r
+}
+
+// combineCurves joins the warnings of every curve (report.Combine, named
+// by the curves' labels).
+func combineCurves(curves []Curve) report.Warnings {
+	labels := make([]string, len(curves))
+	lists := make([]report.Warnings, len(curves))
+	for i, c := range curves {
+		labels[i], lists[i] = c.Label, c.Warnings
+	}
+	return report.Combine(labels, lists)
 }

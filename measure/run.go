@@ -7,6 +7,7 @@ import (
 
 	"renderchain/chains"
 	"renderchain/parallel"
+	"renderchain/report"
 )
 
 // Plan is a set of sine measurements: every variant of the chain, at one
@@ -32,6 +33,12 @@ type Report struct {
 	ChainFile    string    `json:"chain_file"`
 	Sweep        *Sweep    `json:"sweep,omitempty"`
 	Measurements []*Result `json:"measurements"`
+	// Warnings joins the measurements' (report.Combine: one that only some
+	// measurements have names them).
+	Warnings report.Warnings `json:"warnings"`
+	// Knobs are the knob positions of the chain the variants start from
+	// (Knobs), for the figures' titles.
+	Knobs []string `json:"-"`
 }
 
 type job struct {
@@ -102,7 +109,9 @@ func Run(ctx context.Context, ch *chains.Chain, p Plan) (*Report, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Report{Chain: ch.Name, ChainFile: ch.File, Sweep: p.Sweep, Measurements: results}, nil
+	rep := &Report{Chain: ch.Name, ChainFile: ch.File, Sweep: p.Sweep, Measurements: results, Knobs: Knobs(ch)}
+	rep.Warnings = rep.combinedWarnings()
+	return rep, nil
 }
 
 // run measures one job: the variant, the sweep step's override or level.

@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/dsp/window"
 
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/dsp/resample"
 	"renderchain/dsp/spectrum"
@@ -68,6 +69,9 @@ type Options struct {
 	// Spectrum keeps the analysed record's amplitude spectrum in the
 	// Result, for plots.
 	Spectrum bool
+	// Scope keeps a few settled cycles of the source and the probed node
+	// in the Result (Result.Scope), for the scope view.
+	Scope bool
 }
 
 func (o Options) withDefaults() Options {
@@ -227,6 +231,11 @@ type Result struct {
 	THDNPercent float64      `json:"thdn_percent"`
 	THDNDB      report.Level `json:"thdn_db"`
 	THDNBandHz  [2]float64   `json:"thdn_band_hz"`
+	// AnalysisFloorDB is the level, relative to the fundamental, under
+	// which a harmonic or a distortion figure cannot be told from the
+	// measurement's own residue (AnalysisFloor). Tables print figures
+	// below it as "< floor"; the JSON keeps them exactly.
+	AnalysisFloorDB report.Level `json:"analysis_floor_db"`
 
 	// EvenOddRatio is the energy of the even harmonics over that of the
 	// odd ones (null when undefined), EvenOddDB the same in dB.
@@ -244,6 +253,8 @@ type Result struct {
 
 	// Spectrum is kept when Options.Spectrum is set.
 	Spectrum *Spectrum `json:"-"`
+	// Scope is kept when Options.Scope is set.
+	Scope *Scope `json:"-"`
 }
 
 // Sine measures the chain's response to a sine of freq Hz and amplitude
@@ -296,9 +307,15 @@ func sineOn(ctx context.Context, p *engine.Prepared, freq, amplitude float64, op
 	r := newResult(p, node, freq, amplitude, opt, rec, an)
 	r.Clipping = clipping(rec.Samples, an, p.Chain.FullScale, node == p.Circuit.Output)
 	r.Solver = report.SolverOf(rec.Stats)
-	r.Warnings = warnings(r, opt, passbandEdge(opt.SampleRate))
+	if r.Warnings, err = bias.Warnings(ctx, p); err != nil {
+		return nil, err
+	}
+	r.Warnings.Merge(warnings(r, opt, passbandEdge(opt.SampleRate)))
 	if opt.Spectrum {
 		r.Spectrum = amplitudeSpectrum(rec.Samples, opt.SampleRate, r.Record.Coherent)
+	}
+	if opt.Scope {
+		r.Scope = scopeOf(rec, opt.SampleRate, amplitude)
 	}
 	return r, nil
 }
@@ -330,18 +347,19 @@ func newResult(p *engine.Prepared, node int, freq, amplitude float64, opt Option
 			Tolerance: opt.SettleTolerance, FadeIn: float64(rec.Sine.Fade) / fs},
 		Record: Record{Samples: n, Seconds: float64(n) / fs, Cycles: an.Cycles, Coherent: an.Method == spectrum.MethodBins,
 			Method: map[spectrum.Method]string{spectrum.MethodBins: "bins", spectrum.MethodFit: "fit"}[an.Method]},
-		THDPercent:    100 * an.THDF,
-		THDDB:         report.Level(report.DB(an.THDF)),
-		THDRPercent:   100 * an.THDR,
-		THDNPercent:   100 * an.THDN,
-		THDNDB:        report.Level(report.DB(an.THDN)),
-		THDNBandHz:    [2]float64{an.BandLow, an.BandHigh},
-		EvenOddRatio:  report.Number(an.EvenOddRatio),
-		EvenOddDB:     report.Level(report.PowerDB(an.EvenOddRatio)),
-		DCV:           an.DC,
-		PeakPositiveV: an.PeakPositive,
-		PeakNegativeV: an.PeakNegative,
-		PeakAsymmetry: report.Number(an.PeakAsymmetry),
+		THDPercent:      100 * an.THDF,
+		THDDB:           report.Level(report.DB(an.THDF)),
+		THDRPercent:     100 * an.THDR,
+		THDNPercent:     100 * an.THDN,
+		THDNDB:          report.Level(report.DB(an.THDN)),
+		THDNBandHz:      [2]float64{an.BandLow, an.BandHigh},
+		AnalysisFloorDB: report.Level(report.DB(AnalysisFloor(opt.SettleTolerance))),
+		EvenOddRatio:    report.Number(an.EvenOddRatio),
+		EvenOddDB:       report.Level(report.PowerDB(an.EvenOddRatio)),
+		DCV:             an.DC,
+		PeakPositiveV:   an.PeakPositive,
+		PeakNegativeV:   an.PeakNegative,
+		PeakAsymmetry:   report.Number(an.PeakAsymmetry),
 	}
 	passband := passbandEdge(fs)
 	phaseIn := rec.Sine.Phase(rec.Start)
@@ -358,6 +376,19 @@ func newResult(p *engine.Prepared, node int, freq, amplitude float64, opt Option
 		r.Harmonics = append(r.Harmonics, line(h))
 	}
 	return r
+}
+
+// AnalysisFloor returns the amplitude ratio to the fundamental under which
+// a harmonic or a distortion figure (THD, THD+N) is residue of the
+// measurement rather than the circuit's: the larger of the rate
+// converter's stopband, 10^(−resample.StopbandAttenuation/20) = 1e-5
+// (−100 dB: what the circuit makes above the base band comes back into it
+// at most this far down), and the settle tolerance (the window-to-window
+// change left when the record was taken, a start-up transient of about
+// that size relative to the output). With the default tolerance, 1e-5:
+// THD under 0.001 % prints as "< 0.001 %".
+func AnalysisFloor(settleTolerance float64) float64 {
+	return math.Max(report.FromDB(-resample.StopbandAttenuation), settleTolerance)
 }
 
 func warnings(r *Result, opt Options, passband float64) report.Warnings {

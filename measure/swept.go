@@ -9,6 +9,7 @@ import (
 
 	"gonum.org/v1/gonum/dsp/fourier"
 
+	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/engine"
 	"renderchain/models"
@@ -254,8 +255,15 @@ func Swept(ctx context.Context, ch *chains.Chain, freqs []float64, opt SweptOpti
 	if err != nil {
 		return nil, nil, err
 	}
+	w, err := bias.Warnings(ctx, p)
+	if err != nil {
+		return nil, nil, err
+	}
 	dy, dx, nfft := d.deconvolve(y)
 	curves, wins := d.curves(freqs, dy, dx)
+	for i := range curves {
+		curves[i].Warnings = w
+	}
 	info := &SweptInfo{AmplitudeV: opt.Amplitude, F1Hz: d.f1, F2Hz: d.f2, DurationS: d.T, LS: d.L, SecondsPerOctave: d.L * math.Ln2,
 		FadeInS: d.tIn, FadeOutS: d.T - d.tOut, TailS: float64(d.ntail) / d.fs, SampleRate: d.fs, Oversample: p.Oversample, FFTSize: nfft,
 		Windows: wins, Solver: report.SolverOf(chn.Stats())}
@@ -333,7 +341,8 @@ func RunSwept(ctx context.Context, ch *chains.Chain, variants []Variant, freqs [
 		st = addSolver(st, in.Solver)
 	}
 	info.Solver = st
-	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "swept", Probe: probeName(opt.Probe), Reference: "source", Swept: &info}
+	rep := &ResponseReport{Chain: ch.Name, ChainFile: ch.File, Mode: "swept", Probe: probeName(opt.Probe), Reference: "source", Swept: &info,
+		Knobs: Knobs(ch)}
 	for i, v := range variants {
 		for _, c := range curves[i] {
 			name := "H1 linear"
@@ -348,6 +357,12 @@ func RunSwept(ctx context.Context, ch *chains.Chain, variants []Variant, freqs [
 			rep.Curves = append(rep.Curves, c)
 		}
 	}
+	// One list per variant, named as a small-signal curve would be.
+	named := make([]Curve, len(variants))
+	for i, v := range variants {
+		named[i] = Curve{Label: curveLabel(v), Warnings: curves[i][0].Warnings}
+	}
+	rep.Warnings = combineCurves(named)
 	return rep, nil
 }
 

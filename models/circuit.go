@@ -274,7 +274,7 @@ func (c *Circuit) Check() error {
 	}
 	if len(floating) > 0 {
 		sort.Strings(floating)
-		return &CircuitError{"node " + floating[0], "has no DC path to ground (only capacitors reach it)"}
+		return &CircuitError{"node " + floating[0], "has no DC path to ground: only capacitors connect it to the rest of the circuit"}
 	}
 	return nil
 }

@@ -205,12 +205,18 @@ func PartsListContext(ctx context.Context, ch *chains.Chain, allStages bool) (*B
 				l.order = l.Value
 				l.MinVoltage = report.Number(vmin)
 				l.Rating = sprintf("reverse ≥ %s", models.FormatValue(vmin, "V"))
+				if bv := p.DiodeParams().BreakdownVoltage; bv > 0 && bv < vmin {
+					l.MinVoltage = report.Number(math.NaN())
+					l.Rating = sprintf("breaks down at %s by design (zener)", models.FormatValue(bv, "V"))
+				}
 				for _, d := range b.Diodes {
 					if d.Ref == ref {
 						l.IdleVolts, l.IdlePower = report.Number(d.V), report.Number(d.Power)
 						l.Note = sprintf("idle %s", models.FormatValue(d.I, "A"))
 					}
 				}
+			default:
+				otherLine(&l, p, b, ref, vmin)
 			}
 			bom.Lines = append(bom.Lines, l)
 		}
@@ -261,7 +267,8 @@ func polarity(ch *chains.Chain, st *chains.Stage, p *chains.Part, v float64) str
 // kindOrder is the order of kinds in the order list: resistors and pots,
 // then capacitors, inductors, cable, diodes and transistors.
 var kindOrder = map[chains.PartKind]int{chains.Resistor: 0, chains.Pot: 1, chains.Capacitor: 2, chains.Inductor: 3,
-	chains.Cable: 4, chains.Diode: 5, chains.NPN: 6, chains.PNP: 7}
+	chains.Cable: 4, chains.Diode: 5, chains.NPN: 6, chains.PNP: 7, chains.NJFET: 8, chains.PJFET: 9, chains.NMOSFET: 10,
+	chains.PMOSFET: 11, chains.OpAmp: 12, chains.Transformer: 13, chains.Switch: 14}
 
 func group(lines []BOMLine) []OrderLine {
 	type key struct {
@@ -272,7 +279,7 @@ func group(lines []BOMLine) []OrderLine {
 	var keys []key
 	for _, l := range lines {
 		k := key{l.Kind, l.order, l.Rating}
-		if l.Kind.Transistor() {
+		if l.Kind.Transistor() || l.Kind.FET() {
 			k.rating = ""
 		}
 		o, ok := m[k]

@@ -72,6 +72,14 @@ func TestResponseFigureData(t *testing.T) {
 	if ln := f2.Panels[0].Lines[2]; ln.Style != 0 || ln.Group != 3 || ln.Dash != 2 {
 		t.Errorf("dashed curve: style %d group %d dash %d, want 0, 3, 2", ln.Style, ln.Group, ln.Dash)
 	}
+	// A negative dash draws solid in the variant's colour.
+	spec.Curves[2].Dash = -1
+	if f2, err = ResponseFigure(spec); err != nil {
+		t.Fatal(err)
+	}
+	if ln := f2.Panels[0].Lines[2]; ln.Style != 0 || ln.Group != 3 || ln.Dash != 0 {
+		t.Errorf("solid curve: style %d group %d dash %d, want 0, 3, 0", ln.Style, ln.Group, ln.Dash)
+	}
 	spec.Curves[2].Dash = 0
 	r := ranges(t, f)
 	top := math.Inf(-1)

@@ -49,6 +49,12 @@
 // in the same directory and renames it on success, so a failed or
 // interrupted write leaves nothing at the destination.
 //
+// Inspect draws a figure as PNG and reports what a picture check needs:
+// the file and its decoded image, the size asked for, the data areas, and
+// where the pixels of curve colours fell; Inspection.Problems and
+// SVGProblems turn that into findings. Packages that draw figures test
+// theirs with them.
+//
 // # References
 //
 //   - The gonum/plot library, gonum.org/v1/plot (plot, plotter, vg/draw,

@@ -610,6 +610,13 @@ func setAxis(a *plot.Axis, spec Axis, nominal bool, length vg.Length, horizontal
 		// No data: give the axis a range of its own.
 		a.Min, a.Max = 1, 10
 	}
+	// A range narrower than a billionth of its values (a flat trace,
+	// a supply node, rounding noise on a constant) counts as one value:
+	// ticks at a step of its width would magnify rounding into a curve.
+	if a.Max-a.Min <= 1e-9*math.Max(math.Abs(a.Min), math.Abs(a.Max)) {
+		a.Min = (a.Min + a.Max) / 2
+		a.Max = a.Min
+	}
 	if a.Min == a.Max {
 		d := math.Max(math.Abs(a.Min)*0.1, 1)
 		if spec.Log {

@@ -8,6 +8,12 @@ import (
 	"renderchain/dsp/spectrum"
 )
 
+// Heading composes a figure title the way the builders do: what it shows
+// and the chain's name, joined by a dash, on the first line, then the
+// details (path, shared settings), separated by " · ", on the second.
+// Empty details are left out.
+func Heading(what, chain string, details ...string) string { return heading(what, chain, details...) }
+
 // heading composes a figure title: what it shows and the chain's name,
 // joined by a dash, on the first line, then the details (path, shared settings), separated by
 // " · ", on the second.
@@ -38,8 +44,10 @@ type ResponseCurve struct {
 	// Style is the curve's palette position (0 first): the variant's
 	// index on the listening page, so figure and players share colours.
 	Style int
-	// Dash, when positive, replaces the style's dash pattern (harmonic
-	// responses of a swept measurement drawn in their variant's colour).
+	// Dash, when not zero, replaces the style's dash pattern: a positive
+	// value picks that pattern (Line.Dash), a negative one draws solid
+	// (harmonic responses of a swept measurement drawn in their variant's
+	// colour, its linear response solid).
 	Dash int
 	// Hz are increasing frequencies; DB the gain and Deg the phase at
 	// each, the phase wrapped or not (the figure unwraps it).
@@ -105,17 +113,13 @@ func ResponseFigure(s ResponseSpec) (*Figure, error) {
 			}
 		}
 		deg := spectrum.UnwrapDegrees(nil, c.Deg)
-		dash := 0
-		if c.Dash > 0 {
-			dash = c.Dash
-		}
 		line := func(y []float64, label string) Line {
 			ln := Line{Label: label, X: c.Hz, Y: y, Style: c.Style + 1}
 			if len(s.Curves) > 1 {
 				ln.Markers, ln.MarkEvery = true, responseMarkEvery
 			}
-			if dash > 0 {
-				ln.Style, ln.Group, ln.Dash = 0, c.Style+1, dash
+			if c.Dash != 0 {
+				ln.Style, ln.Group, ln.Dash = 0, c.Style+1, max(c.Dash, 0)
 			}
 			return ln
 		}

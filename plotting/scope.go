@@ -134,7 +134,7 @@ func railsNear(p *Panel, rails []Rail) {
 }
 
 func railText(r Rail) string {
-	v := SI(r.V) + " V"
+	v := strings.Replace(SI(r.V), "-", "−", 1) + " V" // a true minus, as on the axes
 	if r.Label == "" {
 		return v
 	}

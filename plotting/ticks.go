@@ -109,7 +109,8 @@ func (t linearTicks) Ticks(lo, hi float64) []plot.Tick {
 	var ticks []plot.Tick
 	first := math.Ceil(lo/minor - 1e-9)
 	last := math.Floor(hi/minor + 1e-9)
-	if last-first > 1000 {
+	if last-first > 1000 || math.Abs(first) > 1<<50 || math.Abs(last) > 1<<50 {
+		// Too many ticks, or steps too small for k++ to move k.
 		return nil
 	}
 	for k := first; k <= last; k++ {

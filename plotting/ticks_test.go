@@ -132,3 +132,20 @@ func TestSI(t *testing.T) {
 		}
 	}
 }
+
+// A flat trace whose values differ only by rounding (a supply node at
+// 9 V and 9 V + 5e-15) is drawn on a range of its own, with round ticks,
+// instead of ticks a rounding step apart; ticks too fine for their
+// values are none, not an endless loop.
+func TestFlatRange(t *testing.T) {
+	f := &Figure{Panels: []Panel{{X: Axis{Label: "time", Unit: "s"}, Y: Axis{Label: "voltage", Unit: "V"},
+		Lines: []Line{{X: []float64{0, 1, 2}, Y: []float64{9, 9 + 5e-15, 9}}}}}}
+	r := ranges(t, f)
+	if lo, hi := r[0][2], r[0][3]; !(lo <= 8.1+1e-9 && hi >= 9.9-1e-9) {
+		t.Errorf("flat trace at 9 V drawn on %g … %g V, want at least 8.1 … 9.9 V", lo, hi)
+	}
+	tk := linearTicks{stepChoice: stepChoice{step: 1e-18, minor: 5}, scale: 1}
+	if got := tk.Ticks(9, 9+5e-15); got != nil {
+		t.Errorf("%d ticks a rounding step apart", len(got))
+	}
+}

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"time"
 
+	"renderchain/bias"
 	"renderchain/dsp/spectrum"
 	"renderchain/dsp/wavio"
 	"renderchain/engine"
@@ -131,6 +132,9 @@ func Render(ctx context.Context, p *engine.Prepared, in string, out *outputs.Fil
 		return nil, err
 	}
 	rep := newReport(p, in, out.Path(), f, of, r.Frames())
+	if rep.Warnings, err = bias.Warnings(ctx, p); err != nil {
+		return nil, err
+	}
 	start := time.Now()
 	lastProgress := time.Now()
 	prog := func(done int64) {

@@ -39,6 +39,19 @@ func writeTestWAV(t testing.TB, path string, f wavio.Format, x []float64) {
 	}
 }
 
+// sineWAV writes n samples of a sine of amplitude a and f Hz, 48 kHz
+// mono 24-bit, as in.wav in dir, and returns its path and samples.
+func sineWAV(t testing.TB, dir string, n int, a, f float64) (string, []float64) {
+	t.Helper()
+	x := make([]float64, n)
+	for i := range x {
+		x[i] = a * math.Sin(2*math.Pi*f*float64(i)/48000)
+	}
+	in := filepath.Join(dir, "in.wav")
+	writeTestWAV(t, in, wavio.Format{SampleRate: 48000, Channels: 1, BitDepth: 24}, x)
+	return in, x
+}
+
 func readWAV(t testing.TB, path string) ([]float64, wavio.Format) {
 	t.Helper()
 	r, err := wavio.Open(path)
@@ -196,12 +209,7 @@ func TestRenderFaultsLeaveNoOutput(t *testing.T) {
 // the PCM writer clamps and the report says how many samples and how far.
 func TestRenderReportsClipping(t *testing.T) {
 	dir := t.TempDir()
-	in := filepath.Join(dir, "in.wav")
-	x := make([]float64, 4800)
-	for i := range x {
-		x[i] = 0.9 * math.Sin(2*math.Pi*500*float64(i)/48000)
-	}
-	writeTestWAV(t, in, wavio.Format{SampleRate: 48000, Channels: 1, BitDepth: 24}, x)
+	in, x := sineWAV(t, dir, 4800, 0.9, 500)
 	hot := strings.Replace(dividerChain, `full_scale = "1V"`, `full_scale = "0.25V"`, 1)
 	rep, err := RenderFile(context.Background(), prepared(t, hot, 1), in, filepath.Join(dir, "out.wav"), FileOptions{})
 	if err != nil {
@@ -280,5 +288,35 @@ func TestSilenceRenders(t *testing.T) {
 	}
 	if _, err := os.Stat(filepath.Join(dir, "out.wav")); err != nil {
 		t.Error(err)
+	}
+	// The models make no noise: a silent input says so (a builder checks
+	// idle noise with silence).
+	if len(rep.Warnings) == 0 || !strings.HasPrefix(rep.Warnings[0], "the input is silence: the device models make no noise") {
+		t.Errorf("warnings %q", rep.Warnings)
+	}
+}
+
+// Warnings travel: a render of the cascade with overall feedback carries
+// the stability warning and the rendered check's line in its report,
+// before the render's own (the output clips the file: the motorboat swings
+// several volts into a 1 V full scale); a render of the same cascade
+// without the feedback path carries neither.
+func TestRenderCarriesTheChainsWarnings(t *testing.T) {
+	dir := t.TempDir()
+	in, _ := sineWAV(t, dir, 24000, 0.1, 220)
+	for _, loop := range []bool{true, false} {
+		p, err := engine.Prepare(testchains.Cascade(t, loop), 1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rep, err := RenderFile(context.Background(), p, in, filepath.Join(dir, "wet.wav"), FileOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		all := strings.Join(rep.Warnings, "\n")
+		osc := strings.HasPrefix(all, "self-oscillates near ") && len(rep.Warnings) > 1 && strings.HasPrefix(rep.Warnings[1], "rendered check ")
+		if loop != osc || (!loop && strings.Contains(all, "oscillat")) {
+			t.Errorf("loop %v: warnings %q", loop, rep.Warnings)
+		}
 	}
 }

@@ -2,6 +2,7 @@ package render
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"time"
 
@@ -101,6 +102,10 @@ func (r *Report) finish(st wdf.Stats, clipped int64, elapsed time.Duration) {
 	if elapsed > 0 {
 		r.RealtimeFactor = math.Round(r.Input.Seconds/elapsed.Seconds()*100) / 100
 	}
+	if r.dry.N() > 0 && r.dry.Peak() == 0 {
+		r.Warnings.Add("the input is silence: the device models make no noise (no thermal or shot noise), so the output holds only what the circuit "+
+			"makes by itself (hum, oscillation, a start-up transient), not its hiss; here it peaks at %s", levelText(float64(r.Output.PeakDBFS), "dBFS"))
+	}
 	if clipped > 0 {
 		r.Warnings.Add("%d output samples beyond full scale were clipped (peak %.2f dBFS): raise output.full_scale or lower the volume knob", clipped, float64(r.Output.PeakDBFS))
 	}
@@ -116,4 +121,12 @@ func writeJSONFile(path string, v any) error {
 		return err
 	}
 	return wavio.WriteFileAtomic(path, append(b, '\n'))
+}
+
+// levelText writes a level for a warning: "−∞ dBFS" reads as "nothing".
+func levelText(db float64, unit string) string {
+	if !report.Finite(db) {
+		return "nothing (exact zeros)"
+	}
+	return fmt.Sprintf("%.1f %s", db, unit)
 }

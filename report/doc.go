@@ -2,7 +2,8 @@
 // in: a level in decibels and a plain number that both marshal what does
 // not exist (silence's −∞ dB, an undefined ratio's NaN) as JSON null, the
 // decibel conversions, the solver statistics of a run, the description of
-// a WAV file, one peak/RMS accumulator and a list of warnings.
+// a WAV file, one peak/RMS accumulator, a list of warnings, the pole
+// analysis as reports write it, and the display floors of tables.
 //
 // # Rules
 //
@@ -22,6 +23,20 @@
 // stream in constant memory; its crest factor 20·log10(peak/RMS) is 3.01
 // dB for a sine (√2) and 0 dB for a square wave, and NaN for silence.
 //
+// # Display rules
+//
+// Tables for people round, and some figures mean nothing below a floor.
+// Quantity prints a current under CurrentFloor (1 nA), a power under
+// PowerFloor (1 µW) or a voltage under VoltageFloor (1 µV) as 0, with the
+// reasons at each constant; AtLeast prints a figure under its analysis
+// floor as "< floor" (THD under the measurement's floor, package measure);
+// Fixed never prints a negative zero; all three print "—" for a figure
+// that does not exist. Reports (JSON, CSV) keep every figure exactly.
+//
+// Warnings are one line each, said once (Warnings.Add); Combine joins the
+// lists of several results, naming the result a warning belongs to when
+// not all of them have it.
+//
 // # References
 //
 //   - IETF RFC 8259, The JavaScript Object Notation (JSON) Data
@@ -31,6 +46,6 @@
 //
 // # Non-goals
 //
-// Formatting for people (tables live with the commands) and any
+// Tables themselves (they live with the commands and benches) and any
 // measurement: this package only holds and writes what others measured.
 package report

@@ -3,6 +3,7 @@ package report
 import (
 	"encoding/json"
 	"math"
+	"slices"
 	"testing"
 
 	"renderchain/dsp/wavio"
@@ -119,6 +120,41 @@ func TestWarningsOnce(t *testing.T) {
 	}
 }
 
+// Combine says a finding every result shares once, names the result of
+// one only one has, and joins findings that differ only in their figures,
+// giving each differing figure's range.
+func TestCombine(t *testing.T) {
+	for _, tc := range []struct {
+		labels []string
+		lists  []Warnings
+		want   Warnings
+	}{
+		{[]string{"9V", "7V"}, []Warnings{{"shared", "Q1 cut off"}, {"Q1 saturated", "shared"}},
+			Warnings{"shared", "9V: Q1 cut off", "7V: Q1 saturated"}},
+		{[]string{"a", "b", "c"}, []Warnings{{"Q1 sits 230 mV from ground"}, {"Q1 sits 620.6 mV from ground"}, {"Q1 sits -5 mV from ground"}},
+			Warnings{"Q1 sits -5 to 620.6 mV from ground (in all 3)"}},
+		{[]string{"a", "b", "c"}, []Warnings{{"fuzz.Q2 at 1.5 V, 3 s"}, {}, {"fuzz.Q2 at 2 V, 3 s"}},
+			Warnings{"fuzz.Q2 at 1.5 to 2 V, 3 s (in a and c)"}},
+		{[]string{"a", "b", "c", "d", "e"}, []Warnings{{"x"}, {"x"}, {"x"}, {"x"}, {}},
+			Warnings{"x (in a, b, c and 1 more)"}},
+		{[]string{"only"}, []Warnings{{"a"}}, Warnings{"a"}},
+		{nil, nil, Warnings{}},
+	} {
+		if got := Combine(tc.labels, tc.lists); !slices.Equal(got, tc.want) || got == nil {
+			t.Errorf("%q: %q, want %q", tc.lists, got, tc.want)
+		}
+	}
+}
+
+// A figure is a number that does not continue a name ("Q1", "H2", the
+// exponent of "3e5").
+func TestFigures(t *testing.T) {
+	text, nums := figures("fuzz.Q1's Vce -17.24 mV, H2 at 3e5 and +4")
+	if !slices.Equal(nums, []string{"-17.24", "3", "+4"}) || len(text) != len(nums)+1 {
+		t.Errorf("%q %q", text, nums)
+	}
+}
+
 func TestSolverAndWAV(t *testing.T) {
 	s := SolverOf(wdf.Stats{Samples: 3, Iterations: 7, MaxIterations: 4, Fallbacks: 1})
 	if s.MeanIterations != 2.333 || s.MaxIterations != 4 || s.Fallbacks != 1 || s.Samples != 3 {
@@ -127,5 +163,34 @@ func TestSolverAndWAV(t *testing.T) {
 	w := WAVOf("x.wav", wavio.Format{SampleRate: 48000, Channels: 2, BitDepth: 24}, 24000)
 	if w.Seconds != 0.5 || w.Channels != 2 || w.Format == "" {
 		t.Errorf("%+v", w)
+	}
+}
+
+// Display rules: a figure under its floor prints as 0 or as "< floor", a
+// negative zero never prints, a figure that does not exist prints "—".
+func TestDisplay(t *testing.T) {
+	cases := []struct{ got, want string }{
+		{Quantity(8.7e-33, PowerFloor, "W"), "0 W"},
+		{Quantity(-2.5e-15, CurrentFloor, "A"), "0 A"},
+		{Quantity(-0.0, CurrentFloor, "A"), "0 A"},
+		{Quantity(145.1e-6, CurrentFloor, "A"), "145.1 µA"},
+		{Quantity(-720.1e-6, CurrentFloor, "A"), "-720.1 µA"},
+		{Quantity(math.NaN(), CurrentFloor, "A"), "—"},
+		{Fixed(-0.3, "%.0f"), "0"},
+		{Fixed(-0.04, "%+.1f"), "+0.0"},
+		{Fixed(-0.0, "%.3f"), "0.000"},
+		{Fixed(-1.5, "%.1f"), "-1.5"},
+		{Fixed(math.Inf(1), "%.1f"), "—"},
+		{AtLeast(2.116e-14, 0.001, "%.4g"), "< 0.001"},
+		{AtLeast(55.78, 0.001, "%.4g"), "55.78"},
+		{AtLeast(-274.9, -100, "%.1f"), "< -100.0"},
+		{AtLeast(math.Inf(-1), -100, "%.1f"), "< -100.0"},
+		{AtLeast(-16.4, -100, "%.1f"), "-16.4"},
+		{AtLeast(math.NaN(), -100, "%.1f"), "—"},
+	}
+	for i, c := range cases {
+		if c.got != c.want {
+			t.Errorf("case %d: %q, want %q", i, c.got, c.want)
+		}
 	}
 }

@@ -30,7 +30,11 @@ func abCommand() *cli.Command {
 			"(the clips back to back, every segment from the same point of the phrase, equal-power crossfades),\n" +
 			"ab.json and index.html (a self-contained page that works offline; switching clips keeps the\n" +
 			"position). Everything is built beside DIR and moved in when complete. --blind gives the clips\n" +
-			"neutral labels in an order drawn from --seed and writes the key to a separate file.",
+			"neutral labels in an order drawn from --seed and writes the key to a separate file.\n\n" +
+			"The page also shows pictures of all variants together, each in its player's colour: the small-signal\n" +
+			"response, the harmonics of a test sine (--sine-freq, --sine-level at the source), the same 40 ms of\n" +
+			"every clip from the take's loudest half second, and each clip's long-term third-octave spectrum\n" +
+			"(fig-*.png). A blind set gets none: they would tell the clips apart.",
 		Flags: []cli.Flag{
 			chainFlag,
 			&cli.StringFlag{Name: "in", Aliases: []string{"i"}, Usage: "dry take (WAV, mono or stereo, 44.1–192 kHz), required"},
@@ -51,6 +55,9 @@ func abCommand() *cli.Command {
 			&cli.BoolFlag{Name: "blind", Usage: "neutral labels (A, B, …) in a shuffled order; the key goes to a separate file"},
 			&cli.Int64Flag{Name: "seed", Usage: "shuffle seed of a --blind set (the same seed gives the same set)"},
 			&cli.StringFlag{Name: "key", Usage: "key `FILE` of a --blind set, outside DIR (default: DIR-key.json beside DIR)"},
+			&cli.BoolFlag{Name: "no-pictures", Usage: "leave out the pictures of the variants together"},
+			&cli.StringFlag{Name: "sine-freq", Value: "220Hz", Usage: "test sine of the harmonics picture, `FREQ`"},
+			&cli.StringFlag{Name: "sine-level", Value: "100mV", Usage: "its amplitude at the source, `LEVEL`: 100mV (peak), 20mVpp, -20dBV"},
 			&cli.StringFlag{Name: "plots", Usage: "folder of PNG plots to include: `DIR`/SLUG.TITLE.png for the variant whose label reads SLUG as a file name"},
 			&cli.BoolFlag{Name: "force", Usage: "replace the clips of an earlier set in DIR"},
 			&cli.IntFlag{Name: "jobs", Aliases: []string{"j"}, Usage: "variants rendered at once (default: one per core)"},
@@ -72,6 +79,19 @@ func abAction(c *cli.Context) error {
 	if !c.Bool("blind") && (c.IsSet("seed") || c.IsSet("key")) {
 		return usagef("--seed and --key belong to a --blind set")
 	}
+	for _, name := range []string{"sine-freq", "sine-level"} {
+		if c.IsSet(name) && (c.Bool("blind") || c.Bool("no-pictures")) {
+			return usagef("--%s sets the harmonics picture, which a --blind set or --no-pictures does not get", name)
+		}
+	}
+	pics := abtest.PictureOptions{On: !c.Bool("no-pictures")}
+	var err error
+	if pics.SineHz, err = parseFlag(c, "sine-freq", models.ParseFrequency); err != nil {
+		return err
+	}
+	if pics.SineV, err = parseFlag(c, "sine-level", models.ParseAmplitude); err != nil {
+		return err
+	}
 	var variants []abtest.Variant
 	for _, spec := range c.StringSlice("variant") {
 		v, err := abtest.ParseVariant(spec)
@@ -81,7 +101,6 @@ func abAction(c *cli.Context) error {
 		variants = append(variants, v)
 	}
 	seq := abtest.SequenceOptions{Rounds: c.Int("rounds")}
-	var err error
 	if seq.Segment, err = parseFlag(c, "segment", models.ParseSeconds); err != nil {
 		return err
 	}
@@ -106,7 +125,7 @@ func abAction(c *cli.Context) error {
 		Variants: variants, NoBypass: c.Bool("no-bypass"), BypassLabel: c.String("bypass-label"),
 		Oversample: c.Int("oversample"), TargetLUFS: c.Float64("target-lufs"), CeilingDBTP: c.Float64("ceiling"),
 		Format: c.String("format"), Sequence: seq,
-		Blind: c.Bool("blind"), Seed: c.Int64("seed"), KeyPath: c.String("key"), PlotDir: c.String("plots"),
+		Blind: c.Bool("blind"), Seed: c.Int64("seed"), KeyPath: c.String("key"), PlotDir: c.String("plots"), Pictures: pics,
 		Force: c.Bool("force"), Jobs: c.Int("jobs"), Progress: prog,
 	})
 	done()
@@ -149,20 +168,29 @@ func printAB(w io.Writer, s *abtest.Set, dir string) {
 	}
 	fmt.Fprintf(w, "  %-*s  %9s  %7s  %11s  %s\n", width, "clip", "gain", "LUFS", "true peak", "file")
 	for _, v := range s.Variants {
-		fmt.Fprintf(w, "  %-*s  %+6.2f dB  %7.2f  %6.2f dBTP  %s\n", width, v.Shown(), float64(v.GainDB), float64(v.LUFS),
-			float64(v.TruePeakDBTP), v.File)
+		flag := ""
+		if v.Flag != "" {
+			flag = "  <- " + v.Flag
+		}
+		fmt.Fprintf(w, "  %-*s  %+6.2f dB  %7.2f  %6.2f dBTP  %s%s\n", width, v.Shown(), float64(v.GainDB), float64(v.LUFS),
+			float64(v.TruePeakDBTP), v.File, flag)
 	}
 	if q := s.Sequence; q != nil {
 		fmt.Fprintf(w, "  %s: %d × [%s], %.3f s segments from %.3f s, %.0f ms crossfades (%.2f s)\n", q.File, q.Rounds,
 			strings.Join(q.Order, " "), q.SegmentSeconds, q.StartSeconds, 1000*q.CrossfadeSeconds, float64(q.Frames)/float64(s.Dry.SampleRate))
 	}
 	fmt.Fprintf(w, "  page: %s (self-contained, works offline)\n", filepath.Join(dir, abtest.PageFile))
+	if len(s.Pictures) > 0 {
+		var files []string
+		for _, p := range s.Pictures {
+			files = append(files, p.File)
+		}
+		fmt.Fprintf(w, "  pictures: %s\n", strings.Join(files, " "))
+	}
 	if s.KeyFile != "" {
 		fmt.Fprintf(w, "  key: %s (keep it from the listener; ab.json's gain_db hints at which clip was quiet)\n", s.KeyFile)
 	}
-	for _, warn := range s.Warnings {
-		if !s.Blind {
-			fmt.Fprintln(w, "  warning: "+warn)
-		}
+	for _, warn := range s.Warnings { // a blind set's name clips by their neutral labels only
+		fmt.Fprintln(w, "  warning: "+warn)
 	}
 }

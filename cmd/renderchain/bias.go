@@ -12,6 +12,7 @@ import (
 	"renderchain/bias"
 	"renderchain/chains"
 	"renderchain/models"
+	"renderchain/report"
 )
 
 func biasCommand() *cli.Command {
@@ -105,6 +106,9 @@ func biasAction(c *cli.Context) error {
 			return err
 		}
 	}
+	if err := b.Check(c.Context); err != nil {
+		return err
+	}
 	var rows []*bias.Bias
 	if supplies != nil || temps != nil {
 		if rows, err = bias.SweepContext(c.Context, ch, supplies, temps); err != nil {
@@ -151,6 +155,36 @@ func biasConditions(c *cli.Context, ch *chains.Chain) (supplies, temps []float64
 	return supplies, temps, nil
 }
 
+// amps and watts print a current and a power for people: 0 below the
+// display floors of package report.
+func amps(a float64) string  { return report.Quantity(a, report.CurrentFloor, "A") }
+func watts(w float64) string { return report.Quantity(w, report.PowerFloor, "W") }
+
+// currentGain prints Ic/Ib: "—" when either current is below the display
+// floor (a ratio of two unreadable currents says nothing).
+func currentGain(ic, ib float64) string {
+	if math.Abs(ic) < report.CurrentFloor || math.Abs(ib) < report.CurrentFloor {
+		return "—"
+	}
+	return report.Fixed(ic/ib, "%.0f")
+}
+
+// hasTiny tells whether any current or power of b prints as 0 but is not.
+func hasTiny(b *bias.Bias) bool {
+	tiny := func(v, floor float64) bool { return v != 0 && math.Abs(v) < floor }
+	for _, t := range b.Transistors {
+		if tiny(t.Ic, report.CurrentFloor) || tiny(t.Ib, report.CurrentFloor) || tiny(t.Power, report.PowerFloor) {
+			return true
+		}
+	}
+	for _, d := range b.Diodes {
+		if tiny(d.I, report.CurrentFloor) || tiny(d.Power, report.PowerFloor) {
+			return true
+		}
+	}
+	return tiny(b.SupplyCurrent, report.CurrentFloor) || tiny(b.SupplyPower, report.PowerFloor)
+}
+
 func biasVolts(v float64) string {
 	if math.Abs(v) < 0.0005 {
 		v = 0 // no "-0.000 V"
@@ -180,9 +214,8 @@ func biasPrint(w io.Writer, b *bias.Bias, internal bool) {
 		tw = tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
 		fmt.Fprintln(tw, "transistor\tkind\tVc\tVb\tVe\tVbe\tVce\tIc\tIb\tP\tIc/Ib\tregion\t")
 		for _, t := range b.Transistors {
-			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%.0f\t%s\t\n", t.Ref, t.Kind(), biasVolts(t.Vc), biasVolts(t.Vb), biasVolts(t.Ve),
-				biasVolts(t.Vbe), biasVolts(t.Vce), models.FormatValue(t.Ic, "A"), models.FormatValue(t.Ib, "A"),
-				models.FormatValue(t.Power, "W"), t.Beta, t.Region)
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.Ref, t.Kind(), biasVolts(t.Vc), biasVolts(t.Vb), biasVolts(t.Ve),
+				biasVolts(t.Vbe), biasVolts(t.Vce), amps(t.Ic), amps(t.Ib), watts(t.Power), currentGain(t.Ic, t.Ib), t.Region)
 		}
 		tw.Flush()
 	}
@@ -191,13 +224,21 @@ func biasPrint(w io.Writer, b *bias.Bias, internal bool) {
 		tw = tabwriter.NewWriter(w, 2, 4, 2, ' ', tabwriter.AlignRight)
 		fmt.Fprintln(tw, "diode\tanode\tcathode\tV\tI\tP\t")
 		for _, d := range b.Diodes {
-			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t\n", d.Ref, d.Anode, d.Cathode, biasVolts(d.V), models.FormatValue(d.I, "A"), models.FormatValue(d.Power, "W"))
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t\n", d.Ref, d.Anode, d.Cathode, biasVolts(d.V), amps(d.I), watts(d.Power))
 		}
 		tw.Flush()
 	}
-	fmt.Fprintf(w, "\nsupply delivers %s (%s)\n", models.FormatValue(b.SupplyCurrent, "A"), models.FormatValue(b.SupplyPower, "W"))
+	biasPrintFETsAndOpAmps(w, b)
+	fmt.Fprintf(w, "\nsupply delivers %s (%s)\n", amps(b.SupplyCurrent), watts(b.SupplyPower))
+	if hasTiny(b) {
+		fmt.Fprintf(w, "(currents under %s and powers under %s print as 0; the JSON has every figure)\n",
+			models.FormatValue(report.CurrentFloor, "A"), models.FormatValue(report.PowerFloor, "W"))
+	}
 	for _, s := range b.Warnings {
 		fmt.Fprintln(w, "warning: "+s)
+	}
+	for _, s := range b.Notes {
+		fmt.Fprintln(w, "note: "+s)
 	}
 }
 
@@ -256,9 +297,9 @@ func biasPrintConditions(w io.Writer, rows []*bias.Bias) {
 					region += " (near v+)"
 				}
 			}
-			line += fmt.Sprintf("%s\t%s\t%s\t%s\t", biasVolts(t.Vc), biasVolts(t.Vce), models.FormatValue(t.Ic, "A"), region)
+			line += fmt.Sprintf("%s\t%s\t%s\t%s\t", biasVolts(t.Vc), biasVolts(t.Vce), amps(t.Ic), region)
 		}
-		fmt.Fprintf(tw, "%s%s\t\n", line, models.FormatValue(b.SupplyCurrent, "A"))
+		fmt.Fprintf(tw, "%s%s\t\n", line, amps(b.SupplyCurrent))
 	}
 	tw.Flush()
 	fmt.Fprintf(w, "  (near gnd / near v+: collector within %g V of that rail; the JSON rows carry the full warnings)\n", bias.RailMargin)

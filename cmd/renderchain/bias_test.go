@@ -39,6 +39,9 @@ func TestBiasJSON(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, n := range b.Nodes {
+		if n.Internal {
+			continue // in internal_nodes (a transistor's base behind its base resistance)
+		}
 		if v, ok := r.Nodes[n.Name]; !ok || v != n.Volts {
 			t.Errorf("nodes[%s] = %v, %v; want %v", n.Name, v, ok, n.Volts)
 		}

@@ -2,13 +2,14 @@ package main
 
 import (
 	"fmt"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 
 	"renderchain/chains"
 	"renderchain/measure"
 	"renderchain/models"
-	"renderchain/plotting"
+	"renderchain/outputs"
 )
 
 // Flags shared by measure and response.
@@ -55,12 +56,56 @@ func measureCommand() *cli.Command {
 			&cli.DurationFlag{Name: "record", Value: 1e8, Usage: "shortest analysed record (a whole number of cycles)"},
 			jsonFlag,
 			csvFlag,
-			plotFlag,
+			&cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg, and a scope view of each measurement beside it (FILE-scope.png, FILE-scope-01.png …; up to 16)"},
 			workersFlag,
 			quietFlag,
 		},
 		Before: requireFlags("chain"),
 		Action: runMeasure,
+	}
+}
+
+// maxScopeViews bounds the scope views one measure command draws: one
+// file each, so a long sweep would otherwise leave hundreds.
+const maxScopeViews = 16
+
+// saveMeasureFigures writes the report's figure to path and beside it a
+// scope view per measurement (siblingPath), into the files plotFiles
+// declared; it returns them for noteMeasureFigures.
+func saveMeasureFigures(rep *measure.Report, path string, outs map[string]*outputs.File) ([]figureFile, error) {
+	fig, err := rep.Figure()
+	if err != nil {
+		return nil, err
+	}
+	what := "spectrum and harmonics"
+	if rep.Sweep != nil {
+		what = "level and distortion against the swept " + string(rep.Sweep.Kind)
+	}
+	files := []figureFile{{path: path, what: what, fig: fig}}
+	scopes, err := rep.ScopeFigures()
+	if err != nil {
+		return nil, err
+	}
+	for i, f := range scopes {
+		m := rep.Measurements[i]
+		name := strings.Join(m.Settings, " ")
+		if rep.Sweep != nil && rep.Sweep.Kind == measure.LevelSweep {
+			name = strings.TrimSpace(models.FormatValue(m.AmplitudeV, "V") + " peak " + name)
+		}
+		if name == "" {
+			name = "the chain as written"
+		}
+		files = append(files, figureFile{path: siblingPath(path, "scope", i, len(scopes)), what: "scope view, " + name, fig: f})
+	}
+	return files, saveFigures(files, outs)
+}
+
+// noteMeasureFigures names the figures written, or, past maxScopeViews
+// measurements, says on stderr that the scope views were left out.
+func noteMeasureFigures(c *cli.Context, files []figureFile, count int) {
+	noteFigures(c, files, c.Bool("quiet"))
+	if count > maxScopeViews && !c.Bool("quiet") {
+		fmt.Fprintf(c.App.ErrWriter, "note: no scope views: they are drawn for up to %d measurements, this run made %d\n", maxScopeViews, count)
 	}
 }
 
@@ -79,18 +124,10 @@ func runMeasure(c *cli.Context) error {
 	if c.IsSet("sweep-level") && c.IsSet("amplitude") {
 		return usagef("--amplitude and --sweep-level exclude each other: the sweep sets the amplitude")
 	}
-	plotPath := c.String("plot")
-	if plotPath != "" {
-		if _, err := plotting.FormatOf(plotPath); err != nil {
-			return usagef("--plot: %v", err)
-		}
-	}
-	set := newOutputs(c)
-	plot := optionalFile(c, set, "plot")
-	if err := set.Check(); err != nil { // before any work
+	plotPath, err := checkPlotFlag(c)
+	if err != nil {
 		return err
 	}
-	defer set.Abort()
 	freq, err := parseFlag(c, "freq", models.ParseFrequency)
 	if err != nil {
 		return err
@@ -131,6 +168,21 @@ func runMeasure(c *cli.Context) error {
 		MinRecord:       c.Duration("record").Seconds(),
 		Spectrum:        plotPath != "" && sweep == nil,
 	}
+	count := len(variants)
+	if sweep != nil {
+		count *= len(sweep.StepList)
+	}
+	opt.Scope = plotPath != "" && count <= maxScopeViews
+	set := newOutputs(c)
+	scopes := 0
+	if opt.Scope {
+		scopes = count
+	}
+	plots := plotFiles(set, plotPath, "scope", scopes)
+	if err := set.Check(); err != nil { // before any work
+		return err
+	}
+	defer set.Abort()
 	prog, done := progress(c.Bool("quiet"), "measuring")
 	plan := measure.Plan{Variants: variants, Freq: freq, Amplitude: amp, Sweep: sweep, Options: opt, Workers: c.Int("workers")}
 	if prog != nil {
@@ -141,17 +193,17 @@ func runMeasure(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	if plot != nil {
-		fig, err := rep.Figure()
-		if err == nil {
-			err = drawTo(plot, fig)
-		}
-		if err != nil {
-			return fmt.Errorf("writing plot %s: %w", plotPath, err)
+	var figures []figureFile
+	if plotPath != "" {
+		if figures, err = saveMeasureFigures(rep, plotPath, plots); err != nil {
+			return err
 		}
 	}
 	if err := commitOutputs(c, set); err != nil {
 		return err
+	}
+	if plotPath != "" {
+		noteMeasureFigures(c, figures, count)
 	}
 	switch {
 	case c.Bool("json"):

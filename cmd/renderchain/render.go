@@ -3,11 +3,13 @@ package main
 import (
 	"fmt"
 	"io"
+	"math"
 
 	"github.com/urfave/cli/v2"
 
 	"renderchain/engine"
 	"renderchain/render"
+	"renderchain/report"
 )
 
 func renderCommand() *cli.Command {
@@ -61,18 +63,40 @@ func renderCommand() *cli.Command {
 				return err
 			}
 			if !c.Bool("quiet") {
-				printSummary(c.App.ErrWriter, rep)
+				printSummary(c.App.ErrWriter, rep, leastStepDBFS(c.String("format")))
 			}
 			return nil
 		},
 	}
 }
 
-// printSummary writes the short human summary of a render.
-func printSummary(w io.Writer, r *render.Report) {
+// leastStepDBFS is the level of half the least step of a PCM output
+// format, 20·log10(2^−bits) dBFS (−96.3 for 16 bits, −144.5 for 24): a
+// sample under it rounds to 0 in the file. A float format has none (−∞).
+func leastStepDBFS(format string) float64 {
+	switch format {
+	case render.FormatPCM16:
+		return report.DB(math.Ldexp(1, -16))
+	case render.FormatPCM24, "":
+		return report.DB(math.Ldexp(1, -24))
+	}
+	return math.Inf(-1)
+}
+
+// printSummary writes the short human summary of a render. Wet levels
+// under half the output format's least step (floorDBFS) print as under it:
+// such samples are zeros in the file, whatever the solver's residue was.
+func printSummary(w io.Writer, r *render.Report, floorDBFS float64) {
 	fmt.Fprintf(w, "%s → %s (%.1f s, %d ch, %d Hz; %dx oversampled)\n", r.Input.File, r.Output.File, r.Input.Seconds, r.Input.Channels, r.Input.SampleRate, r.Solver.Oversample)
-	fmt.Fprintf(w, "  dry  peak %12s  RMS %12s  crest %8s\n", level(r.Input.PeakDBFS, 2, "dBFS"), level(r.Input.RMSDBFS, 2, "dBFS"), level(r.Input.CrestDB, 2, "dB"))
-	fmt.Fprintf(w, "  wet  peak %12s  RMS %12s  crest %8s  clipped %d\n", level(r.Output.PeakDBFS, 2, "dBFS"), level(r.Output.RMSDBFS, 2, "dBFS"), level(r.Output.CrestDB, 2, "dB"), r.Output.ClippedSamples)
+	fmt.Fprintf(w, "  dry  peak %14s  RMS %14s  crest %8s\n", level(r.Input.PeakDBFS, 2, "dBFS"), level(r.Input.RMSDBFS, 2, "dBFS"), level(r.Input.CrestDB, 2, "dB"))
+	peak, rms, crest := level(r.Output.PeakDBFS, 2, "dBFS"), level(r.Output.RMSDBFS, 2, "dBFS"), level(r.Output.CrestDB, 2, "dB")
+	if float64(r.Output.PeakDBFS) < floorDBFS {
+		peak, crest = report.AtLeast(float64(r.Output.PeakDBFS), floorDBFS, "%.2f")+" dBFS", "—"
+	}
+	if float64(r.Output.RMSDBFS) < floorDBFS {
+		rms = report.AtLeast(float64(r.Output.RMSDBFS), floorDBFS, "%.2f") + " dBFS"
+	}
+	fmt.Fprintf(w, "  wet  peak %14s  RMS %14s  crest %8s  samples past full scale %d\n", peak, rms, crest, r.Output.ClippedSamples)
 	fmt.Fprintf(w, "  solver  mean %.2f / max %d Newton iterations, %d fallbacks, %d not converged; %.1fx realtime\n",
 		r.Solver.MeanIterations, r.Solver.MaxIterations, r.Solver.Fallbacks, r.Solver.NonConverged, r.RealtimeFactor)
 	for _, warn := range r.Warnings {

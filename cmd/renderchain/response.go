@@ -2,13 +2,14 @@ package main
 
 import (
 	"fmt"
+	"math"
 
 	"github.com/urfave/cli/v2"
 
 	"renderchain/chains"
+	"renderchain/dsp/spectrum"
 	"renderchain/measure"
 	"renderchain/models"
-	"renderchain/plotting"
 )
 
 func responseCommand() *cli.Command {
@@ -22,13 +23,15 @@ func responseCommand() *cli.Command {
 			"point. With --swept: an exponential sine sweep at --amplitude is rendered through the\n" +
 			"nonlinear circuit and deconvolved, giving the large-signal linear response (H1) and the\n" +
 			"harmonic responses H2…H<orders>, each against the excitation frequency.\n\n" +
-			"A --set value that is a comma list (tone.tone=0,0.25,0.5) gives one curve per value.",
+			"A --set value that is a comma list (tone.tone=0,0.25,0.5) gives one curve per value. Without\n" +
+			"--freqs or --points the grid has 48 points a decade (146 from 20 Hz to 20 kHz): smooth curves\n" +
+			"at every knob setting, and a phase that --plot can unwrap (drawn without ±180° breaks).",
 		Flags: []cli.Flag{
 			chainFlag,
 			&cli.StringFlag{Name: "freqs", Usage: "frequencies `HZ,HZ,…` (100,1k,10k)"},
 			&cli.StringFlag{Name: "from", Value: "20", Usage: "lowest frequency of the log grid"},
 			&cli.StringFlag{Name: "to", Value: "20k", Usage: "highest frequency of the log grid"},
-			&cli.IntFlag{Name: "points", Value: 61, Usage: "points of the log grid, ends included"},
+			&cli.IntFlag{Name: "points", Usage: "points of the log grid, ends included (default: 48 a decade, 146 from 20 Hz to 20 kHz)"},
 			familySetFlag,
 			probeFlag,
 			&cli.StringFlag{Name: "ref", Usage: "take the response relative to `NODE` instead of the source EMF (small-signal only)"},
@@ -41,6 +44,7 @@ func responseCommand() *cli.Command {
 			jsonFlag,
 			csvFlag,
 			plotFlag,
+			&cli.BoolFlag{Name: "group-delay", Usage: "add a group-delay panel to the --plot figure"},
 			workersFlag,
 			quietFlag,
 		},
@@ -66,14 +70,15 @@ func runResponse(c *cli.Context) error {
 			}
 		}
 	}
-	plotPath := c.String("plot")
-	if plotPath != "" {
-		if _, err := plotting.FormatOf(plotPath); err != nil {
-			return usagef("--plot: %v", err)
-		}
+	plotPath, err := checkPlotFlag(c)
+	if err != nil {
+		return err
+	}
+	if c.Bool("group-delay") && plotPath == "" {
+		return usagef("--group-delay adds a panel to the --plot figure: give --plot FILE.png|svg")
 	}
 	set := newOutputs(c)
-	plot := optionalFile(c, set, "plot")
+	plots := plotFiles(set, plotPath, "", 0)
 	if err := set.Check(); err != nil { // before any work
 		return err
 	}
@@ -113,14 +118,29 @@ func runResponse(c *cli.Context) error {
 			return err
 		}
 	}
-	if plot != nil {
-		if err := drawTo(plot, rep.Figure()); err != nil {
-			return fmt.Errorf("writing plot %s: %w", plotPath, err)
+	var figures []figureFile
+	if plotPath != "" {
+		fig, err := rep.Figure(c.Bool("group-delay"))
+		if err != nil {
+			return err
+		}
+		what := "gain and unwrapped phase"
+		if c.Bool("group-delay") {
+			what += ", group delay"
+		}
+		figures = []figureFile{{path: plotPath, what: what, fig: fig}}
+		if err := saveFigures(figures, plots); err != nil {
+			return err
+		}
+		if sparse(freqs) && !c.Bool("quiet") {
+			fmt.Fprintf(c.App.ErrWriter, "note: the plot's phase is unwrapped from the %d frequencies asked for, some more than a 48th of a decade apart;\n"+
+				"  where the phase turns by more than 180° between two of them the curve is 360° off: leave out --freqs and --points for the dense grid\n", len(freqs))
 		}
 	}
 	if err := commitOutputs(c, set); err != nil {
 		return err
 	}
+	noteFigures(c, figures, c.Bool("quiet"))
 	switch {
 	case c.Bool("json"):
 		return printJSON(c, rep)
@@ -128,6 +148,18 @@ func runResponse(c *cli.Context) error {
 		return rep.WriteCSV(c.App.Writer)
 	}
 	return rep.WriteTable(c.App.Writer)
+}
+
+// sparse tells whether a grid has a step wider than the default grid's
+// (a 48th of a decade), where an unwrapped phase may miss a turn.
+func sparse(freqs []float64) bool {
+	step := math.Pow(10, 1.0/spectrum.PointsPerDecade) * (1 + 1e-9)
+	for i := 1; i < len(freqs); i++ {
+		if freqs[i]/freqs[i-1] > step {
+			return true
+		}
+	}
+	return false
 }
 
 // responseFreqs reads --freqs, or the --from/--to/--points grid.
@@ -148,6 +180,13 @@ func responseFreqs(c *cli.Context) ([]float64, error) {
 	}
 	if !(hi > lo) {
 		return nil, usagef("--from %s --to %s: bounds are reversed or equal", c.String("from"), c.String("to"))
+	}
+	if !c.IsSet("points") {
+		g, err := measure.DefaultGrid(lo, hi)
+		if err != nil {
+			return nil, usagef("--from %s --to %s: %v", c.String("from"), c.String("to"), err)
+		}
+		return g, nil
 	}
 	if n := c.Int("points"); n < 2 || n > 10000 {
 		return nil, usagef("--points %d is outside 2…10000", n)

@@ -8,6 +8,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"renderchain/chains"
+	"renderchain/models"
 )
 
 func templatesCommand() *cli.Command {
@@ -55,14 +56,27 @@ func templatesCommand() *cli.Command {
 
 func partValue(p *chains.Part) string {
 	switch {
-	case p.Kind.Device():
-		s := p.Model
-		for _, k := range []string{"hfe", "is", "n", "br", "icbo"} {
+	case p.Kind.Device() || p.Kind == chains.Transformer || p.Kind == chains.Switch:
+		var s []string
+		if p.Model != "" {
+			s = append(s, p.Model)
+		}
+		for _, k := range chains.ParamNames(p.Kind) {
 			if v, ok := p.Params[k]; ok {
-				s += fmt.Sprintf(" %s=%g", k, v)
+				s = append(s, fmt.Sprintf("%s=%g", k, v))
 			}
 		}
-		return strings.TrimSpace(s)
+		for i, w := range p.Windings {
+			l := models.FormatValue(w.Inductance, "H")
+			if w.Turns > 0 {
+				l = fmt.Sprintf("turns %g", w.Turns)
+			}
+			s = append(s, fmt.Sprintf("w%d %s %s", i+1, l, models.FormatValue(w.Resistance, "Ω")))
+		}
+		if p.Kind == chains.Switch {
+			s = append(s, fmt.Sprintf("positions %s, at %s", strings.Join(p.PositionNames(), "|"), p.Text))
+		}
+		return strings.Join(s, " ")
 	case p.Kind == chains.Pot:
 		return p.Text + " " + p.Taper.String() + " (knob " + p.Knob + ")"
 	}
@@ -71,13 +85,12 @@ func partValue(p *chains.Part) string {
 
 func pins(p *chains.Part) string {
 	var s []string
-	for _, role := range []string{"1", "2", "ccw", "wiper", "cw", "anode", "cathode", "c", "b", "e"} {
-		if n, ok := p.Pins[role]; ok {
-			if role == "1" || role == "2" {
-				s = append(s, n)
-			} else {
-				s = append(s, role+"="+n)
-			}
+	for _, role := range p.PinRoles() {
+		n := p.Pins[role]
+		if role == "1" || role == "2" {
+			s = append(s, n)
+		} else {
+			s = append(s, role+"="+n)
 		}
 	}
 	return strings.Join(s, " ")

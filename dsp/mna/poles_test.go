@@ -68,7 +68,6 @@ func TestPolesOfPassiveNetworks(t *testing.T) {
 // left of it.
 func TestPolesOfCrossCoupledPair(t *testing.T) {
 	const l, c = 10e-3, 10e-9
-	q := models.BJTParams{Is: 1e-14, BetaF: 200, BetaR: 2}
 	for _, tc := range []struct {
 		name     string
 		rp       float64
@@ -78,17 +77,7 @@ func TestPolesOfCrossCoupledPair(t *testing.T) {
 		{"heavy load is stable", 500, false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			n := newNet()
-			n.V("vcc", "v+", "gnd", 9)
-			n.Sig("src", "in", 0)
-			n.R("Rin", "in", "gnd", 1e3)
-			for _, side := range []struct{ c, other string }{{"c1", "c2"}, {"c2", "c1"}} {
-				n.L("L"+side.c, "v+", side.c, l)
-				n.C("C"+side.c, side.c, "gnd", c)
-				n.R("R"+side.c, "v+", side.c, tc.rp)
-				n.Q("Q"+side.c, side.c, side.other, "e", q)
-			}
-			n.R("Rtail", "e", "gnd", 168e3)
+			n := crossCoupledPair(l, c, tc.rp)
 			op, err := mna.SolveDC(n.c, mna.DCOptions{})
 			if err != nil {
 				t.Fatal(err)

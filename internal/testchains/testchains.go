@@ -7,6 +7,10 @@ package testchains
 
 import (
 	"fmt"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strings"
 	"testing"
 
 	"renderchain/chains"
@@ -171,12 +175,13 @@ type Example struct {
 	Circuit *models.Circuit
 }
 
-// Examples parses and builds every example chain (demo, germanium,
-// fuzz-only).
+// Examples parses and builds every example chain (chains.ExampleNames:
+// demo, germanium, fuzz-only and the device examples under
+// chains/examples).
 func Examples(t testing.TB) []Example {
 	t.Helper()
 	var out []Example
-	for _, name := range []string{"demo", "germanium", "fuzz-only"} {
+	for _, name := range chains.ExampleNames() {
 		ch, err := chains.Example(name)
 		if err != nil {
 			t.Fatal(err)
@@ -189,3 +194,73 @@ func Examples(t testing.TB) []Example {
 	}
 	return out
 }
+
+// CascadeLoopFile is the three-stage germanium cascade with an overall
+// feedback path that motorboats, relative to the module's root.
+const CascadeLoopFile = "chains/testdata/ge-cascade-loop.toml"
+
+// Cascade parses the three-stage germanium cascade of CascadeLoopFile:
+// with its overall feedback path (RF, CF) when loop is set, else the same
+// cascade without those two parts (three inverting stages in a row, each
+// with its own collector-to-base feedback: stable).
+func Cascade(t testing.TB, loop bool) *chains.Chain {
+	t.Helper()
+	_, here, _, _ := runtime.Caller(0)
+	path := filepath.Join(filepath.Dir(here), "..", "..", CascadeLoopFile)
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := string(b)
+	if !loop {
+		var keep []string
+		for _, line := range strings.Split(text, "\n") {
+			if !strings.Contains(line, `ref = "RF"`) && !strings.Contains(line, `ref = "CF"`) {
+				keep = append(keep, line)
+			}
+		}
+		if len(keep) != strings.Count(text, "\n")+1-2 {
+			t.Fatal("the cascade's feedback parts RF and CF were not found")
+		}
+		text = strings.Join(keep, "\n")
+	}
+	ch, err := chains.Parse(filepath.Base(path), text)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return ch
+}
+
+// Latch is a bistable pair: two NPN common-emitter stages, each
+// collector feeding the other's base through a divider (100 kΩ over
+// 47 kΩ) with 1 nF from each base to ground. The symmetric idle point the
+// DC solve finds has a loop gain far above one, so it is unstable with a
+// real pole (no phase shift around a resistive loop): the pair snaps to
+// one side and stays there. Its output is AC-coupled from Q1's collector,
+// so the latch does not show at the output once the coupling capacitor
+// has charged.
+const Latch = `name = "bistable pair"
+supply = "9V"
+[input]
+peak = "100mV"
+[output]
+load = "1M"
+full_scale = "1V"
+[[stage]]
+id = "ff"
+parts = [
+  { ref = "CIN", kind = "capacitor", value = "100n", pins = ["in", "x"] },
+  { ref = "RIN", kind = "resistor",  value = "10k",  pins = ["x", "b1"] },
+  { ref = "Q1",  kind = "npn", hfe = 200, pins = { c = "c1", b = "b1", e = "gnd" } },
+  { ref = "Q2",  kind = "npn", hfe = 200, pins = { c = "c2", b = "b2", e = "gnd" } },
+  { ref = "RC1", kind = "resistor",  value = "10k",  pins = ["v+", "c1"] },
+  { ref = "RC2", kind = "resistor",  value = "10k",  pins = ["v+", "c2"] },
+  { ref = "RB1", kind = "resistor",  value = "100k", pins = ["c2", "b1"] },
+  { ref = "RB2", kind = "resistor",  value = "100k", pins = ["c1", "b2"] },
+  { ref = "RD1", kind = "resistor",  value = "47k",  pins = ["b1", "gnd"] },
+  { ref = "RD2", kind = "resistor",  value = "47k",  pins = ["b2", "gnd"] },
+  { ref = "CB1", kind = "capacitor", value = "1n",   pins = ["b1", "gnd"] },
+  { ref = "CB2", kind = "capacitor", value = "1n",   pins = ["b2", "gnd"] },
+  { ref = "COUT", kind = "capacitor", value = "100n", pins = ["c1", "out"] },
+]
+`

@@ -1,0 +1,202 @@
+package chains
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"renderchain/dsp/mna"
+	"renderchain/models"
+)
+
+// Bounds of the operating-point lint, each a figure of the trade.
+const (
+	// MaxIdleCurrent is the supply current at idle above which the lint
+	// warns: a pedal draws a few milliamperes to a few tens of
+	// milliamperes (common practice; a 9 V cell of about 500 mAh would
+	// last under five hours at this bound).
+	MaxIdleCurrent = 0.1
+	// ConductionCurrent is the collector current, A, below which a
+	// transistor counts as cut off for the polarity check: the same
+	// 1 µA as the bias package's region rule.
+	ConductionCurrent = 1e-6
+)
+
+// Typical power ratings, W, of the parts a pedal is built from, for the
+// dissipation warning (common practice, from memory of typical small-part
+// ratings; the real part's datasheet rating wins).
+var (
+	// ResistorRating: the ¼ W film resistor of most pedal builds.
+	ResistorRating = 0.25
+	// PotRating: a small board-mount pot or trimmer, 0.1 W.
+	PotRating = 0.1
+)
+
+// deviceRating is the typical rating of a device part by its preset: a
+// small-signal silicon transistor in a small plastic package about 0.3 W,
+// a germanium one in a small metal can about 0.1 W, a glass small-signal
+// or zener diode 0.5 W, a germanium point-contact diode 0.05 W, an
+// indicator LED 0.1 W (from memory of typical datasheet figures of each
+// family, not any one part).
+func deviceRating(p *Part) (float64, string) {
+	switch {
+	case p.Kind.Transistor() && strings.HasPrefix(p.Model, "ge-"):
+		return 0.1, "a small germanium transistor"
+	case p.Kind.Transistor():
+		return 0.3, "a small-signal silicon transistor"
+	case p.Model == "ge-signal":
+		return 0.05, "a germanium point-contact diode"
+	case strings.HasPrefix(p.Model, "led-"):
+		return 0.1, "an indicator LED"
+	case strings.HasPrefix(p.Model, "zener-"):
+		return 0.5, "a small zener diode"
+	}
+	return 0.5, "a small-signal diode"
+}
+
+// CheckOperatingPoint lints what only the DC operating point shows and
+// returns the findings, all warnings: the idle supply current above
+// MaxIdleCurrent (naming the part that carries the most), a part
+// dissipating beyond its typical rating, and a transistor whose polarity
+// disagrees with the supply's sign and is, at idle, cut off or working in
+// reverse ("this build has a positive-ground supply (−9 V) but Q1 is
+// NPN …"). A transistor of the other polarity that works (a complementary
+// stage) is not flagged. It also appends them to f.Findings.
+//
+// The one caller is engine.Prepare, right after the DC solve, so bias and
+// every command that renders or measures see the same findings.
+func (f *Flat) CheckOperatingPoint(op *mna.OperatingPoint) Findings {
+	ch, c := f.Chain, f.Circuit
+	var out Findings
+	// Part power, with the parts' pieces (pot sections, a diode's series
+	// resistance) summed into their part.
+	type load struct {
+		st    *Stage
+		p     *Part
+		watts float64
+		amps  float64 // largest current through any piece
+	}
+	var loads []*load
+	byRef := map[string]*load{}
+	at := func(ref string) *load {
+		st, p := ch.partOf(ref)
+		if p == nil {
+			return nil
+		}
+		key := st.ID + "." + p.Ref
+		if l, ok := byRef[key]; ok {
+			return l
+		}
+		l := &load{st: st, p: p}
+		byRef[key] = l
+		loads = append(loads, l)
+		return l
+	}
+	for i, e := range c.Elements {
+		if e.Kind != models.ResistorKind {
+			continue
+		}
+		if l := at(e.Ref); l != nil {
+			v := op.ElementVoltage(i)
+			l.watts += v * v / e.Value
+			l.amps = math.Max(l.amps, math.Abs(v)/e.Value)
+		}
+	}
+	for _, d := range op.Devices {
+		e := c.Elements[d.Element]
+		l := at(e.Ref)
+		if l == nil {
+			continue
+		}
+		switch e.Kind {
+		case models.BJTKind:
+			l.watts += d.V[0]*d.I[0] + d.V[1]*d.I[1] // Vbe·Ib + Vce·Ic
+			l.amps = math.Max(l.amps, math.Abs(d.I[1]))
+			if fd, ok := f.polarity(l.st, l.p, d); ok {
+				out = append(out, fd)
+			}
+		case models.DiodeKind:
+			l.watts += d.V[0] * d.I[0] // the junction; its series resistance is summed above
+			l.amps = math.Max(l.amps, math.Abs(d.I[0]))
+		}
+	}
+	// The supply current.
+	for i, e := range c.Elements {
+		if e.Ref != "supply" || e.Kind != models.VoltageSourceKind {
+			continue
+		}
+		amps := math.Abs(op.Branch[i])
+		if amps <= MaxIdleCurrent {
+			break
+		}
+		var top *load
+		for _, l := range loads {
+			if top == nil || l.amps > top.amps {
+				top = l
+			}
+		}
+		msg := fmt.Sprintf("the supply delivers %s at idle, above the %s bound for a pedal (which draws a few mA to a few tens of mA, common practice): look for a short or a wrong value between v+ and gnd",
+			models.FormatValue(amps, "A"), models.FormatValue(MaxIdleCurrent, "A"))
+		if top != nil {
+			msg += fmt.Sprintf("; the most current, %s, flows through %s.%s", models.FormatValue(top.amps, "A"), top.st.ID, top.p.Ref)
+		}
+		line := 0
+		if ch.loc != nil {
+			line = ch.loc.findKey("", "supply")
+		}
+		out = append(out, Finding{File: ch.File, Line: line, Where: "supply", Msg: msg, Severity: Warning})
+	}
+	// Dissipation against typical ratings.
+	for _, l := range loads {
+		rating, what := 0.0, ""
+		switch {
+		case l.p.Kind == Resistor:
+			if l.st == ch.Power && (l.p.Pins["1"] == EMF || l.p.Pins["2"] == EMF) {
+				continue // the source's own resistance, not a part
+			}
+			rating, what = ResistorRating, "a common ¼ W resistor"
+		case l.p.Kind == Pot:
+			rating, what = PotRating, "a small pot or trimmer"
+		case l.p.Kind.Device():
+			rating, what = deviceRating(l.p)
+		default:
+			continue
+		}
+		if l.watts > rating {
+			out = append(out, ch.partFinding(Warning, l.st, l.p, "dissipates %s at idle, above the %s rating of %s (common practice): it would run hot or fail; check its value and pins, or use a part rated for it",
+				models.FormatValue(l.watts, "W"), models.FormatValue(rating, "W"), what))
+		}
+	}
+	f.Findings = append(f.Findings, out...)
+	return out
+}
+
+// polarity is the warning for a transistor whose polarity disagrees with
+// the supply's sign and that does not work at idle.
+func (f *Flat) polarity(st *Stage, p *Part, d mna.DeviceState) (Finding, bool) {
+	ch := f.Chain
+	npn := p.Kind == NPN
+	if npn == (ch.Supply > 0) || ch.Supply == 0 {
+		return Finding{}, false
+	}
+	s := 1.0
+	if !npn {
+		s = -1
+	}
+	vce, ic := d.V[1], d.I[1]
+	state := ""
+	switch {
+	case math.Abs(ic) < ConductionCurrent:
+		state = "is cut off at idle (Ic " + models.FormatValue(ic, "A") + ")"
+	case s*vce < 0 || s*ic < 0:
+		state = "works in reverse at idle (Vce " + models.FormatValue(vce, "V") + ": collector and emitter swapped in effect)"
+	default:
+		return Finding{}, false
+	}
+	ground, kind, other := "positive-ground", "NPN", "a pnp"
+	if !npn {
+		ground, kind, other = "negative-ground", "PNP", "an npn"
+	}
+	return ch.partFinding(Warning, st, p, "this build has a %s supply (%s) but %s is %s and %s: for a build of %ss write supply = \"%gV\", or make %s %s",
+		ground, models.FormatValue(ch.Supply, "V"), p.Ref, kind, state, kind, -ch.Supply, p.Ref, other), true
+}
