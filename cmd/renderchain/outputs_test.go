@@ -236,6 +236,11 @@ func TestEveryCommandChecksItsOutputs(t *testing.T) {
 	src, _ := os.ReadFile("../../chains/fuzz-only.toml")
 	os.WriteFile(chain, src, 0o644)
 	dry := abDry(t, dir)
+	sibling := filepath.Join(dir, "p-scope.png") // the scope view measure draws beside --plot p.png
+	os.WriteFile(sibling, src, 0o644)
+	wavPNG := filepath.Join(dir, "take.png") // a WAV under a picture's name
+	b, _ := os.ReadFile(dry)
+	os.WriteFile(wavPNG, b, 0o644)
 	before := snapshot(t, dir)
 	cases := []struct {
 		name  string
@@ -245,6 +250,8 @@ func TestEveryCommandChecksItsOutputs(t *testing.T) {
 	}{
 		{"measure --plot", []string{"measure", "--chain", chain, "--plot", chain}, exitUsage, []string{"--plot", "--chain"}},
 		{"response --plot", []string{"response", "--chain", chain, "--plot", chain}, exitUsage, []string{"--plot", "--chain"}},
+		{"measure --plot's scope view", []string{"measure", "--chain", sibling, "--plot", filepath.Join(dir, "p.png")}, exitUsage, []string{"--plot", "p-scope.png", "--chain"}},
+		{"analyze --plot", []string{"analyze", wavPNG, "--plot", wavPNG}, exitUsage, []string{"--plot", "same file as an input"}},
 		{"spread --trials-csv", []string{"spread", "--chain", chain, "--trials", "2", "--trials-csv", chain}, exitUsage, []string{"--trials-csv", "--chain"}},
 		{"demo --outdir a file", []string{"demo", "--outdir", chain, "--force"}, exitUsage, []string{"--outdir", "is not a folder"}},
 		{"ab --key", []string{"ab", "--chain", chain, "--in", dry, "--outdir", filepath.Join(dir, "set"), "--blind", "--seed", "1", "--key", chain, "--force", "--segment", "0"}, exitUsage, []string{"--key", "--chain"}},
