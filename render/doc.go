@@ -3,9 +3,12 @@
 // oversampled, delay-compensated), writes the wet file in blocks with
 // constant memory, and reports levels, clipping, solver statistics,
 // realtime factor and a third-octave comparison of dry and wet; and it
-// makes the demo set. Output is written to a temporary file and renamed on
-// success; on any error or cancellation nothing is left under the output
-// name and the input is never written over.
+// makes the demo set. Outputs are files of an outputs.Set (Render writes
+// into one the caller declared with its other outputs; RenderFile and Demo
+// make their own): checked before any work, written beside the target and
+// put in place on success; on any error or cancellation nothing is left
+// under the output name and the input is never written over. A character
+// device or FIFO target is written in place as a WAV stream.
 //
 // Levels: a dry sample of 1.0 (digital full scale) is Chain.InputPeak volts
 // at the chain's source; an output of Chain.FullScale volts is written as
