@@ -1,6 +1,8 @@
 package engine
 
 import (
+	"context"
+	"fmt"
 	"math"
 	"testing"
 
@@ -90,5 +92,46 @@ func BenchmarkSettleDetector(b *testing.B) {
 	b.SetBytes(int64(8 * len(w)))
 	for i := 0; i < b.N; i++ {
 		d.next(w)
+	}
+}
+
+// BenchmarkLongMono renders 60 s of the demo's synthesized phrase (six
+// takes, new seeds) through chains/demo.toml at its automatic factor
+// (ChooseOversample at 48 kHz), serially and cut into segments on every
+// core (StreamWith, PlanSegments), and reports ns per input sample, the
+// realtime factor of the whole stream, the segments and the warm-up. The
+// speed-up on n cores is the serial ns/sample over the segmented one. Run
+// it with
+//
+//	go test -run XXX -bench LongMono -benchtime 1x ./engine/
+func BenchmarkLongMono(b *testing.B) {
+	ch, err := chains.Load("../chains/demo.toml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	p, err := Prepare(ch, 0)
+	if err != nil {
+		b.Fatal(err)
+	}
+	c, err := p.ChooseOversample(context.Background(), 48000, 60)
+	if err != nil {
+		b.Fatal(err)
+	}
+	x := phraseSeconds(b, 60)
+	for _, mode := range []struct {
+		name    string
+		workers int
+	}{{"serial", 1}, {"segments", 0}} {
+		b.Run(fmt.Sprintf("x%d/%s", c.Factor, mode.name), func(b *testing.B) {
+			var st StreamInfo
+			for i := 0; i < b.N; i++ {
+				_, st = renderStream(b, p, x, c.Factor, mode.workers, nil)
+			}
+			ns := float64(b.Elapsed().Nanoseconds()) / float64(b.N*len(x))
+			b.ReportMetric(ns, "ns/sample")
+			b.ReportMetric(1e9/ns/48000, "x-realtime")
+			b.ReportMetric(float64(st.Plan.Segments), "segments")
+			b.ReportMetric(st.Plan.WarmupSeconds, "warmup-s")
+		})
 	}
 }

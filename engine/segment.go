@@ -37,14 +37,17 @@ const (
 )
 
 // SegmentPlan is how a mono stream is cut for rendering on several cores:
-// Segments pieces of about Length frames, each but the first rendered from
+// Segments pieces, the first First frames long and the others Length
+// (the last one takes what is left), each but the first rendered from
 // Warmup frames before its start by a channel fresh at the operating point
 // (the resampling filters empty), whose output over those frames is
-// dropped. Segments 1 is a serial render, Reason saying why.
+// dropped. The first piece is longer by the warm-up the others spend, so
+// that every piece costs about the same. Segments 1 is a serial render,
+// Reason saying why.
 type SegmentPlan struct {
-	Segments int
-	Length   int
-	Warmup   int
+	Segments      int
+	First, Length int
+	Warmup        int
 	// WarmupSeconds is Warmup at the base rate.
 	WarmupSeconds float64
 	Reason        string
@@ -58,7 +61,7 @@ type SegmentPlan struct {
 // circuit with a mode that does not decay (wdf.ErrNoDecay), a single
 // worker, or a file shorter than MinSegmentWarmups warm-ups per segment.
 func (p *Prepared) PlanSegments(fs float64, factor int, frames int64, workers int) (SegmentPlan, error) {
-	sp := SegmentPlan{Segments: 1, Length: int(min(frames, math.MaxInt32))}
+	sp := SegmentPlan{Segments: 1, First: int(min(frames, math.MaxInt32))}
 	workers = parallel.Workers(workers)
 	if workers < 2 {
 		sp.Reason = "one core"
@@ -85,9 +88,9 @@ func (p *Prepared) PlanSegments(fs float64, factor int, frames int64, workers in
 	sp.Warmup = int(w)
 	rounds := int((frames + int64(workers)*MaxSegment - 1) / (int64(workers) * MaxSegment))
 	for s := workers * rounds; s >= 2; s-- {
-		length := int((frames + int64(s) - 1) / int64(s))
+		length := int((frames - int64(sp.Warmup) + int64(s) - 1) / int64(s))
 		if length >= MinSegmentWarmups*sp.Warmup && length >= MaxBlock {
-			sp.Segments, sp.Length = s, length
+			sp.Segments, sp.First, sp.Length = s, length+sp.Warmup, length
 			return sp, nil
 		}
 	}
@@ -188,10 +191,15 @@ func (p *Prepared) segmented(ctx context.Context, src Source, fs float64, factor
 	}
 	var segs []*segment
 	for k := 0; k < plan.Segments; k++ {
-		s := &segment{index: k, start: int64(k) * int64(plan.Length), done: make(chan struct{})}
-		s.end = min(s.start+int64(plan.Length), total)
+		s := &segment{index: k, done: make(chan struct{})}
+		s.end = int64(plan.First)
 		if k > 0 {
+			s.start = segs[k-1].end
+			s.end = s.start + int64(plan.Length)
 			s.warmup = min(int64(plan.Warmup), s.start)
+		}
+		if k == plan.Segments-1 || s.end > total {
+			s.end = total
 		}
 		segs = append(segs, s)
 	}

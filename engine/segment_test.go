@@ -99,7 +99,7 @@ func TestSegmentsMatchSerial(t *testing.T) {
 	if sst.Plan.Segments != 1 {
 		t.Fatalf("one worker: %d segments", sst.Plan.Segments)
 	}
-	plan := SegmentPlan{Segments: 4, Length: len(x) / 4, Warmup: full.Warmup}
+	plan := SegmentPlan{Segments: 4, First: len(x) / 4, Length: len(x) / 4, Warmup: full.Warmup}
 	seg, st := renderStream(t, p, x, 4, 2, &plan)
 	worst, at := 0.0, 0
 	for i := range serial {
@@ -121,5 +121,56 @@ func TestSegmentsMatchSerial(t *testing.T) {
 	}
 	if st.Stats.NonConverged != 0 {
 		t.Errorf("%d samples did not converge", st.Stats.NonConverged)
+	}
+}
+
+// The plan's rules: one worker or a file under eight warm-ups a piece is
+// serial; otherwise as many pieces as workers, more (a multiple of the
+// workers) once a piece would pass MaxSegment, the first longer by one
+// warm-up, the pieces covering the file exactly.
+func TestPlanSegments(t *testing.T) {
+	ch, err := chains.Load("../chains/demo.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Prepare(ch, 4)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ref, err := p.PlanSegments(48000, 4, 1<<30, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := int64(ref.Warmup)
+	for _, tc := range []struct {
+		frames   int64
+		workers  int
+		segments int
+	}{
+		{60 * 48000, 1, 1},
+		{2 * MinSegmentWarmups * w, 2, 1},     // the warm-up takes the first piece's margin
+		{2*MinSegmentWarmups*w + w + 2, 2, 2}, // just enough for two
+		{60 * 48000, 2, 2},                    // a minute: one piece a core
+		{3 * MaxSegment, 2, 4},                // past MaxSegment a piece: two rounds
+		{60 * 48000, 3, 3},                    // three cores
+	} {
+		sp, err := p.PlanSegments(48000, 4, tc.frames, tc.workers)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if sp.Segments != tc.segments {
+			t.Errorf("%d frames on %d workers: %d segments (%s), want %d", tc.frames, tc.workers, sp.Segments, sp.Reason, tc.segments)
+			continue
+		}
+		if sp.Segments == 1 {
+			if sp.Reason == "" {
+				t.Errorf("%d frames on %d workers: serial without a reason", tc.frames, tc.workers)
+			}
+			continue
+		}
+		last := tc.frames - int64(sp.First) - int64(sp.Segments-2)*int64(sp.Length)
+		if sp.First != sp.Length+sp.Warmup || last <= 0 || last > int64(sp.Length) || sp.Length > MaxSegment {
+			t.Errorf("%d frames: first %d, length %d, last %d, warm-up %d", tc.frames, sp.First, sp.Length, last, sp.Warmup)
+		}
 	}
 }
