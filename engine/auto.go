@@ -9,6 +9,7 @@ import (
 	"renderchain/dsp/mna"
 	"renderchain/dsp/resample"
 	"renderchain/dsp/spectrum"
+	"renderchain/report"
 )
 
 // The automatic oversampling factor of a render (ChooseOversample).
@@ -101,11 +102,12 @@ type FactorChoice struct {
 // signal-to-alias ratio of the probe tones it rendered (a trial stops at
 // the first tone under the target) and whether every window settled.
 type AliasTrial struct {
-	Factor  int     `json:"oversample"`
-	DB      float64 `json:"worst_db"`
-	Tones   int     `json:"tones"`
-	Settled bool    `json:"settled"`
-	Pass    bool    `json:"pass"`
+	Factor int `json:"oversample"`
+	// DB is null in JSON for an output without any non-harmonic line.
+	DB      report.Level `json:"worst_db"`
+	Tones   int          `json:"tones"`
+	Settled bool         `json:"settled"`
+	Pass    bool         `json:"pass"`
 	// Seconds is the audio the trial rendered, at the base rate.
 	Seconds float64 `json:"seconds"`
 }
@@ -205,12 +207,12 @@ func (p *Prepared) ChooseOversample(ctx context.Context, fs, budget float64) (*F
 		for len(c.Trials) < MaxTrials && lo.Factor < resample.MaxFactor {
 			slope := searchSlope
 			if below != nil {
-				slope = (lo.DB - below.DB) / math.Log2(float64(lo.Factor)/float64(below.Factor))
+				slope = float64(lo.DB-below.DB) / math.Log2(float64(lo.Factor)/float64(below.Factor))
 				slope = min(max(slope, minSlope), maxSlope)
 			}
 			next := resample.MaxFactor
-			if len(c.Trials) < MaxTrials-1 && !math.IsNaN(lo.DB) && !math.IsInf(lo.DB, 0) {
-				next = int(math.Ceil(float64(lo.Factor) * math.Pow(2, (AliasTarget-lo.DB)/slope)))
+			if len(c.Trials) < MaxTrials-1 && report.Finite(float64(lo.DB)) {
+				next = int(math.Ceil(float64(lo.Factor) * math.Pow(2, (AliasTarget-float64(lo.DB))/slope)))
 			}
 			next = min(max(next, lo.Factor+1), resample.MaxFactor)
 			t, err := trial(next)
@@ -237,21 +239,21 @@ func (p *Prepared) ChooseOversample(ctx context.Context, fs, budget float64) (*F
 		}
 		if best == 0 {
 			worst := c.Trials[len(c.Trials)-1]
-			c.AliasDB = worst.DB
+			c.AliasDB = float64(worst.DB)
 			c.Reason = fmt.Sprintf("automatic: %d×, the highest factor tried; a probe tone still came out %.1f dB over its aliases there, short of the %g dB target",
-				worst.Factor, worst.DB, AliasTarget)
-			c.Warning = fmt.Sprintf("aliasing: at %d× a %s probe tone at %.1f of full scale keeps aliases only %.1f dB under it (target %g dB)",
-				worst.Factor, hzText(probeHz(fs, 0)), AliasProbeLevel, worst.DB, AliasTarget)
-			if first := c.Trials[0]; worst.DB-first.DB < minSlope {
+				worst.Factor, float64(worst.DB), AliasTarget)
+			c.Warning = fmt.Sprintf("aliasing: at %d×, the highest factor, a probe tone near 1.3 kHz at %.1f of full scale keeps its aliases only %.1f dB under it (target %g dB)",
+				worst.Factor, AliasProbeLevel, float64(worst.DB), AliasTarget)
+			if first := c.Trials[0]; float64(worst.DB-first.DB) < minSlope {
 				c.Warning += "; the non-harmonic output hardly falls with the factor, so it may not be aliasing at all (a sub-harmonic or an oscillation the signal sets off)"
 			}
 			return finish(worst.Factor)
 		}
 	}
-	c.AliasDB = bestTrial.DB
+	c.AliasDB = float64(bestTrial.DB)
 	tried := make([]string, len(c.Trials))
 	for i, t := range c.Trials {
-		tried[i] = fmt.Sprintf("%d× %s", t.Factor, dbText(t.DB))
+		tried[i] = fmt.Sprintf("%d× %s", t.Factor, dbText(float64(t.DB)))
 	}
 	c.Reason = fmt.Sprintf("automatic: the lowest factor tried at which %d probe tones near 1.3 kHz at %.1f of full scale keep their aliases %g dB down (%s)",
 		probeTones, AliasProbeLevel, AliasTarget, strings.Join(tried, ", "))
@@ -259,7 +261,7 @@ func (p *Prepared) ChooseOversample(ctx context.Context, fs, budget float64) (*F
 		c.Reason += fmt.Sprintf("; %d× is also the floor the small-signal frequency warping sets", floor)
 	}
 	if !bestTrial.Settled {
-		c.Warning = fmt.Sprintf("the alias probe at %d× did not settle: its figure (%s) may be off by a few dB", best, dbText(bestTrial.DB))
+		c.Warning = fmt.Sprintf("the alias probe at %d× did not settle: its figure (%s) may be off by a few dB", best, dbText(float64(bestTrial.DB)))
 	}
 	return finish(best)
 }
@@ -367,7 +369,7 @@ func gcd(a, b int) int {
 // until two agree (probeAgree, probeClear) or its maximum is reached,
 // when the lower of the last two counts and the trial is unsettled.
 func (p *Prepared) aliasProbe(ctx context.Context, fs float64, factor int) (AliasTrial, error) {
-	tr := AliasTrial{Factor: factor, DB: math.Inf(1), Settled: true}
+	tr := AliasTrial{Factor: factor, DB: report.Level(math.Inf(1)), Settled: true}
 	ch, err := p.channelAt(fs, p.Circuit.Output, factor)
 	if err != nil {
 		return tr, err
@@ -432,7 +434,7 @@ func (p *Prepared) aliasProbe(ctx context.Context, fs float64, factor int) (Alia
 				tr.Settled = false
 			}
 			tr.Tones++
-			tr.DB = math.Min(tr.DB, db)
+			tr.DB = report.Level(math.Min(float64(tr.DB), db))
 			if db < AliasTarget || tr.Tones == len(cycles) {
 				tr.Pass = tr.DB >= AliasTarget
 				tr.Seconds = float64(tin) / fs

@@ -30,10 +30,10 @@ const (
 	// under eight warm-ups long would spend more than an eighth of its
 	// work on a warm-up it throws away, so the render stays serial.
 	MinSegmentWarmups = 8
-	// MaxSegment bounds a segment's frames (16 MiB of samples): a long
+	// MaxSegment bounds a segment's frames (8 MiB of samples): a long
 	// file is cut into more segments, a multiple of the workers, so that
-	// memory stays bounded whatever its length.
-	MaxSegment = 1 << 21
+	// memory stays bounded whatever its length (StreamWith).
+	MaxSegment = 1 << 20
 )
 
 // SegmentPlan is how a mono stream is cut for rendering on several cores:
@@ -122,8 +122,10 @@ type StreamOptions struct {
 // known length a segmented render on several cores (PlanSegments). The
 // segments' outputs are joined in order; each differs from the serial
 // render's by what the circuit still remembers of its start after the
-// warm-up (within 1e-7 of full scale on the demo and test chains). Memory
-// is bounded by twice the workers' segments.
+// warm-up (within 1e-7 of full scale on the demo and test chains). A
+// serial stream's memory is constant; a segmented one holds at most
+// 2·workers + 2 segment buffers (8 MiB each at most), reused, whatever
+// the stream's length.
 func (p *Prepared) StreamWith(ctx context.Context, src Source, fs float64, nc int, opt StreamOptions) (StreamInfo, error) {
 	factor := opt.Oversample
 	if factor == 0 {
@@ -203,6 +205,17 @@ func (p *Prepared) segmented(ctx context.Context, src Source, fs float64, factor
 		}
 		segs = append(segs, s)
 	}
+	// Segment buffers are reused: at most 2·workers + 2 are ever made.
+	size := int(max(int64(plan.First), int64(plan.Length)+int64(plan.Warmup)) + lookahead)
+	free := make([][]float64, 0, 2*cap(sem)+2)
+	newBuf := func(n int64) []float64 {
+		if k := len(free); k > 0 && int64(cap(free[k-1])) >= n {
+			b := free[k-1]
+			free = free[:k-1]
+			return b[:n]
+		}
+		return make([]float64, n, max(n, int64(size)))
+	}
 	emitted := 0
 	emit := func(s *segment) error {
 		<-s.done
@@ -218,6 +231,7 @@ func (p *Prepared) segmented(ctx context.Context, src Source, fs float64, factor
 			out = out[n:]
 		}
 		st.Stats.Add(s.stats)
+		free = append(free, s.buf)
 		s.buf = nil
 		emitted++
 		return nil
@@ -273,7 +287,7 @@ func (p *Prepared) segmented(ctx context.Context, src Source, fs float64, factor
 				break
 			}
 			if s.buf == nil {
-				s.buf = make([]float64, hi-lo)
+				s.buf = newBuf(hi - lo)
 			}
 			if s.buf != nil {
 				a, b := max(pos, lo), min(pos+int64(n), hi)

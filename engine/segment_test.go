@@ -4,6 +4,7 @@ import (
 	"context"
 	"io"
 	"math"
+	"runtime"
 	"testing"
 
 	"renderchain/chains"
@@ -172,5 +173,51 @@ func TestPlanSegments(t *testing.T) {
 		if sp.First != sp.Length+sp.Warmup || last <= 0 || last > int64(sp.Length) || sp.Length > MaxSegment {
 			t.Errorf("%d frames: first %d, length %d, last %d, warm-up %d", tc.frames, sp.First, sp.Length, last, sp.Warmup)
 		}
+	}
+}
+
+// toneSource generates a sine of n frames without holding it.
+type toneSource struct{ i, n int }
+
+func (s *toneSource) Read(dst []float64) (int, error) {
+	k := min(len(dst), s.n-s.i)
+	if k <= 0 {
+		return 0, io.EOF
+	}
+	for j := range dst[:k] {
+		dst[j] = 0.5 * math.Sin(2*math.Pi*440*float64(s.i+j)/48000)
+	}
+	s.i += k
+	return k, nil
+}
+
+// A segmented stream's memory is bounded whatever its length: ten
+// segments of MaxSegment frames on two workers allocate at most the
+// 2·workers + 2 reused segment buffers (8 bytes a frame) and 1 MiB for
+// the channels and blocks, not ten buffers.
+func TestSegmentMemoryIsBounded(t *testing.T) {
+	if testing.Short() {
+		t.Skip("streams 10.5 M frames")
+	}
+	p := engine(t, rcChain, 1)
+	frames := 10 * MaxSegment
+	var before, after runtime.MemStats
+	runtime.GC()
+	runtime.ReadMemStats(&before)
+	out := 0
+	st, err := p.StreamWith(context.Background(), &toneSource{n: frames}, 48000, 1, StreamOptions{Frames: int64(frames), Workers: 2,
+		Sink: func(b []float64) error { out += len(b); return nil }})
+	runtime.ReadMemStats(&after)
+	if err != nil {
+		t.Fatal(err)
+	}
+	alloc := after.TotalAlloc - before.TotalAlloc
+	bound := uint64(2*2+2)*uint64(st.Plan.First+st.Plan.Warmup+64)*8 + 1<<20
+	t.Logf("%d segments of %d frames: %d MiB allocated, bound %d MiB", st.Plan.Segments, st.Plan.Length, alloc>>20, bound>>20)
+	if st.Plan.Segments != 10 || out != frames {
+		t.Fatalf("%d segments, %d frames out of %d", st.Plan.Segments, out, frames)
+	}
+	if alloc > bound {
+		t.Errorf("allocated %d B, bound %d B", alloc, bound)
 	}
 }

@@ -79,7 +79,8 @@ func Demo(ctx context.Context, dir string, workers int) ([]DemoTake, error) {
 			return fmt.Errorf("demo %s: %w", j.take.Name, err)
 		}
 		j.take.File = j.take.Name + ".wav"
-		rep, err := RenderFile(ctx, eng, dry, filepath.Join(dir, j.take.File), FileOptions{})
+		// The takes share the pool: each renders on one core.
+		rep, err := RenderFile(ctx, eng, dry, filepath.Join(dir, j.take.File), FileOptions{Workers: 1})
 		if err != nil {
 			return fmt.Errorf("demo %s: %w", j.take.Name, err)
 		}

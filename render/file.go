@@ -41,6 +41,10 @@ func OutputFormat(name string, rate, channels int) (wavio.Format, error) {
 // FileOptions tune RenderFile.
 type FileOptions struct {
 	Format string // pcm24 (default), pcm16, float32
+	// Workers bounds the cores a mono render is cut across
+	// (engine.PlanSegments): 0 one per core, 1 serial. A caller that runs
+	// several renders at once on a pool passes 1.
+	Workers int
 	// Progress, if set, is called now and then with frames done and total.
 	Progress func(done, total int64)
 }
@@ -77,8 +81,14 @@ func CheckInput(path string) (*wavio.File, error) {
 
 // RenderFile renders the WAV file in through the prepared chain into the
 // WAV file out (written under a temporary name and renamed on success; on
-// any error or cancellation nothing is left at out). Memory stays constant
+// any error or cancellation nothing is left at out). Memory stays bounded
 // whatever the file's length.
+//
+// The oversampling factor is the prepared chain's when the caller or the
+// chain named one, else chosen for this chain at the file's rate
+// (engine.ChooseOversample); the report says which and why. A mono file
+// long enough is cut into segments rendered on several cores
+// (engine.StreamWith).
 func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt FileOptions) (*Report, error) {
 	if same, err := wavio.SameFile(in, out); err == nil && same {
 		return nil, models.Fieldf("output", out, "is the input file: refusing to write over it")
@@ -112,6 +122,14 @@ func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt Fil
 		return nil, err
 	}
 	start := time.Now()
+	choice, err := p.ChooseOversample(ctx, float64(f.SampleRate), float64(r.Frames())/float64(f.SampleRate)*float64(f.Channels))
+	if err != nil {
+		if ctx.Err() != nil {
+			return nil, fmt.Errorf("render interrupted: no output written (%w)", ctx.Err())
+		}
+		return nil, err
+	}
+	rep.setFactor(choice, float64(f.SampleRate), time.Since(start))
 	lastProgress := time.Now()
 	prog := func(done int64) {
 		if opt.Progress != nil && time.Since(lastProgress) > 100*time.Millisecond {
@@ -119,10 +137,11 @@ func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt Fil
 			lastProgress = time.Now()
 		}
 	}
-	st, err := p.Stream(ctx, r, float64(f.SampleRate), f.Channels,
-		func(x []float64) error { rep.dry.add(x); return nil },
-		func(y []float64) error { rep.wet.add(y); return w.Write(y) },
-		prog)
+	st, err := p.StreamWith(ctx, r, float64(f.SampleRate), f.Channels, engine.StreamOptions{
+		Oversample: choice.Factor, Frames: r.Frames(), Workers: opt.Workers,
+		In:       func(x []float64) error { rep.dry.add(x); return nil },
+		Sink:     func(y []float64) error { rep.wet.add(y); return w.Write(y) },
+		Progress: prog})
 	if err != nil {
 		if errors.Is(err, engine.ErrInterrupted) {
 			return nil, fmt.Errorf("render interrupted: no output written (%w)", err)
@@ -137,6 +156,7 @@ func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt Fil
 		return nil, err
 	}
 	rep.Solver.States, rep.Solver.NonlinearPorts = st.States, st.NonlinearPorts
+	rep.setPlan(st.Plan)
 	rep.finish(st.Stats, w.Clipped(), elapsed)
 	if err := o.Commit(); err != nil {
 		return nil, err

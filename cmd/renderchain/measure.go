@@ -15,10 +15,13 @@ import (
 var (
 	rateFlag       = &cli.Float64Flag{Name: "rate", Value: measure.DefaultSampleRate, Usage: "base sample rate in Hz (the circuit runs at rate × oversample)"}
 	oversampleFlag = &cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16 (default: the chain's, else 4)"}
-	probeFlag      = &cli.StringFlag{Name: "probe", Usage: "measure at `NODE` instead of the output: in, out, v+, STAGE.NODE (fuzz.c1), STAGE.in, STAGE.out"}
-	plotFlag       = &cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg"}
-	csvFlag        = &cli.BoolFlag{Name: "csv", Usage: "print CSV instead of a table"}
-	familySetFlag  = &cli.StringSliceFlag{Name: "set", Usage: "override `KEY=VALUE` (stage.knob=0.3, stage.REF=22n, stage.REF.hfe=120, supply=8.5V, …); a comma list (tone.tone=0,0.5,1) gives one result per value (repeatable)"}
+	// renderOversampleFlag is --oversample of a render, whose default is
+	// chosen per chain and rate.
+	renderOversampleFlag = &cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16 (default: the chain's, else the lowest that keeps aliases 50 dB down, chosen per chain and rate)"}
+	probeFlag            = &cli.StringFlag{Name: "probe", Usage: "measure at `NODE` instead of the output: in, out, v+, STAGE.NODE (fuzz.c1), STAGE.in, STAGE.out"}
+	plotFlag             = &cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg"}
+	csvFlag              = &cli.BoolFlag{Name: "csv", Usage: "print CSV instead of a table"}
+	familySetFlag        = &cli.StringSliceFlag{Name: "set", Usage: "override `KEY=VALUE` (stage.knob=0.3, stage.REF=22n, stage.REF.hfe=120, supply=8.5V, …); a comma list (tone.tone=0,0.5,1) gives one result per value (repeatable)"}
 )
 
 func measureCommand() *cli.Command {
