@@ -108,7 +108,10 @@ func TestSegmentsMatchSerial(t *testing.T) {
 			worst, at = d, i
 		}
 	}
-	t.Logf("warm-up %.3f s; worst difference %.2e FS at %.3f s", full.WarmupSeconds, worst, float64(at)/48000)
+	t.Logf("warm-up %.3f s; worst difference %.2e FS at %.3f s; join error %.2e FS", full.WarmupSeconds, worst, float64(at)/48000, st.JoinError)
+	if !(st.JoinError <= JoinTolerance) {
+		t.Errorf("join error %.3g FS over %g", st.JoinError, JoinTolerance)
+	}
 	if !(worst <= 1e-7) {
 		t.Errorf("segmented render differs from the serial one by %.3g FS at frame %d (%.3f s)", worst, at, float64(at)/48000)
 	}
@@ -122,6 +125,13 @@ func TestSegmentsMatchSerial(t *testing.T) {
 	}
 	if st.Stats.NonConverged != 0 {
 		t.Errorf("%d samples did not converge", st.Stats.NonConverged)
+	}
+	// A warm-up a twentieth as long leaves the segments far from the
+	// serial render (0.4 FS here): the join must show it.
+	short := SegmentPlan{Segments: 2, First: 2 * 48000, Length: 2 * 48000, Warmup: full.Warmup / 20}
+	_, bad := renderStream(t, p, x[:4*48000], 4, 2, &short)
+	if !(bad.JoinError > JoinTolerance) {
+		t.Errorf("a warm-up of %d frames joins within %.3g FS", short.Warmup, bad.JoinError)
 	}
 }
 
@@ -151,9 +161,9 @@ func TestPlanSegments(t *testing.T) {
 		{60 * 48000, 1, 1},
 		{2 * MinSegmentWarmups * w, 2, 1},     // the warm-up takes the first piece's margin
 		{2*MinSegmentWarmups*w + w + 2, 2, 2}, // just enough for two
-		{60 * 48000, 2, 2},                    // a minute: one piece a core
+		{30 * 48000, 2, 2},                    // half a minute: one piece a core
 		{3 * MaxSegment, 2, 4},                // past MaxSegment a piece: two rounds
-		{60 * 48000, 3, 3},                    // three cores
+		{30 * 48000, 3, 3},                    // three cores
 	} {
 		sp, err := p.PlanSegments(48000, 4, tc.frames, tc.workers)
 		if err != nil {
@@ -193,11 +203,11 @@ func (s *toneSource) Read(dst []float64) (int, error) {
 
 // A segmented stream's memory is bounded whatever its length: ten
 // segments of MaxSegment frames on two workers allocate at most the
-// 2·workers + 2 reused segment buffers (8 bytes a frame) and 1 MiB for
-// the channels and blocks, not ten buffers.
+// workers + 3 reused segment buffers (8 bytes a frame) and 1 MiB for the
+// channels and blocks, not ten buffers.
 func TestSegmentMemoryIsBounded(t *testing.T) {
 	if testing.Short() {
-		t.Skip("streams 10.5 M frames")
+		t.Skip("streams 21 M frames")
 	}
 	p := engine(t, rcChain, 1)
 	frames := 10 * MaxSegment
@@ -212,7 +222,7 @@ func TestSegmentMemoryIsBounded(t *testing.T) {
 		t.Fatal(err)
 	}
 	alloc := after.TotalAlloc - before.TotalAlloc
-	bound := uint64(2*2+2)*uint64(st.Plan.First+st.Plan.Warmup+64)*8 + 1<<20
+	bound := uint64(2+3)*uint64(st.Plan.First+st.Plan.Warmup+64)*8 + 1<<20
 	t.Logf("%d segments of %d frames: %d MiB allocated, bound %d MiB", st.Plan.Segments, st.Plan.Length, alloc>>20, bound>>20)
 	if st.Plan.Segments != 10 || out != frames {
 		t.Fatalf("%d segments, %d frames out of %d", st.Plan.Segments, out, frames)

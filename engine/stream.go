@@ -138,4 +138,10 @@ type StreamInfo struct {
 	States         int // reactive states
 	NonlinearPorts int // device ports at the root
 	Plan           SegmentPlan
+	// JoinError is, for a segmented stream, the largest difference between
+	// a segment's warm-up and the previous segment's output over the last
+	// frames (up to 256) before the segment's start: an estimate of how
+	// far the kept output can be from the serial render's at the join,
+	// to hold under JoinTolerance. 0 for a serial stream.
+	JoinError float64
 }

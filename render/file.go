@@ -156,7 +156,7 @@ func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt Fil
 		return nil, err
 	}
 	rep.Solver.States, rep.Solver.NonlinearPorts = st.States, st.NonlinearPorts
-	rep.setPlan(st.Plan)
+	rep.setPlan(st)
 	rep.finish(st.Stats, w.Clipped(), elapsed)
 	if err := o.Commit(); err != nil {
 		return nil, err

@@ -73,6 +73,10 @@ type SolverReport struct {
 	Segments    int     `json:"segments"`
 	WarmupS     float64 `json:"segment_warmup_s"`
 	SegmentNote string  `json:"segment_note,omitempty"`
+	// JoinError is the largest difference, in full scale, between a
+	// segment's warm-up and the previous segment's output where they
+	// meet (engine.StreamInfo.JoinError; 0 for a serial render).
+	JoinError float64 `json:"segment_join_error_fs"`
 	report.Solver
 	DCMethod       string `json:"dc_method"`
 	DCIterations   int    `json:"dc_iterations"`
@@ -105,13 +109,19 @@ func (r *Report) setFactor(c *engine.FactorChoice, fs float64, took time.Duratio
 	}
 }
 
-// setPlan records how the render was cut across cores.
-func (r *Report) setPlan(p engine.SegmentPlan) {
-	r.Solver.Segments, r.Solver.WarmupS, r.Solver.SegmentNote = p.Segments, 0, ""
+// setPlan records how the render was cut across cores, and warns when
+// the segments did not join within engine.JoinTolerance.
+func (r *Report) setPlan(st engine.StreamInfo) {
+	p := st.Plan
+	r.Solver.Segments, r.Solver.WarmupS, r.Solver.SegmentNote, r.Solver.JoinError = p.Segments, 0, "", st.JoinError
 	if p.Segments > 1 {
 		r.Solver.WarmupS = math.Round(p.WarmupSeconds*1000) / 1000
 	} else {
 		r.Solver.SegmentNote = p.Reason
+	}
+	if !(st.JoinError <= engine.JoinTolerance) {
+		r.Warnings.Add("the render was cut into %d segments for several cores, and where they join the circuit still remembered its start "+
+			"(%.2g of full scale, over %.2g): render with --workers 1 for the serial result", p.Segments, st.JoinError, engine.JoinTolerance)
 	}
 }
 
