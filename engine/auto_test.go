@@ -122,7 +122,7 @@ func TestAutoFactorDemoMeetsTheBar(t *testing.T) {
 }
 
 // issueAlias is the signal-to-alias ratio of issue 12's case at a factor.
-func issueAlias(t *testing.T, p *Prepared, factor int) float64 {
+func issueAlias(t testing.TB, p *Prepared, factor int) float64 {
 	t.Helper()
 	const fs, f = 48000.0, 1319.0
 	ch, err := p.channelAt(fs, p.Circuit.Output, factor)

@@ -135,3 +135,59 @@ func BenchmarkLongMono(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkAliasTradeoff is the README's table of aliasing against speed:
+// for the demo chain at full fuzz, as written (fuzz 0.7) and the
+// germanium build as written, at factors 1–16, it reports the
+// signal-to-alias ratio of issue 12's case (1319 Hz at 0.3 of full scale,
+// a coherent 1 s record after a 1 s warm-up; untimed) and the speed of one
+// core on the first 2 s of the demo's phrase (timed). Run it with
+//
+//	go test -run XXX -bench AliasTradeoff -benchtime 1x ./engine/
+func BenchmarkAliasTradeoff(b *testing.B) {
+	x := phraseSeconds(b, 2)
+	for _, c := range []struct{ name, file, set string }{
+		{"demo-fuzz1", "../chains/demo.toml", "fuzz.fuzz=1"},
+		{"demo", "../chains/demo.toml", ""},
+		{"germanium", "../chains/germanium.toml", ""},
+	} {
+		ch, err := chains.Load(c.file)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if c.set != "" {
+			if err := ch.Set(c.set); err != nil {
+				b.Fatal(err)
+			}
+		}
+		p, err := Prepare(ch, 0)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for _, f := range []int{1, 2, 3, 4, 5, 6, 8, 10, 12, 16} {
+			b.Run(fmt.Sprintf("%s/x%d", c.name, f), func(b *testing.B) {
+				b.StopTimer()
+				sar := issueAlias(b, p, f)
+				dst := make([]float64, MaxBlock)
+				var st float64
+				for i := 0; i < b.N; i++ {
+					ch, err := p.channelAt(48000, p.Circuit.Output, f)
+					if err != nil {
+						b.Fatal(err)
+					}
+					b.StartTimer()
+					for k := 0; k+MaxBlock <= len(x); k += MaxBlock {
+						ch.Process(dst, x[k:k+MaxBlock])
+					}
+					b.StopTimer()
+					st = ch.Stats().MeanIterations()
+				}
+				ns := float64(b.Elapsed().Nanoseconds()) / float64(b.N*(len(x)/MaxBlock*MaxBlock))
+				b.ReportMetric(sar, "dB-SAR")
+				b.ReportMetric(ns, "ns/sample")
+				b.ReportMetric(1e9/ns/48000, "x-realtime")
+				b.ReportMetric(st, "newton/tick")
+			})
+		}
+	}
+}
