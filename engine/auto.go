@@ -35,7 +35,6 @@ const (
 
 // Search constants (see ChooseOversample).
 const (
-	firstFactor = 4
 	// searchSlope is the rise of the signal-to-alias ratio per doubling
 	// of the factor that the search predicts with until it has two
 	// points of its own: 12 dB, under every rise measured on the demo
@@ -131,9 +130,9 @@ type AliasTrial struct {
 //     near 1.3 kHz, one after another, phase continuous) comes out with a
 //     signal-to-alias ratio (spectrum.SignalToAlias on a settled coherent
 //     tenth of a second) of at least AliasTarget. The search starts at
-//     4× (or the floor), steps down while the lower factor passes, or up
-//     by a prediction from the measured rise per doubling, at most
-//     MaxTrials factors. Stepping down from a passing factor is only
+//     the floor (a failing trial stops at its first tone, so a low start
+//     is cheap) and goes up by a prediction from the measured rise per
+//     doubling, at most MaxTrials factors. Stepping down from a passing factor is only
 //     tried while it pays: while budget (the seconds of audio the render
 //     will run, all channels) exceeds the probe's own length times the
 //     lower factor; budget +Inf always tries.
@@ -184,7 +183,7 @@ func (p *Prepared) ChooseOversample(ctx context.Context, fs, budget float64) (*F
 	}
 	best := 0 // lowest passing factor found
 	var bestTrial AliasTrial
-	start := min(max(floor, firstFactor), resample.MaxFactor)
+	start := floor // a failing trial stops at its first tone: starting low is cheap
 	t, err := trial(start)
 	if err != nil {
 		return nil, err
