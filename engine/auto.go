@@ -183,23 +183,14 @@ func (p *Prepared) ChooseOversample(ctx context.Context, fs, budget float64) (*F
 	}
 	best := 0 // lowest passing factor found
 	var bestTrial AliasTrial
-	start := floor // a failing trial stops at its first tone: starting low is cheap
-	t, err := trial(start)
+	// The search starts at the floor: a failing trial stops at its first
+	// tone, so a low start is cheap, and a floor that passes is the answer.
+	t, err := trial(floor)
 	if err != nil {
 		return nil, err
 	}
 	if t.Pass {
-		best, bestTrial = start, t
-		for f := start - 1; f >= floor && len(c.Trials) < MaxTrials && budget > bestTrial.Seconds*float64(f); f-- {
-			t, err := trial(f)
-			if err != nil {
-				return nil, err
-			}
-			if !t.Pass {
-				break
-			}
-			best, bestTrial = f, t
-		}
+		best, bestTrial = floor, t
 	} else {
 		lo := t // highest failing trial
 		var below *AliasTrial
@@ -225,7 +216,9 @@ func (p *Prepared) ChooseOversample(ctx context.Context, fs, budget float64) (*F
 			prev := lo
 			below, lo = &prev, t
 		}
-		// Step down towards the highest failing factor while it pays.
+		// Step down towards the highest failing factor while it pays: a
+		// factor less saves the render budget·(one factor's work), a try
+		// costs the probe's length times the factor tried.
 		for f := best - 1; best > 0 && f > lo.Factor && len(c.Trials) < MaxTrials && budget > bestTrial.Seconds*float64(f); f-- {
 			t, err := trial(f)
 			if err != nil {

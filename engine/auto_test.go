@@ -7,6 +7,7 @@ import (
 
 	"renderchain/chains"
 	"renderchain/dsp/spectrum"
+	"renderchain/internal/testchains"
 )
 
 // A circuit without devices gets the lowest factor whose frequency
@@ -146,4 +147,21 @@ func issueAlias(t testing.TB, p *Prepared, factor int) float64 {
 		t.Fatal(err)
 	}
 	return a.DB
+}
+
+// A circuit that runs away from its operating point by itself (the
+// bistable pair: a growing real pole) makes output no factor cleans up,
+// so the probe does not run: the default factor, with a warning.
+func TestAutoFactorUnstable(t *testing.T) {
+	p := engine(t, testchains.Latch, 0)
+	if !p.Unstable() {
+		t.Fatal("the bistable pair is not unstable")
+	}
+	c, err := p.ChooseOversample(context.Background(), 48000, math.Inf(1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.Factor != max(c.WarpFloor, DefaultOversample) || len(c.Trials) != 0 || c.Warning == "" {
+		t.Errorf("%d× (floor %d), trials %v, warning %q", c.Factor, c.WarpFloor, c.Trials, c.Warning)
+	}
 }

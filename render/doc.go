@@ -1,9 +1,16 @@
 // Package render renders WAV files through a chain: it streams a dry file
 // through a prepared chain (package engine: one circuit per audio channel,
-// oversampled, delay-compensated), writes the wet file in blocks with
-// constant memory, and reports levels, clipping, solver statistics,
-// realtime factor and a third-octave comparison of dry and wet; and it
-// makes the demo set. Output is written to a temporary file and renamed on
+// oversampled, delay-compensated), writes the wet file in blocks, and
+// reports levels, clipping, solver statistics, realtime factor and a
+// third-octave comparison of dry and wet; and it makes the demo set.
+//
+// Unless the caller or the chain names a factor, a render oversamples by
+// the lowest factor that keeps the chain's aliases 50 dB down at the
+// file's rate (engine.ChooseOversample), and the report says which factor
+// and why. A mono file long enough is cut into segments rendered on
+// several cores (engine.StreamWith); the report gives the segments, their
+// warm-up and how well they joined. A serial render's memory is constant,
+// a segmented one's bounded. Output is written to a temporary file and renamed on
 // success; on any error or cancellation nothing is left under the output
 // name and the input is never written over.
 //
