@@ -92,17 +92,7 @@ func TestAutoFactorDemoMeetsTheBar(t *testing.T) {
 	if testing.Short() {
 		t.Skip("renders about 10 s of audio")
 	}
-	ch, err := chains.Load("../chains/demo.toml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := ch.Set("fuzz.fuzz=1"); err != nil {
-		t.Fatal(err)
-	}
-	p, err := Prepare(ch, 0)
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := preparedFile(t, "../chains/demo.toml", 0, "fuzz.fuzz=1")
 	c, err := p.ChooseOversample(context.Background(), 48000, math.Inf(1))
 	if err != nil {
 		t.Fatal(err)

@@ -105,14 +105,7 @@ func BenchmarkSettleDetector(b *testing.B) {
 //
 //	go test -run XXX -bench LongMono -benchtime 1x ./engine/
 func BenchmarkLongMono(b *testing.B) {
-	ch, err := chains.Load("../chains/demo.toml")
-	if err != nil {
-		b.Fatal(err)
-	}
-	p, err := Prepare(ch, 0)
-	if err != nil {
-		b.Fatal(err)
-	}
+	p := preparedFile(b, "../chains/demo.toml", 0)
 	c, err := p.ChooseOversample(context.Background(), 48000, 60)
 	if err != nil {
 		b.Fatal(err)
@@ -151,19 +144,11 @@ func BenchmarkAliasTradeoff(b *testing.B) {
 		{"demo", "../chains/demo.toml", ""},
 		{"germanium", "../chains/germanium.toml", ""},
 	} {
-		ch, err := chains.Load(c.file)
-		if err != nil {
-			b.Fatal(err)
-		}
+		var sets []string
 		if c.set != "" {
-			if err := ch.Set(c.set); err != nil {
-				b.Fatal(err)
-			}
+			sets = append(sets, c.set)
 		}
-		p, err := Prepare(ch, 0)
-		if err != nil {
-			b.Fatal(err)
-		}
+		p := preparedFile(b, c.file, 0, sets...)
 		for _, f := range []int{1, 2, 3, 4, 5, 6, 8, 10, 12, 16} {
 			b.Run(fmt.Sprintf("%s/x%d", c.name, f), func(b *testing.B) {
 				b.StopTimer()

@@ -26,6 +26,26 @@ func (s *sliceSource) Read(dst []float64) (int, error) {
 	return n, nil
 }
 
+// preparedFile loads a chain file, applies the overrides and prepares it
+// at the factor given (0: the default).
+func preparedFile(tb testing.TB, path string, factor int, sets ...string) *Prepared {
+	tb.Helper()
+	ch, err := chains.Load(path)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	for _, kv := range sets {
+		if err := ch.Set(kv); err != nil {
+			tb.Fatal(err)
+		}
+	}
+	p, err := Prepare(ch, factor)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return p
+}
+
 // phraseSeconds returns the demo's synthesized phrase (10 s a take)
 // repeated with new seeds to the given length at 48 kHz.
 func phraseSeconds(tb testing.TB, seconds float64) []float64 {
@@ -77,17 +97,7 @@ func renderStream(t testing.TB, p *Prepared, x []float64, factor, workers int, p
 // internal samples come to (frames + filter delay)·factor exactly, as in
 // the serial render (its flush feeds the delay's worth of zeros).
 func TestSegmentsMatchSerial(t *testing.T) {
-	ch, err := chains.Load("../chains/demo.toml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := ch.Set("fuzz.fuzz=1"); err != nil {
-		t.Fatal(err)
-	}
-	p, err := Prepare(ch, 4)
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := preparedFile(t, "../chains/demo.toml", 4, "fuzz.fuzz=1")
 	x := phraseSeconds(t, 8)
 	full, err := p.PlanSegments(48000, 4, 1<<30, 2)
 	if err != nil {
@@ -140,14 +150,7 @@ func TestSegmentsMatchSerial(t *testing.T) {
 // workers) once a piece would pass MaxSegment, the first longer by one
 // warm-up, the pieces covering the file exactly.
 func TestPlanSegments(t *testing.T) {
-	ch, err := chains.Load("../chains/demo.toml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	p, err := Prepare(ch, 4)
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := preparedFile(t, "../chains/demo.toml", 4)
 	ref, err := p.PlanSegments(48000, 4, 1<<30, 2)
 	if err != nil {
 		t.Fatal(err)
