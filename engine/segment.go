@@ -122,9 +122,9 @@ type StreamOptions struct {
 	Workers int
 	// In, when not nil, sees each block of input as read, in order. Sink
 	// gets the output, interleaved, in order, with exactly as many frames
-	// as the input; it may run while In does (from another goroutine),
-	// but never alongside itself. Progress, when not nil, gets the input
-	// frames rendered so far, one call at a time.
+	// as the input. Both are called from the caller's goroutine. Progress,
+	// when not nil, gets the input frames rendered so far, one call at a
+	// time (from the segments' goroutines when the stream is cut).
 	In, Sink func([]float64) error
 	Progress func(int64)
 }
