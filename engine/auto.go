@@ -37,8 +37,9 @@ const (
 const (
 	// searchSlope is the rise of the signal-to-alias ratio per doubling
 	// of the factor that the search predicts with until it has two
-	// points of its own: 12 dB, under every rise measured on the demo
-	// chain (13–21 dB per doubling), so that the prediction errs high.
+	// points of its own: 12 dB, under most rises measured on the demo and
+	// germanium chains (7–18 dB per doubling, README), so that the
+	// prediction usually errs high and the search steps back down.
 	searchSlope = 12.0
 	// Slopes from two measured points are clamped to this range.
 	minSlope, maxSlope = 6.0, 24.0
