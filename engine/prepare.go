@@ -1,6 +1,8 @@
 package engine
 
 import (
+	"context"
+	"errors"
 	"fmt"
 	"strconv"
 
@@ -94,6 +96,18 @@ type Prepared struct {
 // its stability and resolves the oversampling factor (see Oversample; 0
 // takes the chain's or the default).
 func Prepare(ch *chains.Chain, oversample int) (*Prepared, error) {
+	return PrepareContext(context.Background(), ch, oversample)
+}
+
+// PrepareContext is Prepare that stops when ctx is done: the chain's size
+// is checked before anything is built (chains.Chain.Flatten), and the DC
+// solve checks ctx at every Newton iteration (mna.SolveDCContext). A
+// stopped preparation returns an error wrapping ErrInterrupted and the
+// context's cause.
+func PrepareContext(ctx context.Context, ch *chains.Chain, oversample int) (*Prepared, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, fmt.Errorf("%w (%w)", ErrInterrupted, context.Cause(ctx))
+	}
 	os, from, err := oversampleFrom(ch, oversample)
 	if err != nil {
 		return nil, err
@@ -103,7 +117,11 @@ func Prepare(ch *chains.Chain, oversample int) (*Prepared, error) {
 		return nil, err
 	}
 	c := flat.Circuit
-	op, err := mna.SolveDC(c, mna.DCOptions{})
+	op, err := mna.SolveDCContext(ctx, c, mna.DCOptions{})
+	var ce *mna.CancelError
+	if errors.As(err, &ce) {
+		return nil, fmt.Errorf("%w (%w)", ErrInterrupted, ce.Cause)
+	}
 	if err != nil {
 		return nil, fmt.Errorf("%s: at %s, %.1f °C: %w", ch.File, models.FormatValue(ch.Supply, "V"), ch.Temperature-models.ZeroCelsius, err)
 	}

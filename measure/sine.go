@@ -280,7 +280,7 @@ func Sine(ctx context.Context, ch *chains.Chain, freq, amplitude float64, opt Op
 	if err := checkSignal(freq, amplitude, opt.SampleRate); err != nil {
 		return nil, err
 	}
-	p, err := engine.Prepare(ch, opt.Oversample)
+	p, err := engine.PrepareContext(ctx, ch, opt.Oversample)
 	if err != nil {
 		return nil, err
 	}

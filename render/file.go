@@ -11,6 +11,7 @@ import (
 	"renderchain/dsp/wavio"
 	"renderchain/engine"
 	"renderchain/models"
+	"renderchain/outputs"
 	"renderchain/report"
 )
 
@@ -80,9 +81,13 @@ func CheckInput(path string) (*wavio.File, error) {
 }
 
 // RenderFile renders the WAV file in through the prepared chain into the
-// WAV file out (written under a temporary name and renamed on success; on
-// any error or cancellation nothing is left at out). Memory stays bounded
-// whatever the file's length.
+// WAV file out, a one-file outputs.Set: out is checked before any work
+// (not the input by device and inode, not a folder, its folder writable),
+// written under a temporary name and put in place on success; on any error
+// or cancellation nothing is left at out and a file already there is kept.
+// A character device or FIFO at out is written in place. Memory stays
+// bounded whatever the file's length. A command writing more than one
+// file declares them all in one outputs.Set and calls Render.
 //
 // The oversampling factor is the prepared chain's when the caller or the
 // chain named one, else chosen for this chain at the file's rate
@@ -90,9 +95,33 @@ func CheckInput(path string) (*wavio.File, error) {
 // long enough is cut into segments rendered on several cores
 // (engine.StreamWith).
 func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt FileOptions) (*Report, error) {
-	if same, err := wavio.SameFile(in, out); err == nil && same {
-		return nil, models.Fieldf("output", out, "is the input file: refusing to write over it")
+	set := outputs.New()
+	set.Input("input", in)
+	f := set.File("output", out)
+	if err := set.Check(); err != nil {
+		return nil, err
 	}
+	defer set.Abort()
+	rep, err := Render(ctx, p, in, f, opt)
+	if err != nil {
+		return nil, err
+	}
+	if err := set.Commit(); err != nil {
+		return nil, err
+	}
+	return rep, nil
+}
+
+// Render renders the WAV file in through the prepared chain into out, a
+// file of an outputs.Set that the caller has checked and commits when all
+// its outputs are written (or aborts). A target that cannot seek (a FIFO,
+// a character device: out.InPlace) gets a stream whose header needs no
+// patching (wavio.NewStreamWriter; the output has exactly the input's
+// frames). Float input samples beyond the reader's bound (+24 dBFS) stop
+// the render with the file, frame and channel before the solver sees them;
+// smaller overs, and whatever the reader tolerated in the file's header,
+// are listed in the report's warnings.
+func Render(ctx context.Context, p *engine.Prepared, in string, out *outputs.File, opt FileOptions) (*Report, error) {
 	r, err := CheckInput(in)
 	if err != nil {
 		return nil, err
@@ -103,21 +132,16 @@ func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt Fil
 	if err != nil {
 		return nil, err
 	}
-	o, err := wavio.CreateTemp(out)
+	var w *wavio.Writer
+	if out.InPlace() {
+		w, err = wavio.NewStreamWriter(out, of, r.Frames())
+	} else {
+		w, err = wavio.NewWriter(out, of)
+	}
 	if err != nil {
 		return nil, err
 	}
-	committed := false
-	defer func() {
-		if !committed {
-			o.Abort()
-		}
-	}()
-	w, err := wavio.NewWriter(o, of)
-	if err != nil {
-		return nil, err
-	}
-	rep := newReport(p, in, out, f, of, r.Frames())
+	rep := newReport(p, in, out.Path(), f, of, r.Frames())
 	if rep.Warnings, err = bias.Warnings(ctx, p); err != nil {
 		return nil, err
 	}
@@ -158,10 +182,7 @@ func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt Fil
 	rep.Solver.States, rep.Solver.NonlinearPorts = st.States, st.NonlinearPorts
 	rep.setPlan(st)
 	rep.finish(st.Stats, w.Clipped(), elapsed)
-	if err := o.Commit(); err != nil {
-		return nil, err
-	}
-	committed = true
+	rep.Warnings.Merge(report.InputNotes(in, r.Overs(), r.Warnings()))
 	return rep, nil
 }
 

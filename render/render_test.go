@@ -168,7 +168,7 @@ func TestRenderFaultsLeaveNoOutput(t *testing.T) {
 		{"empty", empty, "o3.wav", "empty.wav"},
 		{"missing", filepath.Join(dir, "nope.wav"), "o4.wav", "nope.wav"},
 		{"rate", lowRate, "o5.wav", "8000 Hz is outside 44100–192000 Hz"},
-		{"out is in", good, "good.wav", "is the input file"},
+		{"out is in", good, "good.wav", "is the same file as an input"},
 	}
 	e := prepared(t, dividerChain, 2)
 	for _, tc := range cases {

@@ -9,6 +9,7 @@ import (
 	"renderchain/chains"
 	"renderchain/measure"
 	"renderchain/models"
+	"renderchain/outputs"
 )
 
 // Flags shared by measure and response.
@@ -78,12 +79,12 @@ func measureCommand() *cli.Command {
 const maxScopeViews = 16
 
 // saveMeasureFigures writes the report's figure to path and beside it a
-// scope view per measurement (siblingPath), or, past maxScopeViews
-// measurements, says on stderr that they were left out.
-func saveMeasureFigures(c *cli.Context, rep *measure.Report, path string, count int) error {
+// scope view per measurement (siblingPath), into the files plotFiles
+// declared; it returns them for noteMeasureFigures.
+func saveMeasureFigures(rep *measure.Report, path string, outs map[string]*outputs.File) ([]figureFile, error) {
 	fig, err := rep.Figure()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	what := "spectrum and harmonics"
 	if rep.Sweep != nil {
@@ -92,7 +93,7 @@ func saveMeasureFigures(c *cli.Context, rep *measure.Report, path string, count 
 	files := []figureFile{{path: path, what: what, fig: fig}}
 	scopes, err := rep.ScopeFigures()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	for i, f := range scopes {
 		m := rep.Measurements[i]
@@ -105,13 +106,16 @@ func saveMeasureFigures(c *cli.Context, rep *measure.Report, path string, count 
 		}
 		files = append(files, figureFile{path: siblingPath(path, "scope", i, len(scopes)), what: "scope view, " + name, fig: f})
 	}
-	if err := saveFigures(c, files, c.Bool("quiet")); err != nil {
-		return err
-	}
+	return files, saveFigures(files, outs)
+}
+
+// noteMeasureFigures names the figures written, or, past maxScopeViews
+// measurements, says on stderr that the scope views were left out.
+func noteMeasureFigures(c *cli.Context, files []figureFile, count int) {
+	noteFigures(c, files, c.Bool("quiet"))
 	if count > maxScopeViews && !c.Bool("quiet") {
 		fmt.Fprintf(c.App.ErrWriter, "note: no scope views: they are drawn for up to %d measurements, this run made %d\n", maxScopeViews, count)
 	}
-	return nil
 }
 
 var workersFlag = &cli.IntFlag{Name: "workers", Usage: "measurements run at once (default: one per core)"}
@@ -186,6 +190,16 @@ func runMeasure(c *cli.Context) error {
 		count *= len(sweep.StepList)
 	}
 	opt.Scope = plotPath != "" && count <= maxScopeViews
+	set := newOutputs(c)
+	scopes := 0
+	if opt.Scope {
+		scopes = count
+	}
+	plots := plotFiles(set, plotPath, "scope", scopes)
+	if err := set.Check(); err != nil { // before any work
+		return err
+	}
+	defer set.Abort()
 	prog, done := progress(c.Bool("quiet"), "measuring")
 	plan := measure.Plan{Variants: variants, Freq: freq, Amplitude: amp, Sweep: sweep, Options: opt, Workers: c.Int("workers")}
 	if prog != nil {
@@ -196,10 +210,17 @@ func runMeasure(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	var figures []figureFile
 	if plotPath != "" {
-		if err := saveMeasureFigures(c, rep, plotPath, count); err != nil {
+		if figures, err = saveMeasureFigures(rep, plotPath, plots); err != nil {
 			return err
 		}
+	}
+	if err := commitOutputs(c, set); err != nil {
+		return err
+	}
+	if plotPath != "" {
+		noteMeasureFigures(c, figures, count)
 	}
 	switch {
 	case c.Bool("json"):

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strings"
 
 	"github.com/urfave/cli/v2"
@@ -35,25 +34,35 @@ func renderCommand() *cli.Command {
 			if c.NArg() > 0 {
 				return usagef("render takes no arguments (got %q); use --in and --out", c.Args().First())
 			}
+			set := newOutputs(c)
+			set.Input("in", c.String("in"))
+			wav := set.File("out", c.String("out"))
+			report := optionalFile(c, set, "report")
+			if err := set.Check(); err != nil { // before any work
+				return err
+			}
+			defer set.Abort()
 			ch, err := loadChain(c)
 			if err != nil {
 				return err
 			}
-			eng, err := engine.Prepare(ch, c.Int("oversample"))
+			eng, err := engine.PrepareContext(c.Context, ch, c.Int("oversample"))
 			if err != nil {
 				return err
 			}
 			prog, done := progress(c.Bool("quiet"), "rendering")
-			rep, err := render.RenderFile(c.Context, eng, c.String("in"), c.String("out"), render.FileOptions{Format: c.String("format"), Workers: c.Int("workers"), Progress: prog})
+			rep, err := render.Render(c.Context, eng, c.String("in"), wav, render.FileOptions{Format: c.String("format"), Workers: c.Int("workers"), Progress: prog})
 			done()
 			if err != nil {
 				return err
 			}
-			if path := c.String("report"); path != "" {
-				if err := writeJSON(path, rep); err != nil {
-					os.Remove(c.String("out"))
-					return fmt.Errorf("writing report: %w", err)
+			if report != nil {
+				if err := writeJSONTo(report, rep); err != nil {
+					return err
 				}
+			}
+			if err := commitOutputs(c, set); err != nil {
+				return err
 			}
 			if !c.Bool("quiet") {
 				printSummary(c.App.ErrWriter, rep, leastStepDBFS(c.String("format")))
