@@ -4,8 +4,10 @@
 # Builds the command, writes music-like dry takes (the demo's synthesized
 # plucked-string phrase, scripts/drytake), and times whole renders (read,
 # prepare, choose the factor, render, write) with /usr/bin/time. Realtime
-# factor = seconds of audio / wall seconds. The load average before each
-# run is printed: on a shared machine the figures move with it.
+# factor = seconds of audio / wall seconds. Before each row the two-thread
+# check (scripts/corecheck) says whether a second core was free: 1.0 yes,
+# 2.0 no. On a shared host the figures move with it; cpu s over wall s is
+# the cores the run itself got.
 #
 #   scripts/speed.sh            # whole-process table
 #   BENCH=1 scripts/speed.sh    # and the go test benchmarks of the README
@@ -16,17 +18,18 @@ cd "$(dirname "$0")/.."
 dir=$(mktemp -d)
 trap 'rm -rf "$dir"' EXIT
 go build -o "$dir/renderchain" ./cmd/renderchain
+go build -o "$dir/corecheck" ./scripts/corecheck
 go run ./scripts/drytake -seconds 20 -out "$dir/dry20.wav"
 go run ./scripts/drytake -seconds 60 -out "$dir/dry60.wav"
 
 echo "machine: $(nproc) cores, $(uname -m); go $(go env GOVERSION)"
-printf '%-52s %8s %8s %9s %9s %s\n' "render" "wall s" "cpu s" "realtime" "factor" "load before"
+printf '%-52s %8s %8s %9s %9s %s\n' "render" "wall s" "cpu s" "realtime" "factor" "two-thread check"
 
 # time_render LABEL SECONDS ARGS… renders and prints one row.
 time_render() {
 	label=$1 secs=$2
 	shift 2
-	load=$(cut -d' ' -f1 /proc/loadavg)
+	load=$("$dir/corecheck")
 	/usr/bin/time -f '%e %U %S' -o "$dir/time" "$dir/renderchain" render --quiet --report "$dir/r.json" --out "$dir/wet.wav" "$@"
 	factor=$(sed -n 's/.*"oversample": \([0-9]*\).*/\1/p' "$dir/r.json" | head -n 1)
 	awk -v l="$label" -v s="$secs" -v f="$factor" -v ld="$load" \
@@ -46,7 +49,7 @@ time_render "twelve-port cascade, 20 s, default" 20 --chain dsp/wdf/testdata/cas
 time_render "twelve-port cascade, 20 s, 4x, one core" 20 --chain dsp/wdf/testdata/cascade12.toml --in "$dir/dry20.wav" --oversample 4 --workers 1
 
 if [ "${BENCH:-}" = 1 ]; then
-	echo "load before the benchmarks: $(cat /proc/loadavg)"
+	echo "two-thread check before the benchmarks: $("$dir/corecheck")"
 	go test -run XXX -bench 'ChainDemo$|ChainCascade12|ChainLinear|RootPorts' -benchtime 2x ./dsp/wdf/
 	go test -run XXX -bench 'LongMono' -benchtime 1x ./engine/
 fi
