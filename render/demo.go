@@ -99,7 +99,8 @@ func DemoInto(ctx context.Context, d *outputs.Dir, workers int) ([]DemoTake, err
 			return fmt.Errorf("demo %s: %w", j.take.Name, err)
 		}
 		j.take.File = j.take.Name + ".wav"
-		rep, err := RenderFile(ctx, eng, dry, filepath.Join(work, j.take.File), FileOptions{})
+		// The takes share the pool: each renders on one core.
+		rep, err := RenderFile(ctx, eng, dry, filepath.Join(work, j.take.File), FileOptions{Workers: 1})
 		if err != nil {
 			return fmt.Errorf("demo %s: %w", j.take.Name, err)
 		}

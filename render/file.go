@@ -42,6 +42,10 @@ func OutputFormat(name string, rate, channels int) (wavio.Format, error) {
 // FileOptions tune RenderFile.
 type FileOptions struct {
 	Format string // pcm24 (default), pcm16, float32
+	// Workers bounds the cores a mono render is cut across
+	// (engine.PlanSegments): 0 one per core, 1 serial. A caller that runs
+	// several renders at once on a pool passes 1.
+	Workers int
 	// Progress, if set, is called now and then with frames done and total.
 	Progress func(done, total int64)
 }
@@ -82,8 +86,14 @@ func CheckInput(path string) (*wavio.File, error) {
 // written under a temporary name and put in place on success; on any error
 // or cancellation nothing is left at out and a file already there is kept.
 // A character device or FIFO at out is written in place. Memory stays
-// constant whatever the file's length. A command writing more than one
+// bounded whatever the file's length. A command writing more than one
 // file declares them all in one outputs.Set and calls Render.
+//
+// The oversampling factor is the prepared chain's when the caller or the
+// chain named one, else chosen for this chain at the file's rate
+// (engine.ChooseOversample); the report says which and why. A mono file
+// long enough is cut into segments rendered on several cores
+// (engine.StreamWith).
 func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt FileOptions) (*Report, error) {
 	set := outputs.New()
 	set.Input("input", in)
@@ -136,6 +146,14 @@ func Render(ctx context.Context, p *engine.Prepared, in string, out *outputs.Fil
 		return nil, err
 	}
 	start := time.Now()
+	choice, err := p.ChooseOversample(ctx, float64(f.SampleRate), float64(r.Frames())/float64(f.SampleRate)*float64(f.Channels))
+	if err != nil {
+		if ctx.Err() != nil {
+			return nil, fmt.Errorf("render interrupted: no output written (%w)", ctx.Err())
+		}
+		return nil, err
+	}
+	rep.setFactor(choice, float64(f.SampleRate), time.Since(start))
 	lastProgress := time.Now()
 	prog := func(done int64) {
 		if opt.Progress != nil && time.Since(lastProgress) > 100*time.Millisecond {
@@ -143,10 +161,11 @@ func Render(ctx context.Context, p *engine.Prepared, in string, out *outputs.Fil
 			lastProgress = time.Now()
 		}
 	}
-	st, err := p.Stream(ctx, r, float64(f.SampleRate), f.Channels,
-		func(x []float64) error { rep.dry.add(x); return nil },
-		func(y []float64) error { rep.wet.add(y); return w.Write(y) },
-		prog)
+	st, err := p.StreamWith(ctx, r, float64(f.SampleRate), f.Channels, engine.StreamOptions{
+		Oversample: choice.Factor, Frames: r.Frames(), Workers: opt.Workers,
+		In:       func(x []float64) error { rep.dry.add(x); return nil },
+		Sink:     func(y []float64) error { rep.wet.add(y); return w.Write(y) },
+		Progress: prog})
 	if err != nil {
 		if errors.Is(err, engine.ErrInterrupted) {
 			return nil, fmt.Errorf("render interrupted: no output written (%w)", err)
@@ -161,6 +180,7 @@ func Render(ctx context.Context, p *engine.Prepared, in string, out *outputs.Fil
 		return nil, err
 	}
 	rep.Solver.States, rep.Solver.NonlinearPorts = st.States, st.NonlinearPorts
+	rep.setPlan(st)
 	rep.finish(st.Stats, w.Clipped(), elapsed)
 	rep.Warnings.Merge(report.InputNotes(in, r.Overs(), r.Warnings()))
 	return rep, nil

@@ -16,10 +16,13 @@ import (
 var (
 	rateFlag       = &cli.Float64Flag{Name: "rate", Value: measure.DefaultSampleRate, Usage: "base sample rate in Hz (the circuit runs at rate × oversample)"}
 	oversampleFlag = &cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16 (default: the chain's, else 4)"}
-	probeFlag      = &cli.StringFlag{Name: "probe", Usage: "measure at `NODE` instead of the output: in, out, v+, STAGE.NODE (fuzz.c1), STAGE.in, STAGE.out"}
-	plotFlag       = &cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg"}
-	csvFlag        = &cli.BoolFlag{Name: "csv", Usage: "print CSV instead of a table"}
-	familySetFlag  = &cli.StringSliceFlag{Name: "set", Usage: "override `KEY=VALUE` (stage.knob=0.3, stage.REF=22n, stage.REF.hfe=120, supply=8.5V, …); a comma list (tone.tone=0,0.5,1) gives one result per value (repeatable)"}
+	// renderOversampleFlag is --oversample of a render, whose default is
+	// chosen per chain and rate.
+	renderOversampleFlag = &cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16 (default: the chain's, else the lowest that keeps aliases 50 dB down, chosen per chain and rate)"}
+	probeFlag            = &cli.StringFlag{Name: "probe", Usage: "measure at `NODE` instead of the output: in, out, v+, STAGE.NODE (fuzz.c1), STAGE.in, STAGE.out"}
+	plotFlag             = &cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg"}
+	csvFlag              = &cli.BoolFlag{Name: "csv", Usage: "print CSV instead of a table"}
+	familySetFlag        = &cli.StringSliceFlag{Name: "set", Usage: "override `KEY=VALUE` (stage.knob=0.3, stage.REF=22n, stage.REF.hfe=120, supply=8.5V, …); a comma list (tone.tone=0,0.5,1) gives one result per value (repeatable)"}
 )
 
 func measureCommand() *cli.Command {
@@ -33,6 +36,10 @@ func measureCommand() *cli.Command {
 			"windows changing by less than --settle-tol, at most --settle-max), and analyses a whole number\n" +
 			"of cycles: fundamental, harmonics 2–10 (dBc, %), THD_F, THD_R, THD+N (20 Hz–20 kHz), even/odd\n" +
 			"energy, DC, peaks and their asymmetry, and whether the output clips.\n\n" +
+			"--alias adds the signal-to-alias ratio: the sine rendered again per oversampling factor\n" +
+			"(--alias-factors 2,4,8,16), the power on its harmonic lines over the power everywhere else.\n" +
+			"A tone whose folded lines would land on its own harmonics (1 kHz at 48 kHz) is moved to a\n" +
+			"neighbour that shows them, and the report says so.\n\n" +
 			"--amplitude is at the chain's source EMF, before any source impedance: 100mV, 0.1V (peak),\n" +
 			"20mVpp, 70.7mVrms, -20dBV. Sweep steps and conditions run in parallel across cores.\n\n" +
 			"Safety: on a real bench, keep mains-powered test gear earthed as its maker intends and\n" +
@@ -57,6 +64,8 @@ func measureCommand() *cli.Command {
 			jsonFlag,
 			csvFlag,
 			&cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg, and a scope view of each measurement beside it (FILE-scope.png, FILE-scope-01.png …; up to 16)"},
+			&cli.BoolFlag{Name: "alias", Usage: "also measure the aliasing: the power the output holds off the sine's harmonic lines, under the lines' (its own render per factor)"},
+			&cli.StringFlag{Name: "alias-factors", Usage: "oversampling factors to measure the aliasing at, `N,N,…` 1–16 (implies --alias; default: the measurement's)"},
 			workersFlag,
 			quietFlag,
 		},
@@ -158,7 +167,15 @@ func runMeasure(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	var aliasFactors []int
+	if c.IsSet("alias-factors") {
+		if aliasFactors, err = measure.ParseFactors(c.String("alias-factors")); err != nil {
+			return badFlag("alias-factors", c.String("alias-factors"), err)
+		}
+	}
 	opt := measure.Options{
+		Alias:           c.Bool("alias") || c.IsSet("alias-factors"),
+		AliasFactors:    aliasFactors,
 		SampleRate:      c.Float64("rate"),
 		Oversample:      c.Int("oversample"),
 		Probe:           c.String("probe"),
