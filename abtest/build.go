@@ -16,6 +16,7 @@ import (
 	"renderchain/analyze"
 	"renderchain/dsp/wavio"
 	"renderchain/engine"
+	"renderchain/outputs"
 	"renderchain/parallel"
 	"renderchain/render"
 	"renderchain/report"
@@ -29,26 +30,32 @@ type builder struct {
 	order []int // set position → job
 	plan  seqPlan
 
-	dir, tmp, rawDir, keyPath, keyTmp string
-	stale                             []string // files of an earlier set to retire
-	pr                                *progress
-	done                              bool // committed: keep what was written
+	dir, tmp, rawDir, keyPath string
+	stale                     []string // files of an earlier set to retire
+	pr                        *progress
+
+	outs *outputs.Set  // every path the set reads and writes (Options.Outputs or its own)
+	key  *outputs.File // the key of a blind set
 }
 
 // Build renders every variant and the bypass from one dry take, matches
 // their loudness, writes the clips, the sequence file, ab.json and the
 // listening page into opt.OutDir, and for a blind set the key file.
 //
-// Everything is built in a hidden temporary folder beside OutDir and moved
-// into place only when all of it has been written: when OutDir does not
-// exist it appears complete in one rename; otherwise the previous ab.json is
-// removed first, the new files are renamed in one by one, ab.json last, and
-// the files the previous ab.json named that the new set does not reuse are
-// deleted. On any error nothing under OutDir changes. Files in OutDir that
-// an earlier set did not write are left alone.
+// Every path is checked before any work (an outputs.Set: OutDir and the
+// key file not the take, the chain file or a variant's chain file, by
+// device and inode; their folders writable). Everything is built in a
+// hidden work folder and committed, key included, all or none, only when
+// all of it has been written: when OutDir does not exist it appears
+// complete in one rename; otherwise the new files are moved in one by one
+// and the files the previous ab.json named that the new set does not reuse
+// are retired, every replaced file kept until all are in place
+// (outputs.Set.Commit). On any error or cancellation nothing under OutDir
+// or at the key's path changes. Files in OutDir that an earlier set did
+// not write are left alone.
 //
 // The steps: plan (options, take, variants, blind order, sequence), a
-// workspace beside the folder, pass 1 (render every variant, measure every
+// check of every path and a work folder, pass 1 (render every variant, measure every
 // clip), the loudness match, pass 2 (gain and write every clip), the set's
 // description with its sequence file and plots, the key, ab.json and the
 // page, and the commit.
@@ -60,7 +67,7 @@ func Build(ctx context.Context, opt Options) (*Set, error) {
 	if err := b.workspace(); err != nil {
 		return nil, err
 	}
-	defer b.cleanup()
+	defer b.outs.Abort()
 	if err := b.renderAll(ctx); err != nil {
 		return nil, err
 	}
@@ -166,9 +173,10 @@ func (b *builder) workspace() error {
 		names = append(names, j.clip.File)
 	}
 	for _, n := range names {
-		for _, keep := range []string{o.Dry, o.ChainPath} {
-			if same, _ := wavio.SameFile(keep, filepath.Join(dir, n)); same && keep != "" {
-				return fmt.Errorf("%s: the set would write over %s; choose another output folder", filepath.Join(o.OutDir, n), keep)
+		for _, in := range []struct{ role, path string }{{"input", o.Dry}, {"chain", o.ChainPath}} {
+			if same, _ := wavio.SameFile(in.path, filepath.Join(dir, n)); same && in.path != "" {
+				return &outputs.PathError{Role: "output", Path: filepath.Join(o.OutDir, n), Kind: outputs.ErrSameAsInput,
+					Other: in.role, OtherPath: in.path, Detail: "the set would write over it; choose another output folder"}
 			}
 		}
 	}
@@ -177,15 +185,31 @@ func (b *builder) workspace() error {
 			return err
 		}
 	}
-	parent := filepath.Dir(dir)
-	if err := os.MkdirAll(parent, 0o755); err != nil {
+	b.outs = o.Outputs
+	if b.outs == nil {
+		b.outs = outputs.New()
+	}
+	b.outs.Input("input", o.Dry)
+	if o.ChainPath != "" {
+		b.outs.Input("chain", o.ChainPath)
+	}
+	for _, j := range b.jobs {
+		if j.clip.ChainFile != "" {
+			b.outs.Input("variant", j.clip.ChainFile)
+		}
+	}
+	out := b.outs.Dir("output", o.OutDir)
+	if o.Blind {
+		b.key = b.outs.File("key", b.keyPath)
+	}
+	if err := b.outs.Check(); err != nil {
 		return err
 	}
-	if b.tmp, err = os.MkdirTemp(parent, "."+filepath.Base(dir)+".abtmp-*"); err != nil {
-		return err
-	}
+	out.Replace(b.stale...)
+	b.tmp = out.Work()
 	b.rawDir = filepath.Join(b.tmp, ".raw")
 	if err := os.Mkdir(b.rawDir, 0o700); err != nil {
+		b.outs.Abort()
 		return err
 	}
 	renders := 0
@@ -200,20 +224,6 @@ func (b *builder) workspace() error {
 	}
 	b.pr = &progress{f: o.Progress, total: b.take.Frames*int64(renders+len(b.jobs)) + seqFrames}
 	return nil
-}
-
-// cleanup removes the workspace and the key's temporary file unless the
-// set was committed.
-func (b *builder) cleanup() {
-	if b.done {
-		return
-	}
-	if b.tmp != "" {
-		os.RemoveAll(b.tmp)
-	}
-	if b.keyTmp != "" {
-		os.Remove(b.keyTmp)
-	}
 }
 
 // each runs fn for every job on the worker pool; an interruption is
@@ -336,6 +346,14 @@ func (b *builder) describe(common float64, limited bool) *Set {
 		}
 		set.Warnings.Merge(report.Combine(labels, lists))
 	}
+	var overs int64
+	var readWarn []string
+	for _, j := range b.jobs {
+		if !j.bypass {
+			overs, readWarn = max(overs, j.overs), j.readWarn
+		}
+	}
+	set.Warnings.Merge(report.InputNotes(o.Dry, overs, readWarn))
 	for _, j := range b.jobs {
 		if j.stats.NonConverged > 0 {
 			set.Warnings.Add("%s: %d samples did not converge", j.clip.Shown(), j.stats.NonConverged)
@@ -399,7 +417,7 @@ func (b *builder) writeDescriptions(ctx context.Context, set *Set) error {
 		if err != nil {
 			return err
 		}
-		if b.keyTmp, err = writeTemp(filepath.Dir(b.keyPath), "."+filepath.Base(b.keyPath)+".*.tmp", append(kb, '\n')); err != nil {
+		if _, err := b.key.Write(append(kb, '\n')); err != nil {
 			return err
 		}
 		set.KeyFile, set.Key = b.keyPath, key
@@ -424,17 +442,11 @@ func (b *builder) writeDescriptions(ctx context.Context, set *Set) error {
 	return nil
 }
 
-// commit moves the set into its folder and the key into place.
+// commit moves the set into its folder and the key into place, all or
+// none (outputs.Set.Commit).
 func (b *builder) commit(set *Set) error {
-	if err := commit(b.tmp, b.dir, b.stale); err != nil {
+	if err := b.outs.Commit(); err != nil {
 		return err
-	}
-	b.done = true
-	if b.keyTmp != "" {
-		if err := os.Rename(b.keyTmp, b.keyPath); err != nil {
-			os.Remove(b.keyTmp)
-			return fmt.Errorf("the set is in %s but its key could not be written: %w", b.o.OutDir, err)
-		}
 	}
 	b.pr.finish()
 	return nil

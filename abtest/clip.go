@@ -29,13 +29,18 @@ type job struct {
 	clip   Clip
 	// chainWarnings are the variant's prepared chain's (bias.Warnings).
 	chainWarnings report.Warnings
+
+	// What the reader of the take let pass (pass 1 of a rendered clip):
+	// float samples beyond full scale, and header faults it tolerated.
+	overs    int64
+	readWarn []string
 }
 
 // render runs the variant's chain over the dry take into a float64 WAV and
 // measures it.
 func (j *job) render(ctx context.Context, dry string, oversample int, pr *progress) error {
 	fail := func(err error) error { return &VariantError{Label: j.label, Err: err} }
-	eng, err := engine.Prepare(j.ch, oversample)
+	eng, err := engine.PrepareContext(ctx, j.ch, oversample)
 	if err != nil {
 		return fail(err)
 	}
@@ -92,6 +97,7 @@ func (j *job) render(ctx context.Context, dry string, oversample int, pr *progre
 	if err := meter.Err(); err != nil {
 		return fail(err)
 	}
+	j.overs, j.readWarn = in.Overs(), in.Warnings()
 	j.stats.Add(info.Stats)
 	j.before = analyze.LevelsOf(meter)
 	sv := report.SolverOf(j.stats)

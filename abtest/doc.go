@@ -115,14 +115,17 @@
 //
 // # Writing atomically
 //
-// Build writes everything into a hidden folder created beside the output
-// folder and moves it into place only when every file is complete: a new
-// folder appears in one rename; into an existing folder (allowed with
-// Options.Force when it holds earlier clips) the files are renamed one by
-// one with the old ab.json removed first and the new one moved last, and the
-// earlier set's other files are then removed. On an error or interruption the
-// hidden folder is deleted and the output folder is as it was. The key file
-// is written under a temporary name and renamed last.
+// Build declares every path it reads and writes in one outputs.Set (the
+// take, the chain files, the output folder, the key) and checks it before
+// any work: no output may be an input, by device and inode. It writes
+// everything into the set's hidden work folder (beside a new output folder,
+// inside an existing one) and commits only when every file is complete,
+// the key with it, all or none: a new folder appears in one rename; into
+// an existing folder (allowed with Options.Force when it holds earlier
+// clips) the files are moved one by one, every file they replace kept
+// until all are in place, and the earlier set's other files retired. On an
+// error or interruption the work folder is deleted and the output folder
+// and the key's path are as they were.
 //
 // # References
 //

@@ -3,7 +3,6 @@ package abtest
 import (
 	"encoding/json"
 	"errors"
-	"fmt"
 	"os"
 	"path/filepath"
 	"sort"
@@ -156,59 +155,4 @@ func checkKeyPath(p, dir string, force bool) (string, error) {
 		}
 	}
 	return abs, nil
-}
-
-// writeTemp writes b to a new temporary file in dir and returns its name.
-func writeTemp(dir, pattern string, b []byte) (string, error) {
-	f, err := os.CreateTemp(dir, pattern)
-	if err != nil {
-		return "", err
-	}
-	if _, err := f.Write(b); err != nil {
-		f.Close()
-		os.Remove(f.Name())
-		return "", err
-	}
-	if err := f.Close(); err != nil {
-		os.Remove(f.Name())
-		return "", err
-	}
-	return f.Name(), nil
-}
-
-// commit moves the finished set from tmp into dir (see Build).
-func commit(tmp, dir string, stale []string) error {
-	if err := os.Chmod(tmp, 0o755); err != nil {
-		return err
-	}
-	if _, err := os.Stat(dir); errors.Is(err, os.ErrNotExist) {
-		return os.Rename(tmp, dir)
-	}
-	entries, err := os.ReadDir(tmp)
-	if err != nil {
-		return err
-	}
-	if err := os.Remove(filepath.Join(dir, ManifestFile)); err != nil && !errors.Is(err, os.ErrNotExist) {
-		return err
-	}
-	written := map[string]bool{}
-	for _, e := range entries {
-		if e.Name() == ManifestFile {
-			continue
-		}
-		if err := os.Rename(filepath.Join(tmp, e.Name()), filepath.Join(dir, e.Name())); err != nil {
-			return fmt.Errorf("moving the set into %s: %w", dir, err)
-		}
-		written[e.Name()] = true
-	}
-	if err := os.Rename(filepath.Join(tmp, ManifestFile), filepath.Join(dir, ManifestFile)); err != nil {
-		return fmt.Errorf("moving the set into %s: %w", dir, err)
-	}
-	written[ManifestFile] = true
-	for _, s := range stale {
-		if !written[s] {
-			os.Remove(filepath.Join(dir, s))
-		}
-	}
-	return os.Remove(tmp)
 }

@@ -366,7 +366,7 @@ func TestPicturesInterrupted(t *testing.T) {
 	if err := b.workspace(); err != nil {
 		t.Fatal(err)
 	}
-	defer b.cleanup()
+	defer b.outs.Abort()
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	err = b.addPictures(ctx, &Set{Warnings: nil})

@@ -5,6 +5,7 @@ import (
 
 	"renderchain/analyze"
 	"renderchain/chains"
+	"renderchain/outputs"
 	"renderchain/report"
 )
 
@@ -61,6 +62,12 @@ type Options struct {
 	// Progress, if set, is called now and then with work done and total
 	// (in frames), never from two goroutines at once.
 	Progress func(done, total int64)
+
+	// Outputs, if set, is the caller's outputs.Set, not yet checked: Build
+	// declares the take, the chain files, OutDir (role "output") and the key
+	// (role "key") in it, checks it before any work and commits it; the
+	// caller can then read its Changed. Nil: Build uses a set of its own.
+	Outputs *outputs.Set
 }
 
 // Set describes a written A/B set; it is what ab.json holds. In a blind

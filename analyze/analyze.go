@@ -115,6 +115,7 @@ func File(ctx context.Context, path string) (*Report, error) {
 		Notes: []string{},
 	}
 	r.explain(levels.Peak(), ltas)
+	r.Notes = append(r.Notes, report.InputNotes(path, f.Overs(), f.Warnings())...)
 	for _, b := range ltas.Bands() {
 		r.Bands = append(r.Bands, BandLevel{Hz: b.Nominal, CentreHz: math.Round(b.Centre*1000) / 1000, DB: report.Level(b.Level)})
 	}

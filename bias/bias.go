@@ -111,8 +111,12 @@ type Bias struct {
 
 // Solve prepares the chain (engine.Prepare: build, DC operating point)
 // and reads its operating point.
-func Solve(ch *chains.Chain) (*Bias, error) {
-	p, err := engine.Prepare(ch, 0)
+func Solve(ch *chains.Chain) (*Bias, error) { return SolveContext(context.Background(), ch) }
+
+// SolveContext is Solve that stops when ctx is done (engine.PrepareContext:
+// the DC solve checks it at every Newton iteration).
+func SolveContext(ctx context.Context, ch *chains.Chain) (*Bias, error) {
+	p, err := engine.PrepareContext(ctx, ch, 0)
 	if err != nil {
 		return nil, err
 	}

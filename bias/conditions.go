@@ -1,6 +1,8 @@
 package bias
 
 import (
+	"context"
+
 	"renderchain/chains"
 )
 
@@ -10,6 +12,12 @@ import (
 // models.ParseTemperatures); an empty list stands for the chain's own
 // value. Rows come supply-major in the order given.
 func Sweep(ch *chains.Chain, supplies, temps []float64) ([]*Bias, error) {
+	return SweepContext(context.Background(), ch, supplies, temps)
+}
+
+// SweepContext is Sweep that stops when ctx is done, between rows and
+// inside each row's DC solve.
+func SweepContext(ctx context.Context, ch *chains.Chain, supplies, temps []float64) ([]*Bias, error) {
 	if len(supplies) == 0 {
 		supplies = []float64{ch.Supply}
 	}
@@ -21,7 +29,7 @@ func Sweep(ch *chains.Chain, supplies, temps []float64) ([]*Bias, error) {
 	for _, v := range supplies {
 		for _, t := range temps {
 			work.Supply, work.Temperature = v, t
-			b, err := Solve(work)
+			b, err := SolveContext(ctx, work)
 			if err != nil {
 				return nil, err
 			}

@@ -197,7 +197,7 @@ func SolveSymmetric(ctx context.Context, ch *chains.Chain, adj *Adjuster, opt Sy
 		}
 	}
 	st.Knobs[adj.Knob] = res.Rotation
-	if res.Bias, err = Solve(work); err != nil {
+	if res.Bias, err = SolveContext(ctx, work); err != nil {
 		return nil, err
 	}
 	res.Lower, res.Upper, res.HasCW = adj.Sections(res.Rotation)
@@ -223,7 +223,7 @@ func defaultProbe(ch *chains.Chain, adj *Adjuster) string {
 // settled record.
 func measureSwing(ctx context.Context, ch *chains.Chain, probe string, opt SymmetricOptions) (Swing, error) {
 	nan := Swing{Asymmetry: math.NaN(), THD: math.NaN()}
-	p, err := engine.Prepare(ch, opt.Oversample)
+	p, err := engine.PrepareContext(ctx, ch, opt.Oversample)
 	if err != nil {
 		return nan, err
 	}

@@ -1,6 +1,7 @@
 package bias
 
 import (
+	"context"
 	"maps"
 	"math"
 	"slices"
@@ -155,6 +156,13 @@ func reachTolerance(p *Probe, target float64) float64 {
 // approach (refined by golden-section search); that is a result, not an
 // error.
 func SolveTarget(ch *chains.Chain, t *Target, adj *Adjuster) (*TargetResult, error) {
+	return SolveTargetContext(context.Background(), ch, t, adj)
+}
+
+// SolveTargetContext is SolveTarget that stops when ctx is done: every
+// operating point it solves checks ctx (SolveContext), and once ctx is
+// done the search returns the context's error.
+func SolveTargetContext(ctx context.Context, ch *chains.Chain, t *Target, adj *Adjuster) (*TargetResult, error) {
 	work := ch.Clone()
 	st := work.Stage(adj.Stage)
 	if st == nil {
@@ -164,8 +172,11 @@ func SolveTarget(ch *chains.Chain, t *Target, adj *Adjuster) (*TargetResult, err
 	var firstErr error
 	eval := func(x float64) (float64, *Bias) {
 		st.Knobs[adj.Knob] = x
+		if ctx.Err() != nil {
+			return math.NaN(), nil
+		}
 		res.Solves++
-		b, err := Solve(work)
+		b, err := SolveContext(ctx, work)
 		if err != nil {
 			if firstErr == nil {
 				firstErr = err
@@ -192,6 +203,9 @@ func SolveTarget(ch *chains.Chain, t *Target, adj *Adjuster) (*TargetResult, err
 			res.Lowest = math.Min(res.Lowest, v)
 			res.Highest = math.Max(res.Highest, v)
 		}
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
 	}
 	if math.IsInf(res.Lowest, 1) {
 		return nil, firstErr
@@ -237,7 +251,13 @@ func SolveTarget(ch *chains.Chain, t *Target, adj *Adjuster) (*TargetResult, err
 			res.Rotation = x
 		}
 	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
 	v, b := eval(res.Rotation)
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
 	if b == nil {
 		return nil, firstErr
 	}

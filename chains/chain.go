@@ -206,6 +206,9 @@ func Parse(name, src string) (*Chain, error) {
 	if len(raw.Stages) == 0 {
 		return nil, &Error{File: name, Msg: "no [[stage]] tables: a chain needs at least one stage"}
 	}
+	if n := len(raw.Stages) + len(ch.Stages); n > MaxStages { // before expanding any template
+		return nil, &LimitError{File: name, What: "number of stages", Value: int64(n), Limit: MaxStages, Unit: "stages"}
+	}
 	if err := ch.parseNets(raw.Nets); err != nil {
 		return nil, err
 	}

@@ -42,6 +42,9 @@ type Flat struct {
 // series) gets models.LeakResistance to ground, as a node reached only
 // by junctions does, and a Note says so.
 func (ch *Chain) Flatten() (*Flat, error) {
+	if err := ch.CheckSize(); err != nil { // the one place: nothing is built or allocated beyond the limits
+		return nil, err
+	}
 	w := ch.Wiring()
 	uses := ch.pinUses(w)
 	f := &Flat{Chain: ch, Wiring: w}

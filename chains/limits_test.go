@@ -217,7 +217,7 @@ func TestCheckSizeHuge(t *testing.T) {
 	if !errors.As(err, &le) || le.What != "number of parts" || le.Value != 100000 {
 		t.Fatalf("err = %v, want the parts limit with 100000", err)
 	}
-	if msg := err.Error(); msg != "series.toml: number of parts: 100000 parts, beyond the limit of 2000 for chain files" {
+	if msg := err.Error(); msg != "series.toml: number of parts: 100000 parts, beyond the limit of 1000 for chain files" {
 		t.Errorf("message %q", msg)
 	}
 }
@@ -225,8 +225,8 @@ func TestCheckSizeHuge(t *testing.T) {
 // Each bound of CheckSize: stages, nodes and matrix memory; a chain just
 // inside the part and node bounds passes.
 func TestCheckSizeBounds(t *testing.T) {
-	if err := resistorChain(1000).CheckSize(); err != nil {
-		t.Errorf("1000 resistors: %v", err)
+	if err := resistorChain(MaxNodes - 4).CheckSize(); err != nil {
+		t.Errorf("%d resistors: %v", MaxNodes-4, err)
 	}
 	many := &Chain{File: "stages.toml"}
 	for i := range MaxStages + 1 {
@@ -235,26 +235,27 @@ func TestCheckSizeBounds(t *testing.T) {
 	if err := many.CheckSize(); !errors.Is(err, ErrLimit) || !strings.Contains(err.Error(), "stages") {
 		t.Errorf("%d stages: %v", MaxStages+1, err)
 	}
-	// 1999 parts on 2000 + 3 nodes: the node bound.
+	// MaxNodes parts in series: MaxNodes − 1 inner nodes + 4 shared + the
+	// stage's out, over the node bound.
 	if err := resistorChain(MaxNodes).CheckSize(); !errors.Is(err, ErrLimit) {
 		t.Errorf("%d parts in series: %v, want a limit", MaxNodes, err)
 	}
-	// 1900 pots, each wiper on its own node: within parts (1901) and nodes
-	// (4 shared + 1900 wipers + the stage's out = 1905), but two sections
-	// each make the matrices too large. By hand: d = 1905 − 1 + 2 = 1906
-	// unknowns, p = 1 + 1 + 2·1900 + 1905 = 5707 ports, so
-	// 8·(2·1906² + 5707² + 1907·5707) = 405 750 160 bytes > 256 MiB.
+	// 990 pots, each wiper on its own node: within parts (991) and nodes
+	// (4 shared + 990 wipers + the stage's out = 995), but two sections
+	// each make the matrices too large. By hand: d = 995 − 1 + 2 = 996
+	// unknowns, p = 1 + 1 + 2·990 + 995 = 2977 ports, so
+	// 8·(2·996² + 2977² + 997·2977) = 110 517 040 bytes > 64 MiB.
 	ch := resistorChain(1)
 	st := ch.Stages[0]
 	st.Knobs["k"] = 0.5
-	for i := range 1900 {
+	for i := range 990 {
 		st.Parts = append(st.Parts, &Part{Ref: fmt.Sprint("VR", i), Kind: Pot, Value: 1e4, Knob: "k",
 			Pins: map[string]string{"ccw": "in", "wiper": fmt.Sprint("w", i), "cw": "gnd"}})
 	}
 	err := ch.CheckSize()
 	var le *LimitError
-	if !errors.As(err, &le) || le.What != "solver matrix memory" || le.Value != 405750160 {
-		t.Errorf("1900 pots: %v, want the memory limit at 405750160 bytes", err)
+	if !errors.As(err, &le) || le.What != "solver matrix memory" || le.Value != 110517040 {
+		t.Errorf("990 pots: %v, want the memory limit at 110517040 bytes", err)
 	}
 }
 

@@ -7,6 +7,7 @@ import (
 	"path"
 	"sort"
 	"strings"
+	"sync"
 
 	"github.com/BurntSushi/toml"
 
@@ -80,8 +81,45 @@ func TemplateNames() []string {
 	return s
 }
 
-// LoadTemplate parses the named built-in template.
+// templateCache holds every built-in template parsed once (they are
+// embedded, so a parse's result never changes): a chain file naming a
+// template in each of many stages costs one parse, not one per stage.
+var templateCache sync.Map // name → *cachedTemplate
+
+type cachedTemplate struct {
+	once sync.Once
+	t    *Template
+	err  error
+}
+
+// LoadTemplate returns the named built-in template, parsed on first use
+// and cached; each call returns its own copy (parts and knobs can be
+// changed without touching the cache).
 func LoadTemplate(name string) (*Template, error) {
+	if _, err := fs.Stat(templateFS, path.Join("templates", name+".toml")); err != nil {
+		return parseTemplate(name) // unknown: its error, and nothing cached
+	}
+	v, _ := templateCache.LoadOrStore(name, &cachedTemplate{})
+	c := v.(*cachedTemplate)
+	c.once.Do(func() { c.t, c.err = parseTemplate(name) })
+	if c.err != nil {
+		if _, ok := c.err.(*Error); ok { // a fresh error: callers fill in File and Where
+			e := *c.err.(*Error)
+			return nil, &e
+		}
+		return nil, c.err
+	}
+	t := *c.t
+	t.Knobs = append([]KnobInfo(nil), c.t.Knobs...)
+	t.Parts = make([]*Part, len(c.t.Parts))
+	for i, p := range c.t.Parts {
+		t.Parts[i] = clonePart(p)
+	}
+	return &t, nil
+}
+
+// parseTemplate parses the named built-in template.
+func parseTemplate(name string) (*Template, error) {
 	file := "template " + name
 	b, err := templateFS.ReadFile(path.Join("templates", name+".toml"))
 	if err != nil {

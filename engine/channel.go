@@ -18,6 +18,7 @@ type Channel struct {
 	align   *resample.Aligner
 	latency int
 	volts   float64
+	factor  int
 }
 
 // NewChannel compiles a channel watching the chain's output, in digital
@@ -28,6 +29,12 @@ func (p *Prepared) NewChannel(fs float64) (*Channel, error) { return p.Channel(f
 // Node returns) at base rate fs: the output in digital units, any other
 // node in volts.
 func (p *Prepared) Channel(fs float64, node int) (*Channel, error) {
+	return p.channelAt(fs, node, p.Oversample)
+}
+
+// channelAt is Channel at the oversampling factor given (1…16) in place of
+// p.Oversample.
+func (p *Prepared) channelAt(fs float64, node, factor int) (*Channel, error) {
 	if !(fs >= MinRate && fs <= MaxRate) {
 		return nil, fmt.Errorf("base rate %g Hz is outside %d–%d Hz", fs, MinRate, MaxRate)
 	}
@@ -38,13 +45,13 @@ func (p *Prepared) Channel(fs float64, node int) (*Channel, error) {
 	if node == p.Circuit.Output {
 		probe, volts = 0, p.Chain.FullScale // wdf: 0 selects the output
 	}
-	s, err := wdf.Compile(p.Circuit, p.DC, wdf.Options{SampleRate: fs * float64(p.Oversample), Probe: probe})
+	s, err := wdf.Compile(p.Circuit, p.DC, wdf.Options{SampleRate: fs * float64(factor), Probe: probe})
 	if err != nil {
 		return nil, err
 	}
 	s.InputGain = p.Chain.InputPeak
 	s.OutputGain = 1 / volts
-	os, err := resample.NewOversampler(p.Oversample, fs, s, MaxBlock)
+	os, err := resample.NewOversampler(factor, fs, s, MaxBlock)
 	if err != nil {
 		return nil, err
 	}
@@ -52,7 +59,7 @@ func (p *Prepared) Channel(fs float64, node int) (*Channel, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Channel{solver: s, align: al, latency: os.Latency(), volts: volts}, nil
+	return &Channel{solver: s, align: al, latency: os.Latency(), volts: volts, factor: factor}, nil
 }
 
 // Process renders src into dst and returns how many output samples it
@@ -72,6 +79,9 @@ func (c *Channel) Latency() int { return c.latency }
 // VoltsPerUnit converts output samples to volts: Chain.FullScale for the
 // output, 1 for any other node.
 func (c *Channel) VoltsPerUnit() float64 { return c.volts }
+
+// Oversample is the channel's oversampling factor.
+func (c *Channel) Oversample() int { return c.factor }
 
 // Stats returns the solver's Newton statistics.
 func (c *Channel) Stats() wdf.Stats { return c.solver.Stats() }

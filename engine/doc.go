@@ -62,6 +62,31 @@
 // and, when that stays quiet, the node the growing mode moves most
 // (mna.Mode).
 //
+// # The oversampling factor of a render
+//
+// The analyses run at DefaultOversample (4×) unless told otherwise. A
+// render with no factor given chooses one for the chain and rate
+// (ChooseOversample): the lowest factor whose bilinear frequency warping
+// keeps the small-signal response within WarpTolerance (0.1 dB of its
+// peak) up to 20 kHz, and, for a circuit with devices, at which four probe
+// tones near 1.3 kHz at AliasProbeLevel (0.3 of full scale) keep their
+// aliases AliasTarget (50 dB) under the harmonics. AliasTone and
+// AliasRatio measure the aliasing of any test sine.
+//
+// # One channel on several cores
+//
+// StreamWith cuts a long mono stream into segments (PlanSegments) rendered
+// at once, each but the first by a channel fresh at the operating point
+// started a warm-up before its start: WarmupMargin (4) times the samples
+// after which the slowest mode of the circuit linearised at its operating
+// point has decayed to WarmupRatio (1e-7; wdf.Solver.WarmupSamples), plus
+// the filters' delay twice over, whose output is dropped. Beyond MaxWarmup
+// (5 s), for a mode that does not decay, or for a stream under
+// MinSegmentWarmups warm-ups a segment, the render is serial. Where two
+// segments meet, the later one's warm-up and the earlier one's output are
+// compared (StreamInfo.JoinError): how far the later one was from the
+// serial render when its output began.
+//
 // # Cancellation
 //
 // Every loop checks its context between blocks of MaxBlock samples.

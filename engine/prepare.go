@@ -1,6 +1,8 @@
 package engine
 
 import (
+	"context"
+	"errors"
 	"fmt"
 	"strconv"
 
@@ -11,9 +13,20 @@ import (
 	"renderchain/report"
 )
 
-// DefaultOversample is the oversampling factor when neither the caller nor
-// the chain file names one.
+// DefaultOversample is the oversampling factor of the analyses (sine
+// measurements, sweeps, trials, the symmetric-clip search) when neither
+// the caller nor the chain file names one. A render of a file in that case
+// chooses its own factor per chain and rate (ChooseOversample).
 const DefaultOversample = 4
+
+// Where a prepared chain's oversampling factor came from
+// (Prepared.OversampleFrom, FactorChoice.From).
+const (
+	FactorRequested = "requested" // the caller's (a command's --oversample)
+	FactorChain     = "chain"     // the chain's own oversample key (file or --set oversample=)
+	FactorDefault   = "default"   // DefaultOversample
+	FactorAuto      = "auto"      // chosen for the chain and rate (ChooseOversample)
+)
 
 // Base-rate limits of a channel: 8 kHz (the slowest analysis rate a bench
 // measurement may ask for) to 192 kHz.
@@ -31,17 +44,24 @@ const MaxBlock = 4096
 // at most resample.MaxFactor) is checked; a factor out of range is a
 // *models.FieldError on the field "oversample".
 func Oversample(ch *chains.Chain, requested int) (int, error) {
-	n := requested
+	n, _, err := oversampleFrom(ch, requested)
+	return n, err
+}
+
+// oversampleFrom is Oversample, also saying where the factor came from
+// (FactorRequested, FactorChain or FactorDefault).
+func oversampleFrom(ch *chains.Chain, requested int) (int, string, error) {
+	n, from := requested, FactorRequested
 	if n == 0 && ch != nil {
-		n = ch.Oversample
+		n, from = ch.Oversample, FactorChain
 	}
 	if n == 0 {
-		n = DefaultOversample
+		n, from = DefaultOversample, FactorDefault
 	}
 	if err := models.OversampleRange.Check(float64(n)); err != nil || n > resample.MaxFactor {
-		return 0, models.Fieldf("oversample", strconv.Itoa(n), "outside 1…%d", min(int(models.OversampleRange.Hi), resample.MaxFactor))
+		return 0, "", models.Fieldf("oversample", strconv.Itoa(n), "outside 1…%d", min(int(models.OversampleRange.Hi), resample.MaxFactor))
 	}
-	return n, nil
+	return n, from, nil
 }
 
 // Prepared is a chain ready to run: flattened to one circuit, its DC
@@ -53,6 +73,10 @@ type Prepared struct {
 	DC         *mna.OperatingPoint
 	Wiring     *chains.Wiring
 	Oversample int
+	// OversampleFrom says where Oversample came from: FactorRequested,
+	// FactorChain or FactorDefault. Only a default factor gives way to a
+	// render's automatic choice (ChooseOversample).
+	OversampleFrom string
 	// Findings are the chain's lint findings: the wiring's (Flatten) and
 	// the operating point's (CheckOperatingPoint).
 	Findings chains.Findings
@@ -72,7 +96,19 @@ type Prepared struct {
 // its stability and resolves the oversampling factor (see Oversample; 0
 // takes the chain's or the default).
 func Prepare(ch *chains.Chain, oversample int) (*Prepared, error) {
-	os, err := Oversample(ch, oversample)
+	return PrepareContext(context.Background(), ch, oversample)
+}
+
+// PrepareContext is Prepare that stops when ctx is done: the chain's size
+// is checked before anything is built (chains.Chain.Flatten), and the DC
+// solve checks ctx at every Newton iteration (mna.SolveDCContext). A
+// stopped preparation returns an error wrapping ErrInterrupted and the
+// context's cause.
+func PrepareContext(ctx context.Context, ch *chains.Chain, oversample int) (*Prepared, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, fmt.Errorf("%w (%w)", ErrInterrupted, context.Cause(ctx))
+	}
+	os, from, err := oversampleFrom(ch, oversample)
 	if err != nil {
 		return nil, err
 	}
@@ -81,12 +117,16 @@ func Prepare(ch *chains.Chain, oversample int) (*Prepared, error) {
 		return nil, err
 	}
 	c := flat.Circuit
-	op, err := mna.SolveDC(c, mna.DCOptions{})
+	op, err := mna.SolveDCContext(ctx, c, mna.DCOptions{})
+	var ce *mna.CancelError
+	if errors.As(err, &ce) {
+		return nil, fmt.Errorf("%w (%w)", ErrInterrupted, ce.Cause)
+	}
 	if err != nil {
 		return nil, fmt.Errorf("%s: at %s, %.1f °C: %w", ch.File, models.FormatValue(ch.Supply, "V"), ch.Temperature-models.ZeroCelsius, err)
 	}
 	flat.CheckOperatingPoint(op)
-	p := &Prepared{Chain: ch, Circuit: c, DC: op, Wiring: flat.Wiring, Oversample: os,
+	p := &Prepared{Chain: ch, Circuit: c, DC: op, Wiring: flat.Wiring, Oversample: os, OversampleFrom: from,
 		Findings: flat.Findings, Warnings: report.Warnings{}}
 	p.Warnings.Merge(flat.Findings.Warnings())
 	p.checkStability()

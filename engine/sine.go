@@ -132,6 +132,7 @@ type SineOptions struct {
 	Amplitude  float64 // V peak at the chain's source, before any source impedance
 	SampleRate float64 // base rate, Hz
 	Node       int     // the node watched (0: the chain's output)
+	Oversample int     // 1…16; 0: the prepared chain's factor
 	// MinRecord is the shortest record in seconds (default 0.1 s);
 	// MaxSettle bounds the wait in seconds (default 3 s); Tolerance is the
 	// settle rule's relative change (default 1e-5).
@@ -171,7 +172,11 @@ func (p *Prepared) Sine(ctx context.Context, opt SineOptions) (*SineRecord, erro
 	if node == 0 {
 		node = p.Circuit.Output
 	}
-	ch, err := p.Channel(fs, node)
+	factor := opt.Oversample
+	if factor == 0 {
+		factor = p.Oversample
+	}
+	ch, err := p.channelAt(fs, node, factor)
 	if err != nil {
 		return nil, err
 	}

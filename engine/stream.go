@@ -27,11 +27,17 @@ var ErrInterrupted = errors.New("interrupted")
 // of input as read. progress, when not nil, gets the input frames done.
 // Memory is constant: blocks of MaxBlock frames.
 func (p *Prepared) Stream(ctx context.Context, src Source, fs float64, nc int, in, sink func([]float64) error, progress func(int64)) (StreamInfo, error) {
-	var st StreamInfo
+	return p.stream(ctx, src, fs, nc, p.Oversample, StreamOptions{In: in, Sink: sink, Progress: progress})
+}
+
+// stream is the serial render of Stream and StreamWith at the factor given.
+func (p *Prepared) stream(ctx context.Context, src Source, fs float64, nc, factor int, opt StreamOptions) (StreamInfo, error) {
+	st := StreamInfo{Plan: SegmentPlan{Segments: 1}}
+	in, sink, progress := opt.In, opt.Sink, opt.Progress
 	chans := make([]*Channel, nc)
 	for c := range chans {
 		var err error
-		if chans[c], err = p.NewChannel(fs); err != nil {
+		if chans[c], err = p.channelAt(fs, p.Circuit.Output, factor); err != nil {
 			return st, err
 		}
 	}
@@ -125,9 +131,17 @@ func processChannels(chans []*Channel, out, in [][]float64, frames int, got []in
 }
 
 // StreamInfo describes a finished Stream: the channels' summed Newton
-// statistics and the size of the compiled circuit.
+// statistics, the size of the compiled circuit and how the work was cut
+// (Plan.Segments 1: serial).
 type StreamInfo struct {
 	Stats          wdf.Stats
 	States         int // reactive states
 	NonlinearPorts int // device ports at the root
+	Plan           SegmentPlan
+	// JoinError is, for a segmented stream, the largest difference between
+	// a segment's warm-up and the previous segment's output over the last
+	// frames (up to 256) before the segment's start: an estimate of how
+	// far the kept output can be from the serial render's at the join,
+	// to hold under JoinTolerance. 0 for a serial stream.
+	JoinError float64
 }

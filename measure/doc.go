@@ -99,6 +99,22 @@
 // differs from SmallSignal by that warp (0.08 dB at 10 kHz for a first-
 // order low-pass at 1.6 kHz with 192 kHz inside).
 //
+// # Aliasing
+//
+// Options.Alias (command: measure --alias, --alias-factors) adds the
+// signal-to-alias ratio of the test sine (Result.Alias): the sine is
+// rendered again at each factor asked, as its own job on the plan's pool,
+// and the settled coherent record's power on the harmonic lines is set
+// against the power in every other bin but DC (spectrum.SignalToAlias).
+// A nonlinear circuit driven by a sine makes only harmonics; those above
+// the internal Nyquist frequency fold back, between the harmonics, where
+// the ratio counts them. A linear circuit has no alias: its ratio stays
+// above the analysis floor. A tone whose folded lines would land on its
+// own harmonics (a simple fraction of the rate, such as 1 kHz at 48 kHz)
+// is moved to a neighbour that shows them (engine.AliasTone), and the
+// result says so. The ratio counts anything off the lines, so an unsettled
+// record or a circuit that oscillates reads low.
+//
 // # Plots
 //
 // Report.Figure, Report.ScopeFigures and ResponseReport.Figure build

@@ -82,6 +82,11 @@ func (m *Result) writeDetail(w io.Writer, chain string) error {
 	if _, err := io.WriteString(w, b.String()); err != nil {
 		return err
 	}
+	if m.Alias != nil {
+		if err := m.Alias.writeDetail(w); err != nil {
+			return err
+		}
+	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintln(tw, "  order\tfrequency\tlevel dBV\tdBc\t%\tphase °\t")
 	for i, h := range append([]Line{m.Fundamental}, m.Harmonics...) {
@@ -133,6 +138,10 @@ func (r *Report) writeRows(w io.Writer) error {
 		}
 	}
 	head += "output dBV\tgain dB\tTHD %\tTHD+N %\tH2 dBc\tH3 dBc\teven/odd dB\tDC V\tpeaks flat\tfile clips\tsettled\t"
+	aliasCols := r.aliasColumns()
+	for _, f := range aliasCols {
+		head += fmt.Sprintf("alias %d× dB\t", f)
+	}
 	fmt.Fprintln(tw, head)
 	for _, m := range r.Measurements {
 		row := "  "
@@ -160,6 +169,13 @@ func (r *Report) writeRows(w io.Writer) error {
 			report.AtLeast(float64(m.THDPercent), pct, "%.4g"), report.AtLeast(float64(m.THDNPercent), pct, "%.4g"),
 			report.AtLeast(harmonicDBc(m, 2), fdb, "%.1f"), report.AtLeast(harmonicDBc(m, 3), fdb, "%.1f"),
 			evenOdd, dc, yesNo(m.Clipping.Clips), m.fileClips(false), yesNo(m.Settle.Settled))
+		for _, f := range aliasCols {
+			cell := "—"
+			if a, ok := m.aliasAt(f); ok {
+				cell = m.Alias.aliasText(a)
+			}
+			row += cell + "\t"
+		}
 		fmt.Fprintln(tw, row)
 	}
 	if err := tw.Flush(); err != nil {
@@ -276,6 +292,10 @@ func (r *Report) WriteCSV(w io.Writer) error {
 	for h := 2; h <= maxOrder; h++ {
 		head = append(head, fmt.Sprintf("h%d_dbc", h))
 	}
+	aliasCols := r.aliasColumns()
+	for _, f := range aliasCols {
+		head = append(head, fmt.Sprintf("signal_to_alias_db_x%d", f))
+	}
 	if err := cw.Write(head); err != nil {
 		return err
 	}
@@ -298,6 +318,14 @@ func (r *Report) WriteCSV(w io.Writer) error {
 			strconv.FormatBool(m.Settle.Settled), g(m.Settle.Seconds)}
 		for h := 2; h <= maxOrder; h++ {
 			rec = append(rec, g(harmonicDBc(m, h)))
+		}
+		for _, f := range aliasCols {
+			a, _ := m.aliasAt(f)
+			v := math.NaN()
+			if m.Alias != nil && a.Oversample == f {
+				v = float64(a.SignalToAliasDB)
+			}
+			rec = append(rec, g(v))
 		}
 		if err := cw.Write(rec); err != nil {
 			return err

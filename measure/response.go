@@ -96,12 +96,13 @@ func checkFreqs(freqs []float64, limit float64, rateText string) error {
 // its small-signal conductances, capacitors and inductors by their
 // admittances): from the source EMF (or opt.Ref) to opt.Probe.
 func SmallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, error) {
-	pts, _, err := smallSignal(ch, freqs, opt)
+	pts, _, err := smallSignal(context.Background(), ch, freqs, opt)
 	return pts, err
 }
 
-// smallSignal is SmallSignal, also returning the prepared chain.
-func smallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, *engine.Prepared, error) {
+// smallSignal is SmallSignal, stopping when ctx is done (in the DC solve)
+// and also returning the prepared chain.
+func smallSignal(ctx context.Context, ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Point, *engine.Prepared, error) {
 	if opt.SampleRate == 0 {
 		opt.SampleRate = DefaultSampleRate
 	}
@@ -113,7 +114,7 @@ func smallSignal(ch *chains.Chain, freqs []float64, opt ResponseOptions) ([]Poin
 	if err := checkFreqs(freqs, internal/2, models.FormatValue(internal, "Hz")+" internal rate"); err != nil {
 		return nil, nil, err
 	}
-	p, err := engine.Prepare(ch, os)
+	p, err := engine.PrepareContext(ctx, ch, os)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -168,7 +169,7 @@ func RunResponse(ctx context.Context, ch *chains.Chain, variants []Variant, freq
 		if err != nil {
 			return nil, err
 		}
-		pts, p, err := smallSignal(c, freqs, opt)
+		pts, p, err := smallSignal(ctx, c, freqs, opt)
 		if err != nil {
 			return nil, err
 		}

@@ -89,25 +89,62 @@ func Run(ctx context.Context, ch *chains.Chain, p Plan) (*Report, error) {
 			jobs = append(jobs, j)
 		}
 	}
+	// The alias figures are jobs of their own on the same pool: one
+	// render per measurement and factor.
+	var ajobs []aliasJob
+	if opt.Alias {
+		for i, j := range jobs {
+			fs, err := j.aliasFactors(ch, opt)
+			if err != nil {
+				return nil, err
+			}
+			for _, f := range fs {
+				ajobs = append(ajobs, aliasJob{job: i, factor: f})
+			}
+		}
+	}
 	results := make([]*Result, len(jobs))
+	aliases := make([]AliasFactor, len(ajobs))
+	total := len(jobs) + len(ajobs)
 	var done atomic.Int64
 	var mu sync.Mutex
-	err := parallel.For(ctx, len(jobs), p.Workers, func(ctx context.Context, i int) error {
-		r, err := jobs[i].run(ctx, ch, p, opt)
-		if err != nil {
-			return err
+	err := parallel.For(ctx, total, p.Workers, func(ctx context.Context, i int) error {
+		if i < len(jobs) {
+			r, err := jobs[i].run(ctx, ch, p, opt)
+			if err != nil {
+				return err
+			}
+			results[i] = r
+		} else {
+			a := ajobs[i-len(jobs)]
+			r, err := jobs[a.job].alias(ctx, ch, p.Freq, a.factor, opt)
+			if err != nil {
+				return err
+			}
+			aliases[i-len(jobs)] = r
 		}
-		results[i] = r
 		if p.Progress != nil {
 			n := int(done.Add(1))
 			mu.Lock()
-			p.Progress(n, len(jobs))
+			p.Progress(n, total)
 			mu.Unlock()
 		}
 		return nil
 	})
 	if err != nil {
 		return nil, err
+	}
+	if opt.Alias {
+		for i, j := range jobs {
+			results[i].Alias = newAliasResult(p.Freq, j.amp, opt)
+		}
+		for k, a := range ajobs {
+			r := results[a.job]
+			r.Alias.Factors = append(r.Alias.Factors, aliases[k])
+		}
+		for _, r := range results {
+			r.Warnings.Merge(r.Alias.warnings())
+		}
 	}
 	rep := &Report{Chain: ch.Name, ChainFile: ch.File, Sweep: p.Sweep, Measurements: results, Knobs: Knobs(ch)}
 	rep.Warnings = rep.combinedWarnings()
@@ -116,10 +153,7 @@ func Run(ctx context.Context, ch *chains.Chain, p Plan) (*Report, error) {
 
 // run measures one job: the variant, the sweep step's override or level.
 func (j job) run(ctx context.Context, ch *chains.Chain, p Plan, opt Options) (*Result, error) {
-	c, err := j.variant.Apply(ch)
-	if err == nil && j.set != "" {
-		err = c.Set(j.set)
-	}
+	c, err := j.chain(ch)
 	if err != nil {
 		return nil, err
 	}

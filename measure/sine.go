@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"slices"
 
 	"gonum.org/v1/gonum/dsp/fourier"
 	"gonum.org/v1/gonum/dsp/window"
@@ -72,6 +73,11 @@ type Options struct {
 	// Scope keeps a few settled cycles of the source and the probed node
 	// in the Result (Result.Scope), for the scope view.
 	Scope bool
+	// Alias adds the aliasing of the test sine (Result.Alias), from its
+	// own render at each of AliasFactors (1…16; empty: the
+	// measurement's factor). Run fills it; Sine alone does not.
+	Alias        bool
+	AliasFactors []int
 }
 
 func (o Options) withDefaults() Options {
@@ -96,6 +102,9 @@ func (o Options) withDefaults() Options {
 	if o.MinRecord == 0 {
 		o.MinRecord = DefaultMinRecord
 	}
+	if len(o.AliasFactors) > 0 {
+		o.AliasFactors = slices.Compact(slices.Sorted(slices.Values(o.AliasFactors)))
+	}
 	return o
 }
 
@@ -116,7 +125,7 @@ func (o Options) check() error {
 	case !(o.BandLow >= 0 && o.BandHigh > o.BandLow) || math.IsInf(o.BandHigh, 0):
 		return models.Fieldf("thdn_band", fmt.Sprintf("%g..%g Hz", o.BandLow, o.BandHigh), "needs 0 ≤ low < high")
 	}
-	return nil
+	return checkAliasFactors(o.AliasFactors)
 }
 
 // checkSignal bounds the test sine: MinFrequency ≤ freq < fs/2 and an
@@ -255,6 +264,8 @@ type Result struct {
 	Spectrum *Spectrum `json:"-"`
 	// Scope is kept when Options.Scope is set.
 	Scope *Scope `json:"-"`
+	// Alias holds the aliasing figures when Options.Alias is set.
+	Alias *AliasResult `json:"alias,omitempty"`
 }
 
 // Sine measures the chain's response to a sine of freq Hz and amplitude
@@ -269,7 +280,7 @@ func Sine(ctx context.Context, ch *chains.Chain, freq, amplitude float64, opt Op
 	if err := checkSignal(freq, amplitude, opt.SampleRate); err != nil {
 		return nil, err
 	}
-	p, err := engine.Prepare(ch, opt.Oversample)
+	p, err := engine.PrepareContext(ctx, ch, opt.Oversample)
 	if err != nil {
 		return nil, err
 	}

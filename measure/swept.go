@@ -243,7 +243,7 @@ func Swept(ctx context.Context, ch *chains.Chain, freqs []float64, opt SweptOpti
 		return nil, nil, err
 	}
 	d := designSweep(freqs, opt)
-	p, err := engine.Prepare(ch, opt.Oversample)
+	p, err := engine.PrepareContext(ctx, ch, opt.Oversample)
 	if err != nil {
 		return nil, nil, err
 	}

@@ -1,6 +1,7 @@
 package parts
 
 import (
+	"context"
 	"encoding/csv"
 	"io"
 	"math"
@@ -86,7 +87,12 @@ type BOM struct {
 // E24 values, the tolerance rule's figure, its idle voltage and
 // dissipation from the DC operating point, and the rating hints.
 func PartsList(ch *chains.Chain, allStages bool) (*BOM, error) {
-	b, err := bias.Solve(ch)
+	return PartsListContext(context.Background(), ch, allStages)
+}
+
+// PartsListContext is PartsList whose DC solve stops when ctx is done.
+func PartsListContext(ctx context.Context, ch *chains.Chain, allStages bool) (*BOM, error) {
+	b, err := bias.SolveContext(ctx, ch)
 	if err != nil {
 		return nil, err
 	}

@@ -76,7 +76,7 @@ func measureTrial(ctx context.Context, ch *chains.Chain, opt *SpreadOptions, nam
 	var b *bias.Bias
 	rotation := math.NaN()
 	if opt.Retrim != nil {
-		tr, err := bias.SolveTarget(ch, opt.Retrim, opt.RetrimAdjust)
+		tr, err := bias.SolveTargetContext(ctx, ch, opt.Retrim, opt.RetrimAdjust)
 		if err != nil {
 			return nil, err
 		}
@@ -84,7 +84,7 @@ func measureTrial(ctx context.Context, ch *chains.Chain, opt *SpreadOptions, nam
 		b, m.trimmed, rotation = tr.Bias, tr.Reached, tr.Rotation
 	} else {
 		var err error
-		if b, err = bias.Solve(ch); err != nil {
+		if b, err = bias.SolveContext(ctx, ch); err != nil {
 			return nil, err
 		}
 	}

@@ -3,13 +3,13 @@ package render
 import (
 	"context"
 	"fmt"
-	"os"
 	"path/filepath"
 
 	"renderchain/chains"
 	"renderchain/dsp/synth"
 	"renderchain/dsp/wavio"
 	"renderchain/engine"
+	"renderchain/outputs"
 	"renderchain/parallel"
 )
 
@@ -32,17 +32,37 @@ var DemoSettings = []struct {
 
 // Demo synthesizes the dry phrase, renders it through chains/demo.toml at
 // three fuzz settings and through the pickup and amplifier alone (the
-// bypassed pedal), and writes the WAV files and JSON reports into dir.
-// Renders run in parallel, at most workers at a time (0: one per core).
+// bypassed pedal), and writes the WAV files and JSON reports into dir, all
+// of them or none: a one-folder outputs.Set, checked before any work,
+// built in a hidden folder and moved in when complete (DemoInto). Renders
+// run in parallel, at most workers at a time (0: one per core).
 func Demo(ctx context.Context, dir string, workers int) ([]DemoTake, error) {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
+	set := outputs.New()
+	d := set.Dir("output", dir)
+	if err := set.Check(); err != nil {
 		return nil, err
 	}
+	defer set.Abort()
+	takes, err := DemoInto(ctx, d, workers)
+	if err != nil {
+		return nil, err
+	}
+	if err := set.Commit(); err != nil {
+		return nil, err
+	}
+	return takes, nil
+}
+
+// DemoInto is Demo writing into d, a folder of an outputs.Set the caller
+// has checked and commits (or aborts). The reports name the files where
+// they will be after the commit, under d.Path().
+func DemoInto(ctx context.Context, d *outputs.Dir, workers int) ([]DemoTake, error) {
+	work := d.Work()
 	phrase, err := synth.DemoPhrase(DemoRate, 1)
 	if err != nil {
 		return nil, err
 	}
-	dry := filepath.Join(dir, "dry.wav")
+	dry := filepath.Join(work, "dry.wav")
 	if err := wavio.WriteFile(dry, wavio.Format{SampleRate: DemoRate, Channels: 1, BitDepth: 24}, phrase); err != nil {
 		return nil, err
 	}
@@ -74,18 +94,21 @@ func Demo(ctx context.Context, dir string, workers int) ([]DemoTake, error) {
 	}
 	err = parallel.For(ctx, len(jobs), workers, func(ctx context.Context, i int) error {
 		j := &jobs[i]
-		eng, err := engine.Prepare(j.ch, 0)
+		eng, err := engine.PrepareContext(ctx, j.ch, 0)
 		if err != nil {
 			return fmt.Errorf("demo %s: %w", j.take.Name, err)
 		}
 		j.take.File = j.take.Name + ".wav"
-		rep, err := RenderFile(ctx, eng, dry, filepath.Join(dir, j.take.File), FileOptions{})
+		// The takes share the pool: each renders on one core.
+		rep, err := RenderFile(ctx, eng, dry, filepath.Join(work, j.take.File), FileOptions{Workers: 1})
 		if err != nil {
 			return fmt.Errorf("demo %s: %w", j.take.Name, err)
 		}
+		rep.Input.File = filepath.Join(d.Path(), "dry.wav")
+		rep.Output.File = filepath.Join(d.Path(), j.take.File)
 		j.take.Report = rep
 		j.take.ReportFile = j.take.Name + ".json"
-		if err := writeJSONFile(filepath.Join(dir, j.take.ReportFile), rep); err != nil {
+		if err := writeJSONFile(filepath.Join(work, j.take.ReportFile), rep); err != nil {
 			return fmt.Errorf("demo %s: %w", j.take.Name, err)
 		}
 		return nil

@@ -11,6 +11,7 @@ import (
 	"renderchain/dsp/wavio"
 	"renderchain/engine"
 	"renderchain/models"
+	"renderchain/outputs"
 	"renderchain/report"
 )
 
@@ -41,6 +42,10 @@ func OutputFormat(name string, rate, channels int) (wavio.Format, error) {
 // FileOptions tune RenderFile.
 type FileOptions struct {
 	Format string // pcm24 (default), pcm16, float32
+	// Workers bounds the cores a mono render is cut across
+	// (engine.PlanSegments): 0 one per core, 1 serial. A caller that runs
+	// several renders at once on a pool passes 1.
+	Workers int
 	// Progress, if set, is called now and then with frames done and total.
 	Progress func(done, total int64)
 }
@@ -76,13 +81,47 @@ func CheckInput(path string) (*wavio.File, error) {
 }
 
 // RenderFile renders the WAV file in through the prepared chain into the
-// WAV file out (written under a temporary name and renamed on success; on
-// any error or cancellation nothing is left at out). Memory stays constant
-// whatever the file's length.
+// WAV file out, a one-file outputs.Set: out is checked before any work
+// (not the input by device and inode, not a folder, its folder writable),
+// written under a temporary name and put in place on success; on any error
+// or cancellation nothing is left at out and a file already there is kept.
+// A character device or FIFO at out is written in place. Memory stays
+// bounded whatever the file's length. A command writing more than one
+// file declares them all in one outputs.Set and calls Render.
+//
+// The oversampling factor is the prepared chain's when the caller or the
+// chain named one, else chosen for this chain at the file's rate
+// (engine.ChooseOversample); the report says which and why. A mono file
+// long enough is cut into segments rendered on several cores
+// (engine.StreamWith).
 func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt FileOptions) (*Report, error) {
-	if same, err := wavio.SameFile(in, out); err == nil && same {
-		return nil, models.Fieldf("output", out, "is the input file: refusing to write over it")
+	set := outputs.New()
+	set.Input("input", in)
+	f := set.File("output", out)
+	if err := set.Check(); err != nil {
+		return nil, err
 	}
+	defer set.Abort()
+	rep, err := Render(ctx, p, in, f, opt)
+	if err != nil {
+		return nil, err
+	}
+	if err := set.Commit(); err != nil {
+		return nil, err
+	}
+	return rep, nil
+}
+
+// Render renders the WAV file in through the prepared chain into out, a
+// file of an outputs.Set that the caller has checked and commits when all
+// its outputs are written (or aborts). A target that cannot seek (a FIFO,
+// a character device: out.InPlace) gets a stream whose header needs no
+// patching (wavio.NewStreamWriter; the output has exactly the input's
+// frames). Float input samples beyond the reader's bound (+24 dBFS) stop
+// the render with the file, frame and channel before the solver sees them;
+// smaller overs, and whatever the reader tolerated in the file's header,
+// are listed in the report's warnings.
+func Render(ctx context.Context, p *engine.Prepared, in string, out *outputs.File, opt FileOptions) (*Report, error) {
 	r, err := CheckInput(in)
 	if err != nil {
 		return nil, err
@@ -93,25 +132,28 @@ func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt Fil
 	if err != nil {
 		return nil, err
 	}
-	o, err := wavio.CreateTemp(out)
+	var w *wavio.Writer
+	if out.InPlace() {
+		w, err = wavio.NewStreamWriter(out, of, r.Frames())
+	} else {
+		w, err = wavio.NewWriter(out, of)
+	}
 	if err != nil {
 		return nil, err
 	}
-	committed := false
-	defer func() {
-		if !committed {
-			o.Abort()
-		}
-	}()
-	w, err := wavio.NewWriter(o, of)
-	if err != nil {
-		return nil, err
-	}
-	rep := newReport(p, in, out, f, of, r.Frames())
+	rep := newReport(p, in, out.Path(), f, of, r.Frames())
 	if rep.Warnings, err = bias.Warnings(ctx, p); err != nil {
 		return nil, err
 	}
 	start := time.Now()
+	choice, err := p.ChooseOversample(ctx, float64(f.SampleRate), float64(r.Frames())/float64(f.SampleRate)*float64(f.Channels))
+	if err != nil {
+		if ctx.Err() != nil {
+			return nil, fmt.Errorf("render interrupted: no output written (%w)", ctx.Err())
+		}
+		return nil, err
+	}
+	rep.setFactor(choice, float64(f.SampleRate), time.Since(start))
 	lastProgress := time.Now()
 	prog := func(done int64) {
 		if opt.Progress != nil && time.Since(lastProgress) > 100*time.Millisecond {
@@ -119,10 +161,11 @@ func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt Fil
 			lastProgress = time.Now()
 		}
 	}
-	st, err := p.Stream(ctx, r, float64(f.SampleRate), f.Channels,
-		func(x []float64) error { rep.dry.add(x); return nil },
-		func(y []float64) error { rep.wet.add(y); return w.Write(y) },
-		prog)
+	st, err := p.StreamWith(ctx, r, float64(f.SampleRate), f.Channels, engine.StreamOptions{
+		Oversample: choice.Factor, Frames: r.Frames(), Workers: opt.Workers,
+		In:       func(x []float64) error { rep.dry.add(x); return nil },
+		Sink:     func(y []float64) error { rep.wet.add(y); return w.Write(y) },
+		Progress: prog})
 	if err != nil {
 		if errors.Is(err, engine.ErrInterrupted) {
 			return nil, fmt.Errorf("render interrupted: no output written (%w)", err)
@@ -137,11 +180,9 @@ func RenderFile(ctx context.Context, p *engine.Prepared, in, out string, opt Fil
 		return nil, err
 	}
 	rep.Solver.States, rep.Solver.NonlinearPorts = st.States, st.NonlinearPorts
+	rep.setPlan(st)
 	rep.finish(st.Stats, w.Clipped(), elapsed)
-	if err := o.Commit(); err != nil {
-		return nil, err
-	}
-	committed = true
+	rep.Warnings.Merge(report.InputNotes(in, r.Overs(), r.Warnings()))
 	return rep, nil
 }
 

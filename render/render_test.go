@@ -168,7 +168,7 @@ func TestRenderFaultsLeaveNoOutput(t *testing.T) {
 		{"empty", empty, "o3.wav", "empty.wav"},
 		{"missing", filepath.Join(dir, "nope.wav"), "o4.wav", "nope.wav"},
 		{"rate", lowRate, "o5.wav", "8000 Hz is outside 44100–192000 Hz"},
-		{"out is in", good, "good.wav", "is the input file"},
+		{"out is in", good, "good.wav", "is the same file as an input"},
 	}
 	e := prepared(t, dividerChain, 2)
 	for _, tc := range cases {
@@ -230,9 +230,11 @@ func TestRenderReportsClipping(t *testing.T) {
 	}
 }
 
-// Streaming: the memory a render allocates does not grow with the file's
-// length (an 8 s file allocates what a 1 s file does, within 64 KiB: the
-// blocks, the filters and the spectrum accumulators are all fixed-size).
+// Streaming: the memory a serial render allocates does not grow with the
+// file's length (an 8 s file allocates what a 1 s file does, within 64
+// KiB: the blocks, the filters and the spectrum accumulators are all
+// fixed-size). A render cut across cores holds a bounded number of
+// segment buffers instead (engine's TestSegmentMemoryIsBounded).
 func TestRenderMemoryIsFlat(t *testing.T) {
 	dir := t.TempDir()
 	alloc := func(seconds int) uint64 {
@@ -246,7 +248,7 @@ func TestRenderMemoryIsFlat(t *testing.T) {
 		var before, after runtime.MemStats
 		runtime.GC()
 		runtime.ReadMemStats(&before)
-		if _, err := RenderFile(context.Background(), e, in, filepath.Join(dir, "out.wav"), FileOptions{}); err != nil {
+		if _, err := RenderFile(context.Background(), e, in, filepath.Join(dir, "out.wav"), FileOptions{Workers: 1}); err != nil {
 			t.Fatal(err)
 		}
 		runtime.ReadMemStats(&after)
@@ -318,5 +320,47 @@ func TestRenderCarriesTheChainsWarnings(t *testing.T) {
 		if loop != osc || (!loop && strings.Contains(all, "oscillat")) {
 			t.Errorf("loop %v: warnings %q", loop, rep.Warnings)
 		}
+	}
+}
+
+// A render with no factor given runs at the one chosen for the chain and
+// rate, says so, and cuts a mono file across the cores it is given. For
+// the RC low-pass (no devices) the choice is the warping floor, 2× (the
+// closed form is engine's TestAutoFactorLinear), with no alias probe. The
+// file cut in two equals the serial render's within one 24-bit step
+// (2^−23 of full scale): the segments differ from the serial render by
+// under 1e-7 of full scale, so quantisation can move a sample by one step
+// at most. A factor given is kept and reported as asked.
+func TestRenderChoosesFactorAndCuts(t *testing.T) {
+	dir := t.TempDir()
+	in, _ := sineWAV(t, dir, 48000, 0.5, 440)
+	render := func(oversample, workers int, name string) (*Report, []float64) {
+		rep, err := RenderFile(context.Background(), prepared(t, testchains.RCLowpass, oversample), in, filepath.Join(dir, name), FileOptions{Workers: workers})
+		if err != nil {
+			t.Fatal(err)
+		}
+		y, _ := readWAV(t, filepath.Join(dir, name))
+		return rep, y
+	}
+	cut, y2 := render(0, 2, "cut.wav")
+	serial, y1 := render(0, 1, "serial.wav")
+	s := cut.Solver
+	if s.Oversample != 2 || s.OversampleFrom != engine.FactorAuto || s.OversampleReason == "" || s.AliasProbe != nil || s.InternalRate != 96000 {
+		t.Errorf("factor %d from %q (%q), probe %v, internal rate %g", s.Oversample, s.OversampleFrom, s.OversampleReason, s.AliasProbe, s.InternalRate)
+	}
+	if s.Segments != 2 || serial.Solver.Segments != 1 || serial.Solver.SegmentNote == "" {
+		t.Errorf("segments %d (serial: %d, %q)", s.Segments, serial.Solver.Segments, serial.Solver.SegmentNote)
+	}
+	for i := range y1 {
+		if d := math.Abs(y1[i] - y2[i]); d > math.Ldexp(1, -23) {
+			t.Fatalf("sample %d: cut %g, serial %g", i, y2[i], y1[i])
+		}
+	}
+	if s.Samples != serial.Solver.Samples {
+		t.Errorf("internal samples: cut %d, serial %d", s.Samples, serial.Solver.Samples)
+	}
+	asked, _ := render(3, 2, "asked.wav")
+	if asked.Solver.Oversample != 3 || asked.Solver.OversampleFrom != engine.FactorRequested {
+		t.Errorf("asked for 3×: %d× from %q", asked.Solver.Oversample, asked.Solver.OversampleFrom)
 	}
 }

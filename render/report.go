@@ -58,11 +58,71 @@ type BandReport struct {
 type SolverReport struct {
 	Oversample   int     `json:"oversample"`
 	InternalRate float64 `json:"internal_rate_hz"`
+	// OversampleFrom is where the factor came from: "requested" (the
+	// command line), "chain" (the chain's oversample setting) or "auto"
+	// (chosen for this chain and rate, engine.ChooseOversample), and
+	// OversampleReason says why in a sentence.
+	OversampleFrom   string `json:"oversample_from"`
+	OversampleReason string `json:"oversample_reason"`
+	// AliasProbe is the automatic choice's measurement (omitted for a
+	// factor given or a circuit without devices).
+	AliasProbe *AliasProbe `json:"alias_probe,omitempty"`
+	// Segments is the number of pieces a mono render was cut into for
+	// several cores (1: serial, SegmentNote saying why), each rendered
+	// from WarmupS before its start.
+	Segments    int     `json:"segments"`
+	WarmupS     float64 `json:"segment_warmup_s"`
+	SegmentNote string  `json:"segment_note,omitempty"`
+	// JoinError is the largest difference, in full scale, between a
+	// segment's warm-up and the previous segment's output where they
+	// meet (engine.StreamInfo.JoinError; 0 for a serial render).
+	JoinError float64 `json:"segment_join_error_fs"`
 	report.Solver
 	DCMethod       string `json:"dc_method"`
 	DCIterations   int    `json:"dc_iterations"`
 	States         int    `json:"reactive_states"`
 	NonlinearPorts int    `json:"nonlinear_ports"`
+}
+
+// AliasProbe is what the automatic factor measured: the worst probe
+// tone's signal-to-alias ratio at the factor chosen, the target, every
+// factor tried, and the seconds the choice took.
+type AliasProbe struct {
+	SignalToAliasDB report.Level        `json:"signal_to_alias_db"`
+	TargetDB        float64             `json:"target_db"`
+	ProbeLevelFS    float64             `json:"probe_level_fs"`
+	Trials          []engine.AliasTrial `json:"trials"`
+	WarpFloor       int                 `json:"warp_floor"`
+	Seconds         float64             `json:"seconds"`
+}
+
+// setFactor records the oversampling factor a render runs at.
+func (r *Report) setFactor(c *engine.FactorChoice, fs float64, took time.Duration) {
+	r.Solver.Oversample, r.Solver.InternalRate = c.Factor, fs*float64(c.Factor)
+	r.Solver.OversampleFrom, r.Solver.OversampleReason = c.From, c.Reason
+	if len(c.Trials) > 0 {
+		r.Solver.AliasProbe = &AliasProbe{SignalToAliasDB: report.Level(c.AliasDB), TargetDB: engine.AliasTarget, ProbeLevelFS: engine.AliasProbeLevel,
+			Trials: c.Trials, WarpFloor: c.WarpFloor, Seconds: math.Round(took.Seconds()*100) / 100}
+	}
+	if c.Warning != "" {
+		r.Warnings.Add("%s", c.Warning)
+	}
+}
+
+// setPlan records how the render was cut across cores, and warns when
+// the segments did not join within engine.JoinTolerance.
+func (r *Report) setPlan(st engine.StreamInfo) {
+	p := st.Plan
+	r.Solver.Segments, r.Solver.WarmupS, r.Solver.SegmentNote, r.Solver.JoinError = p.Segments, 0, "", st.JoinError
+	if p.Segments > 1 {
+		r.Solver.WarmupS = math.Round(p.WarmupSeconds*1000) / 1000
+	} else {
+		r.Solver.SegmentNote = p.Reason
+	}
+	if !(st.JoinError <= engine.JoinTolerance) {
+		r.Warnings.Add("the render was cut into %d segments for several cores, and where they join the circuit still remembered its start "+
+			"(%.2g of full scale, over %.2g): render with --workers 1 for the serial result", p.Segments, st.JoinError, engine.JoinTolerance)
+	}
 }
 
 func newReport(p *engine.Prepared, in, out string, f, of wavio.Format, frames int64) *Report {

@@ -118,8 +118,9 @@ func abAction(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	outs := newOutputs(c)
 	prog, done := progress(c.Bool("quiet"), "rendering variants")
-	set, err := abtest.Build(c.Context, abtest.Options{
+	set, err := abtest.Build(c.Context, abtest.Options{Outputs: outs,
 		Chain: ch, ChainPath: c.String("chain"), Dry: c.String("in"), OutDir: c.String("outdir"),
 		Variants: variants, NoBypass: c.Bool("no-bypass"), BypassLabel: c.String("bypass-label"),
 		Oversample: c.Int("oversample"), TargetLUFS: c.Float64("target-lufs"), CeilingDBTP: c.Float64("ceiling"),
@@ -138,6 +139,7 @@ func abAction(c *cli.Context) error {
 	case err != nil:
 		return err
 	}
+	noteChanged(c, outs)
 	if c.Bool("json") {
 		if err := printJSON(c, set); err != nil {
 			return err

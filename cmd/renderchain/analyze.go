@@ -105,6 +105,16 @@ func runAnalyze(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	set := newOutputs(c)
+	set.Input("file", a.files[0])
+	if a.dry != "" {
+		set.Input("dry", a.dry)
+	}
+	plots := plotFiles(set, a.plot, "", 0)
+	if err := set.Check(); err != nil { // before any work
+		return err
+	}
+	defer set.Abort()
 	r, err := analyze.File(c.Context, a.files[0])
 	if err != nil {
 		return err
@@ -118,9 +128,14 @@ func runAnalyze(c *cli.Context) error {
 		if a.dry != "" {
 			what = "spectrogram, dry against wet"
 		}
-		if err := saveFigures(c, []figureFile{{path: a.plot, what: what, fig: fig}}, a.quiet); err != nil {
+		files := []figureFile{{path: a.plot, what: what, fig: fig}}
+		if err := saveFigures(files, plots); err != nil {
 			return err
 		}
+		if err := commitOutputs(c, set); err != nil {
+			return err
+		}
+		noteFigures(c, files, a.quiet)
 	}
 	if a.json {
 		return printJSON(c, r)

@@ -95,14 +95,14 @@ func biasAction(c *cli.Context) error {
 		if err != nil {
 			return err
 		}
-		if tr, err = bias.SolveTarget(ch, t, adj); err != nil {
+		if tr, err = bias.SolveTargetContext(c.Context, ch, t, adj); err != nil {
 			return err
 		}
 		ch.Stage(adj.Stage).Knobs[adj.Knob] = tr.Rotation
 		b = tr.Bias
 	}
 	if b == nil {
-		if b, err = bias.Solve(ch); err != nil {
+		if b, err = bias.SolveContext(c.Context, ch); err != nil {
 			return err
 		}
 	}
@@ -111,7 +111,7 @@ func biasAction(c *cli.Context) error {
 	}
 	var rows []*bias.Bias
 	if supplies != nil || temps != nil {
-		if rows, err = bias.Sweep(ch, supplies, temps); err != nil {
+		if rows, err = bias.SweepContext(c.Context, ch, supplies, temps); err != nil {
 			return err
 		}
 	}

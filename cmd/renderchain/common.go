@@ -12,7 +12,6 @@ import (
 	"golang.org/x/term"
 
 	"renderchain/chains"
-	"renderchain/dsp/wavio"
 )
 
 // Flags shared by several commands, defined once.
@@ -73,17 +72,6 @@ func loadChain(c *cli.Context) (*chains.Chain, error) {
 	}
 	return ch, nil
 }
-
-// writeJSON writes v as indented JSON to path atomically (temp + rename).
-func writeJSON(path string, v any) error {
-	b, err := json.MarshalIndent(v, "", "  ")
-	if err != nil {
-		return err
-	}
-	return writeFileAtomic(path, append(b, '\n'))
-}
-
-func writeFileAtomic(path string, b []byte) error { return wavio.WriteFileAtomic(path, b) }
 
 func printJSON(c *cli.Context, v any) error {
 	b, err := json.MarshalIndent(v, "", "  ")

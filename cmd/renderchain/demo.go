@@ -31,9 +31,18 @@ func demoCommand() *cli.Command {
 			if entries, err := os.ReadDir(dir); err == nil && len(entries) > 0 && !c.Bool("force") {
 				return usagef("--outdir %s is not empty: add --force to write into it", dir)
 			}
+			set := newOutputs(c)
+			out := set.Dir("outdir", dir)
+			if err := set.Check(); err != nil { // before any work
+				return err
+			}
+			defer set.Abort()
 			start := time.Now()
-			takes, err := render.Demo(c.Context, dir, runtime.NumCPU())
+			takes, err := render.DemoInto(c.Context, out, runtime.NumCPU())
 			if err != nil {
+				return err
+			}
+			if err := commitOutputs(c, set); err != nil {
 				return err
 			}
 			if c.Bool("quiet") {

@@ -14,5 +14,14 @@
 // a file, a chain, a value or key in a file or an override, 2 a wrong
 // command line. Messages are one line.
 //
+// Outputs and signals: each command declares every path it reads and
+// writes in one outputs.Set (outputs.go: the chain file as an input, the
+// flags as roles), checks it before any work, and commits all its outputs
+// together after the work (or none); an *outputs.PathError names the flags
+// (adaptPath). main runs under outputs.Watch: SIGINT, SIGTERM, SIGHUP and
+// SIGQUIT cancel the command's context, every solver loop checks it, the
+// deferred Abort removes the temporary files, and the exit status is 128 +
+// the signal's number.
+//
 // Non-goals: an interactive interface, audio playback, plug-in hosting.
 package main

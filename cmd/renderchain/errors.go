@@ -9,6 +9,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"renderchain/models"
+	"renderchain/outputs"
 )
 
 // Exit statuses.
@@ -56,6 +57,7 @@ var fieldFlags = map[string]map[string]string{
 	"spread":   {"frequency": "freq"},
 	"render":   {"output": "out", "input": "in"},
 	"ab":       {"input": "in", "output": "outdir"},
+	"demo":     {"output": "outdir"},
 }
 
 // flagFor returns the flag of cmd that sets field, or "".
@@ -77,12 +79,20 @@ func flagFor(cmd *cli.Command, field string) string {
 
 // adapt is the one place errors meet the command line: a library's
 // *models.FieldError on an option this command sets from a flag becomes a
-// usage error naming that flag (exit 2); everything else is passed on
-// (exit 1 unless it carries its own exit status).
+// usage error naming that flag (exit 2); an *outputs.PathError names its
+// flags too (adaptPath); everything else is passed on (exit 1 unless it
+// carries its own exit status).
 func adapt(c *cli.Context, err error) error {
 	var fe *models.FieldError
 	var ue *usageError
-	if err == nil || errors.As(err, &ue) || !errors.As(err, &fe) {
+	var pe *outputs.PathError
+	if err == nil || errors.As(err, &ue) {
+		return err
+	}
+	if errors.As(err, &pe) {
+		return adaptPath(c.Command, err, pe)
+	}
+	if !errors.As(err, &fe) {
 		return err
 	}
 	flag := flagFor(c.Command, fe.Field)

@@ -3,12 +3,12 @@ package main
 import (
 	"bytes"
 	"fmt"
-	"os"
 	"path/filepath"
 	"strings"
 
 	"github.com/urfave/cli/v2"
 
+	"renderchain/outputs"
 	"renderchain/plotting"
 )
 
@@ -32,17 +32,35 @@ func checkPlotFlag(c *cli.Context) (string, error) {
 	return p, nil
 }
 
-// saveFigures draws every figure first, then writes each through the
-// atomic writer the command's other outputs use (temporary file, then
-// rename). If a drawing fails nothing is written; if a write fails, the
-// figures this call already wrote are removed. Unless quiet, each file
-// written is named on stderr with what it shows.
-func saveFigures(c *cli.Context, files []figureFile, quiet bool) error {
+// plotFiles declares, before any work, the --plot file at path and the n
+// companion figures tagged tag beside it (siblingPath) as outputs of the
+// command's set, role "plot"; it returns them by path. No path: none.
+func plotFiles(set *outputs.Set, path, tag string, n int) map[string]*outputs.File {
+	files := map[string]*outputs.File{}
+	if path == "" {
+		return files
+	}
+	files[path] = set.File("plot", path)
+	for i := 0; i < n; i++ {
+		p := siblingPath(path, tag, i, n)
+		files[p] = set.File("plot", p)
+	}
+	return files
+}
+
+// saveFigures draws every figure first, then writes each into its file of
+// the command's set (declared by plotFiles before the work, put in place
+// with the command's other outputs by commitOutputs). If a drawing fails
+// nothing is written; a figure whose file was not declared is an error.
+func saveFigures(files []figureFile, outs map[string]*outputs.File) error {
 	bufs := make([][]byte, len(files))
 	for i, f := range files {
 		format, err := plotting.FormatOf(f.path)
 		if err != nil {
 			return err
+		}
+		if outs[f.path] == nil {
+			return fmt.Errorf("writing plot %s: not declared before the work", f.path)
 		}
 		var b bytes.Buffer
 		if err := f.fig.Render(&b, format); err != nil {
@@ -51,19 +69,22 @@ func saveFigures(c *cli.Context, files []figureFile, quiet bool) error {
 		bufs[i] = b.Bytes()
 	}
 	for i, f := range files {
-		if err := writeFileAtomic(f.path, bufs[i]); err != nil {
-			for _, done := range files[:i] {
-				os.Remove(done.path)
-			}
-			return fmt.Errorf("writing plot %s: %w", f.path, err)
-		}
-	}
-	if !quiet {
-		for _, f := range files {
-			fmt.Fprintf(c.App.ErrWriter, "plot: %s (%s)\n", f.path, f.what)
+		if err := writeAll(outs[f.path], bufs[i]); err != nil {
+			return err
 		}
 	}
 	return nil
+}
+
+// noteFigures names each figure file with what it shows on stderr, once
+// they are in place, unless quiet.
+func noteFigures(c *cli.Context, files []figureFile, quiet bool) {
+	if quiet {
+		return
+	}
+	for _, f := range files {
+		fmt.Fprintf(c.App.ErrWriter, "plot: %s (%s)\n", f.path, f.what)
+	}
 }
 
 // siblingPath names a companion figure of a --plot file: FILE.png gives

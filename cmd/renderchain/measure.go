@@ -9,16 +9,20 @@ import (
 	"renderchain/chains"
 	"renderchain/measure"
 	"renderchain/models"
+	"renderchain/outputs"
 )
 
 // Flags shared by measure and response.
 var (
 	rateFlag       = &cli.Float64Flag{Name: "rate", Value: measure.DefaultSampleRate, Usage: "base sample rate in Hz (the circuit runs at rate × oversample)"}
 	oversampleFlag = &cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16 (default: the chain's, else 4)"}
-	probeFlag      = &cli.StringFlag{Name: "probe", Usage: "measure at `NODE` instead of the output: in, out, v+, STAGE.NODE (fuzz.c1), STAGE.in, STAGE.out"}
-	plotFlag       = &cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg"}
-	csvFlag        = &cli.BoolFlag{Name: "csv", Usage: "print CSV instead of a table"}
-	familySetFlag  = &cli.StringSliceFlag{Name: "set", Usage: "override `KEY=VALUE` (stage.knob=0.3, stage.REF=22n, stage.REF.hfe=120, supply=8.5V, …); a comma list (tone.tone=0,0.5,1) gives one result per value (repeatable)"}
+	// renderOversampleFlag is --oversample of a render, whose default is
+	// chosen per chain and rate.
+	renderOversampleFlag = &cli.IntFlag{Name: "oversample", Usage: "internal rate multiple, 1–16 (default: the chain's, else the lowest that keeps aliases 50 dB down, chosen per chain and rate)"}
+	probeFlag            = &cli.StringFlag{Name: "probe", Usage: "measure at `NODE` instead of the output: in, out, v+, STAGE.NODE (fuzz.c1), STAGE.in, STAGE.out"}
+	plotFlag             = &cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg"}
+	csvFlag              = &cli.BoolFlag{Name: "csv", Usage: "print CSV instead of a table"}
+	familySetFlag        = &cli.StringSliceFlag{Name: "set", Usage: "override `KEY=VALUE` (stage.knob=0.3, stage.REF=22n, stage.REF.hfe=120, supply=8.5V, …); a comma list (tone.tone=0,0.5,1) gives one result per value (repeatable)"}
 )
 
 func measureCommand() *cli.Command {
@@ -32,6 +36,10 @@ func measureCommand() *cli.Command {
 			"windows changing by less than --settle-tol, at most --settle-max), and analyses a whole number\n" +
 			"of cycles: fundamental, harmonics 2–10 (dBc, %), THD_F, THD_R, THD+N (20 Hz–20 kHz), even/odd\n" +
 			"energy, DC, peaks and their asymmetry, and whether the output clips.\n\n" +
+			"--alias adds the signal-to-alias ratio: the sine rendered again per oversampling factor\n" +
+			"(--alias-factors 2,4,8,16), the power on its harmonic lines over the power everywhere else.\n" +
+			"A tone whose folded lines would land on its own harmonics (1 kHz at 48 kHz) is moved to a\n" +
+			"neighbour that shows them, and the report says so.\n\n" +
 			"--amplitude is at the chain's source EMF, before any source impedance: 100mV, 0.1V (peak),\n" +
 			"20mVpp, 70.7mVrms, -20dBV. Sweep steps and conditions run in parallel across cores.\n\n" +
 			"Safety: on a real bench, keep mains-powered test gear earthed as its maker intends and\n" +
@@ -56,6 +64,8 @@ func measureCommand() *cli.Command {
 			jsonFlag,
 			csvFlag,
 			&cli.StringFlag{Name: "plot", Usage: "also draw the result to `FILE`.png or FILE.svg, and a scope view of each measurement beside it (FILE-scope.png, FILE-scope-01.png …; up to 16)"},
+			&cli.BoolFlag{Name: "alias", Usage: "also measure the aliasing: the power the output holds off the sine's harmonic lines, under the lines' (its own render per factor)"},
+			&cli.StringFlag{Name: "alias-factors", Usage: "oversampling factors to measure the aliasing at, `N,N,…` 1–16 (implies --alias; default: the measurement's)"},
 			workersFlag,
 			quietFlag,
 		},
@@ -69,12 +79,12 @@ func measureCommand() *cli.Command {
 const maxScopeViews = 16
 
 // saveMeasureFigures writes the report's figure to path and beside it a
-// scope view per measurement (siblingPath), or, past maxScopeViews
-// measurements, says on stderr that they were left out.
-func saveMeasureFigures(c *cli.Context, rep *measure.Report, path string, count int) error {
+// scope view per measurement (siblingPath), into the files plotFiles
+// declared; it returns them for noteMeasureFigures.
+func saveMeasureFigures(rep *measure.Report, path string, outs map[string]*outputs.File) ([]figureFile, error) {
 	fig, err := rep.Figure()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	what := "spectrum and harmonics"
 	if rep.Sweep != nil {
@@ -83,7 +93,7 @@ func saveMeasureFigures(c *cli.Context, rep *measure.Report, path string, count 
 	files := []figureFile{{path: path, what: what, fig: fig}}
 	scopes, err := rep.ScopeFigures()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	for i, f := range scopes {
 		m := rep.Measurements[i]
@@ -96,13 +106,16 @@ func saveMeasureFigures(c *cli.Context, rep *measure.Report, path string, count 
 		}
 		files = append(files, figureFile{path: siblingPath(path, "scope", i, len(scopes)), what: "scope view, " + name, fig: f})
 	}
-	if err := saveFigures(c, files, c.Bool("quiet")); err != nil {
-		return err
-	}
+	return files, saveFigures(files, outs)
+}
+
+// noteMeasureFigures names the figures written, or, past maxScopeViews
+// measurements, says on stderr that the scope views were left out.
+func noteMeasureFigures(c *cli.Context, files []figureFile, count int) {
+	noteFigures(c, files, c.Bool("quiet"))
 	if count > maxScopeViews && !c.Bool("quiet") {
 		fmt.Fprintf(c.App.ErrWriter, "note: no scope views: they are drawn for up to %d measurements, this run made %d\n", maxScopeViews, count)
 	}
-	return nil
 }
 
 var workersFlag = &cli.IntFlag{Name: "workers", Usage: "measurements run at once (default: one per core)"}
@@ -154,7 +167,15 @@ func runMeasure(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	var aliasFactors []int
+	if c.IsSet("alias-factors") {
+		if aliasFactors, err = measure.ParseFactors(c.String("alias-factors")); err != nil {
+			return badFlag("alias-factors", c.String("alias-factors"), err)
+		}
+	}
 	opt := measure.Options{
+		Alias:           c.Bool("alias") || c.IsSet("alias-factors"),
+		AliasFactors:    aliasFactors,
 		SampleRate:      c.Float64("rate"),
 		Oversample:      c.Int("oversample"),
 		Probe:           c.String("probe"),
@@ -169,6 +190,16 @@ func runMeasure(c *cli.Context) error {
 		count *= len(sweep.StepList)
 	}
 	opt.Scope = plotPath != "" && count <= maxScopeViews
+	set := newOutputs(c)
+	scopes := 0
+	if opt.Scope {
+		scopes = count
+	}
+	plots := plotFiles(set, plotPath, "scope", scopes)
+	if err := set.Check(); err != nil { // before any work
+		return err
+	}
+	defer set.Abort()
 	prog, done := progress(c.Bool("quiet"), "measuring")
 	plan := measure.Plan{Variants: variants, Freq: freq, Amplitude: amp, Sweep: sweep, Options: opt, Workers: c.Int("workers")}
 	if prog != nil {
@@ -179,10 +210,17 @@ func runMeasure(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	var figures []figureFile
 	if plotPath != "" {
-		if err := saveMeasureFigures(c, rep, plotPath, count); err != nil {
+		if figures, err = saveMeasureFigures(rep, plotPath, plots); err != nil {
 			return err
 		}
+	}
+	if err := commitOutputs(c, set); err != nil {
+		return err
+	}
+	if plotPath != "" {
+		noteMeasureFigures(c, figures, count)
 	}
 	switch {
 	case c.Bool("json"):

@@ -227,3 +227,36 @@ func TestResponseCommandBadInput(t *testing.T) {
 		}
 	}
 }
+
+// measure --alias-factors gives one signal-to-alias figure per factor in
+// the JSON; the diode clipper's aliasing falls as the factor rises (a
+// clipper's harmonic spectrum falls with order, so folding from a higher
+// internal rate brings back weaker lines: common practice). A factor out
+// of range is a usage error (exit status 2) naming the flag.
+func TestMeasureCommandAlias(t *testing.T) {
+	chain := measTestChain(t)
+	code, out, errs := capture(t, "measure", "--chain", chain, "--freq", "1319", "--amplitude", "2V", "--alias-factors", "8,2", "--json", "--quiet")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var m struct {
+		Alias struct {
+			FrequencyHz float64 `json:"frequency_hz"`
+			Factors     []struct {
+				Oversample int     `json:"oversample"`
+				DB         float64 `json:"signal_to_alias_db"`
+			} `json:"factors"`
+		} `json:"alias"`
+	}
+	if err := json.Unmarshal([]byte(out), &m); err != nil {
+		t.Fatalf("%v: %s", err, out)
+	}
+	f := m.Alias.Factors
+	if m.Alias.FrequencyHz != 1319 || len(f) != 2 || f[0].Oversample != 2 || f[1].Oversample != 8 || !(f[1].DB > f[0].DB) {
+		t.Errorf("alias: %+v", m.Alias)
+	}
+	code, _, errs = capture(t, "measure", "--chain", chain, "--alias-factors", "32", "--quiet")
+	if code != 2 || !strings.Contains(errs, "--alias-factors") {
+		t.Errorf("--alias-factors 32: exit %d, %q", code, errs)
+	}
+}

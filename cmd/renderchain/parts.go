@@ -36,7 +36,7 @@ func partsCommand() *cli.Command {
 			if err != nil {
 				return err
 			}
-			bom, err := parts.PartsList(ch, c.Bool("all-stages"))
+			bom, err := parts.PartsListContext(c.Context, ch, c.Bool("all-stages"))
 			if err != nil {
 				return err
 			}

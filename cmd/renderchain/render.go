@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 
@@ -23,7 +23,8 @@ func renderCommand() *cli.Command {
 			&cli.StringFlag{Name: "in", Aliases: []string{"i"}, Usage: "dry WAV (PCM 8–32 bit or float, mono/stereo, 44.1–192 kHz), required"},
 			&cli.StringFlag{Name: "out", Aliases: []string{"o"}, Usage: "wet WAV to write, required"},
 			setFlag,
-			oversampleFlag,
+			renderOversampleFlag,
+			&cli.IntFlag{Name: "workers", Usage: "cores a mono render is cut across (default: one per core; 1: serial)"},
 			&cli.StringFlag{Name: "format", Value: render.FormatPCM24, Usage: "output samples: pcm24, pcm16 or float32"},
 			&cli.StringFlag{Name: "report", Usage: "write the render report as JSON to `FILE`"},
 			quietFlag,
@@ -33,25 +34,35 @@ func renderCommand() *cli.Command {
 			if c.NArg() > 0 {
 				return usagef("render takes no arguments (got %q); use --in and --out", c.Args().First())
 			}
+			set := newOutputs(c)
+			set.Input("in", c.String("in"))
+			wav := set.File("out", c.String("out"))
+			report := optionalFile(c, set, "report")
+			if err := set.Check(); err != nil { // before any work
+				return err
+			}
+			defer set.Abort()
 			ch, err := loadChain(c)
 			if err != nil {
 				return err
 			}
-			eng, err := engine.Prepare(ch, c.Int("oversample"))
+			eng, err := engine.PrepareContext(c.Context, ch, c.Int("oversample"))
 			if err != nil {
 				return err
 			}
 			prog, done := progress(c.Bool("quiet"), "rendering")
-			rep, err := render.RenderFile(c.Context, eng, c.String("in"), c.String("out"), render.FileOptions{Format: c.String("format"), Progress: prog})
+			rep, err := render.Render(c.Context, eng, c.String("in"), wav, render.FileOptions{Format: c.String("format"), Workers: c.Int("workers"), Progress: prog})
 			done()
 			if err != nil {
 				return err
 			}
-			if path := c.String("report"); path != "" {
-				if err := writeJSON(path, rep); err != nil {
-					os.Remove(c.String("out"))
-					return fmt.Errorf("writing report: %w", err)
+			if report != nil {
+				if err := writeJSONTo(report, rep); err != nil {
+					return err
 				}
+			}
+			if err := commitOutputs(c, set); err != nil {
+				return err
 			}
 			if !c.Bool("quiet") {
 				printSummary(c.App.ErrWriter, rep, leastStepDBFS(c.String("format")))
@@ -78,7 +89,19 @@ func leastStepDBFS(format string) float64 {
 // under half the output format's least step (floorDBFS) print as under it:
 // such samples are zeros in the file, whatever the solver's residue was.
 func printSummary(w io.Writer, r *render.Report, floorDBFS float64) {
-	fmt.Fprintf(w, "%s → %s (%.1f s, %d ch, %d Hz; %dx oversampled)\n", r.Input.File, r.Output.File, r.Input.Seconds, r.Input.Channels, r.Input.SampleRate, r.Solver.Oversample)
+	fmt.Fprintf(w, "%s → %s (%.1f s, %d ch, %d Hz; %d× oversampled, %s)\n", r.Input.File, r.Output.File, r.Input.Seconds, r.Input.Channels, r.Input.SampleRate,
+		r.Solver.Oversample, map[string]string{engine.FactorAuto: "chosen for this chain", engine.FactorRequested: "as asked", engine.FactorChain: "the chain's setting"}[r.Solver.OversampleFrom])
+	if p := r.Solver.AliasProbe; p != nil {
+		tried := make([]string, len(p.Trials))
+		for i, t := range p.Trials {
+			tried[i] = fmt.Sprintf("%d× %s", t.Factor, map[bool]string{true: "∞ dB", false: level(t.DB, 1, "dB")}[math.IsInf(float64(t.DB), 1)])
+		}
+		fmt.Fprintf(w, "  factor   lowest with aliases %g dB under probe tones near 1.3 kHz at %.1f FS; tried %s (%.1f s)\n",
+			p.TargetDB, p.ProbeLevelFS, strings.Join(tried, ", "), p.Seconds)
+	}
+	if r.Solver.Segments > 1 {
+		fmt.Fprintf(w, "  cores    %d segments, each from %.2f s before its start\n", r.Solver.Segments, r.Solver.WarmupS)
+	}
 	fmt.Fprintf(w, "  dry  peak %14s  RMS %14s  crest %8s\n", level(r.Input.PeakDBFS, 2, "dBFS"), level(r.Input.RMSDBFS, 2, "dBFS"), level(r.Input.CrestDB, 2, "dB"))
 	peak, rms, crest := level(r.Output.PeakDBFS, 2, "dBFS"), level(r.Output.RMSDBFS, 2, "dBFS"), level(r.Output.CrestDB, 2, "dB")
 	if float64(r.Output.PeakDBFS) < floorDBFS {

@@ -77,6 +77,12 @@ func runResponse(c *cli.Context) error {
 	if c.Bool("group-delay") && plotPath == "" {
 		return usagef("--group-delay adds a panel to the --plot figure: give --plot FILE.png|svg")
 	}
+	set := newOutputs(c)
+	plots := plotFiles(set, plotPath, "", 0)
+	if err := set.Check(); err != nil { // before any work
+		return err
+	}
+	defer set.Abort()
 	freqs, err := responseFreqs(c)
 	if err != nil {
 		return err
@@ -112,6 +118,7 @@ func runResponse(c *cli.Context) error {
 			return err
 		}
 	}
+	var figures []figureFile
 	if plotPath != "" {
 		fig, err := rep.Figure(c.Bool("group-delay"))
 		if err != nil {
@@ -121,7 +128,8 @@ func runResponse(c *cli.Context) error {
 		if c.Bool("group-delay") {
 			what += ", group delay"
 		}
-		if err := saveFigures(c, []figureFile{{path: plotPath, what: what, fig: fig}}, c.Bool("quiet")); err != nil {
+		figures = []figureFile{{path: plotPath, what: what, fig: fig}}
+		if err := saveFigures(figures, plots); err != nil {
 			return err
 		}
 		if sparse(freqs) && !c.Bool("quiet") {
@@ -129,6 +137,10 @@ func runResponse(c *cli.Context) error {
 				"  where the phase turns by more than 180° between two of them the curve is 360° off: leave out --freqs and --points for the dense grid\n", len(freqs))
 		}
 	}
+	if err := commitOutputs(c, set); err != nil {
+		return err
+	}
+	noteFigures(c, figures, c.Bool("quiet"))
 	switch {
 	case c.Bool("json"):
 		return printJSON(c, rep)

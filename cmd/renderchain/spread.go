@@ -56,6 +56,12 @@ func spreadAction(c *cli.Context) error {
 	if n := c.Int("trials"); n < 1 || n > parts.MaxTrials {
 		return usagef("--trials %d is outside 1…%d", n, parts.MaxTrials)
 	}
+	set := newOutputs(c)
+	csvOut := optionalFile(c, set, "trials-csv")
+	if err := set.Check(); err != nil { // before any work
+		return err
+	}
+	defer set.Abort()
 	ch, err := loadChain(c)
 	if err != nil {
 		return err
@@ -119,14 +125,17 @@ func spreadAction(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	if path := c.String("trials-csv"); path != "" {
+	if csvOut != nil {
 		var buf bytes.Buffer
 		if err := res.WriteCSV(&buf); err != nil {
 			return err
 		}
-		if err := writeFileAtomic(path, buf.Bytes()); err != nil {
-			return fmt.Errorf("writing %s: %w", path, err)
+		if err := writeAll(csvOut, buf.Bytes()); err != nil {
+			return err
 		}
+	}
+	if err := commitOutputs(c, set); err != nil {
+		return err
 	}
 	if c.Bool("json") {
 		err = printJSON(c, res)

@@ -1,6 +1,7 @@
 package mna
 
 import (
+	"context"
 	"fmt"
 	"math"
 
@@ -58,6 +59,15 @@ type DCOptions struct {
 // continuations of classical circuit simulation (Nagel, UCB ERL-M520,
 // 1975, sec. 4.4).
 func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
+	return SolveDCContext(context.Background(), c, opt)
+}
+
+// SolveDCContext is SolveDC that stops when ctx is done: every Newton
+// iteration of every continuation (plain Newton, gmin stepping, source
+// stepping) checks ctx first, so a cancelled solve returns within one
+// iteration (one factorisation of the DC system) with an error wrapping
+// ctx's error (errors.Is context.Canceled, or the context's cause).
+func SolveDCContext(ctx context.Context, c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 	if opt.MaxIter == 0 {
 		opt.MaxIter = 200
 	}
@@ -68,12 +78,16 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 		return nil, err
 	}
 	s := newDCSolver(c, opt)
+	s.ctx = ctx
 	total := 0
 	x := make([]float64, s.lay.Dim)
 	// 1. Plain Newton from zero.
 	it, err := s.newton(x, 0, 1)
 	total += it
 	method := "newton"
+	if stopped(err) {
+		return nil, err
+	}
 	if err != nil {
 		// 2. gmin stepping.
 		method = "gmin"
@@ -83,6 +97,9 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 		for g := 1e-3; g >= 1e-13; g /= 10 {
 			it, err = s.newton(x, g, 1)
 			total += it
+			if stopped(err) {
+				return nil, err
+			}
 			if err != nil {
 				break
 			}
@@ -91,6 +108,9 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 			saved := append([]float64(nil), x...)
 			it, err = s.newton(x, 0, 1)
 			total += it
+			if stopped(err) {
+				return nil, err
+			}
 			if err != nil {
 				// A node held only by junctions that are off has no defined
 				// voltage without some conductance: finish with the classical
@@ -100,6 +120,9 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 				it, err = s.newton(x, 0, 1)
 				total += it
 				method = "gmin-junction"
+				if stopped(err) {
+					return nil, err
+				}
 			}
 		}
 	}
@@ -115,6 +138,9 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 			next := math.Min(1, lambda+step)
 			it, e := s.newton(x, 0, next)
 			total += it
+			if stopped(e) {
+				return nil, e
+			}
 			if e != nil {
 				copy(x, good)
 				step /= 4
@@ -144,6 +170,7 @@ func SolveDC(c *models.Circuit, opt DCOptions) (*OperatingPoint, error) {
 const junctionGmin = 1e-12
 
 type dcSolver struct {
+	ctx      context.Context
 	portGmin float64 // conductance across every device port (last resort)
 	c        *models.Circuit
 	opt      DCOptions
@@ -164,6 +191,34 @@ func newDCSolver(c *models.Circuit, opt DCOptions) *dcSolver {
 	}
 	return s
 }
+
+// cancelled returns the error of a done context, else nil.
+func (s *dcSolver) cancelled() error {
+	if s.ctx == nil {
+		return nil
+	}
+	select {
+	case <-s.ctx.Done():
+		return &CancelError{Cause: context.Cause(s.ctx)}
+	default:
+		return nil
+	}
+}
+
+// stopped reports whether err is the solve's own cancellation.
+func stopped(err error) bool {
+	_, ok := err.(*CancelError)
+	return ok
+}
+
+// CancelError reports a DC solve stopped by its context; it unwraps to
+// the context's cause (context.Canceled, or what the canceller gave).
+type CancelError struct{ Cause error }
+
+func (e *CancelError) Error() string { return "DC operating point: stopped (" + e.Cause.Error() + ")" }
+
+// Unwrap returns the context's cause.
+func (e *CancelError) Unwrap() error { return e.Cause }
 
 func (s *dcSolver) resetDevices() {
 	for k := range s.vold {
@@ -203,6 +258,9 @@ func portVoltages(x []float64, ports []models.Port, v []float64) {
 func (s *dcSolver) newton(x []float64, gmin, lambda float64) (int, error) {
 	step := math.Inf(1)
 	for it := 1; it <= s.opt.MaxIter; it++ {
+		if err := s.cancelled(); err != nil {
+			return it - 1, err
+		}
 		s.stampLinear(gmin, lambda)
 		for k := range s.devs {
 			d := &s.devs[k]
@@ -220,7 +278,7 @@ func (s *dcSolver) newton(x []float64, gmin, lambda float64) (int, error) {
 			}
 		}
 		if err := s.lu.Factor(s.sys.A); err != nil {
-			return it, &models.CircuitError{What: "circuit", Reason: "DC equations are singular (a node or loop is undetermined)"}
+			return it, Singular(s.c, s.lay, err, "DC equations are singular")
 		}
 		xn := s.sys.Z
 		s.lu.Solve(xn)

@@ -2,12 +2,24 @@ package mna
 
 import (
 	"errors"
+	"fmt"
 	"math"
 )
 
 // ErrSingular reports a matrix that cannot be factored: the circuit has a
 // node or loop whose voltage or current is not determined.
 var ErrSingular = errors.New("singular system")
+
+// SingularError is the ErrSingular of a factorisation that stopped at a
+// column: Column is the unknown (in Layout order) that the equations
+// before it leave undetermined, so that a caller can name the node or
+// branch concerned (Layout.Unknown). It unwraps to ErrSingular.
+type SingularError struct{ Column int }
+
+func (e *SingularError) Error() string { return fmt.Sprintf("singular system at unknown %d", e.Column) }
+
+// Unwrap returns ErrSingular.
+func (e *SingularError) Unwrap() error { return ErrSingular }
 
 // LU is a dense LU factorisation with partial pivoting (Golub & Van Loan,
 // "Matrix Computations", 4th ed., alg. 3.4.1) over preallocated storage, so
@@ -21,7 +33,9 @@ type LU struct {
 // NewLU returns storage for n×n factorisations.
 func NewLU(n int) *LU { return &LU{n: n, a: make([]float64, n*n), piv: make([]int, n)} }
 
-// Factor copies the row-major n×n matrix m and factors it.
+// Factor copies the row-major n×n matrix m and factors it. A matrix it
+// cannot factor gives a *SingularError (errors.Is ErrSingular) naming the
+// column where elimination stopped.
 func (f *LU) Factor(m []float64) error {
 	n := f.n
 	a := f.a
@@ -34,7 +48,7 @@ func (f *LU) Factor(m []float64) error {
 		if n == 0 {
 			return nil
 		}
-		return ErrSingular
+		return &SingularError{Column: 0}
 	}
 	tiny := scale * 1e-15
 	for k := 0; k < n; k++ {
@@ -45,7 +59,7 @@ func (f *LU) Factor(m []float64) error {
 			}
 		}
 		if pv <= tiny {
-			return ErrSingular
+			return &SingularError{Column: k}
 		}
 		f.piv[k] = p
 		if p != k {
@@ -105,7 +119,7 @@ func solveComplex(n int, a, b []complex128) error {
 			}
 		}
 		if pv == 0 {
-			return ErrSingular
+			return &SingularError{Column: k}
 		}
 		if p != k {
 			for j := 0; j < n; j++ {

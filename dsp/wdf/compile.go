@@ -89,7 +89,7 @@ func newAdaptor(c *models.Circuit, ports []port) (*Adaptor, error) {
 	}
 	lu := mna.NewLU(lay.Dim)
 	if err := lu.Factor(sys.A); err != nil {
-		return nil, &models.CircuitError{What: "circuit", Reason: "the wave digital adaptor is singular (a node connects only to capacitors or devices in a way no voltage is defined)"}
+		return nil, mna.Singular(c, lay, err, "the wave digital adaptor is singular")
 	}
 	np, ns, nn := len(ports), len(ad.sources), len(c.Nodes)
 	ad.M, ad.Mu = make([]float64, np*np), make([]float64, np*ns)
