@@ -81,6 +81,8 @@ type BJTSecondOrder struct {
 type BJT struct {
 	pnp              bool
 	is, bf, br, vt   float64
+	ivt              float64 // 1/Vt
+	isr, isf         float64 // Is/βR, Is/βF
 	icbo             float64
 	ivaf             float64 // 1/VA, 0 without the Early effect
 	vcritBE, vcritBC float64
@@ -93,7 +95,7 @@ type BJT struct {
 func NewBJT(p BJTParams, t float64) *BJT {
 	vt := ThermalVoltage(t)
 	is := SaturationCurrentAt(p.Is, 1, p.Eg, p.XTI, t, NominalTemperature)
-	b := &BJT{pnp: p.PNP, is: is, bf: p.BetaF, br: p.BetaR, vt: vt,
+	b := &BJT{pnp: p.PNP, is: is, bf: p.BetaF, br: p.BetaR, vt: vt, ivt: 1 / vt, isr: is / p.BetaR, isf: is / p.BetaF,
 		icbo: LeakageAt(p.Icbo, p.LeakDoubling, t, NominalTemperature)}
 	b.vcritBE = criticalVoltage(vt, is/p.BetaF)
 	b.vcritBC = criticalVoltage(vt, is/p.BetaR)
@@ -133,26 +135,51 @@ func (b *BJT) Eval(v, i, jac []float64) {
 // Eval2 is Eval without slices: it returns Ib, Ic and the Jacobian
 // [dIb/dVbe, dIb/dVce, dIc/dVbe, dIc/dVce] for port voltages Vbe, Vce.
 func (b *BJT) Eval2(vbe, vce float64) (ib, ic float64, jac [4]float64) {
+	var st BJTState
+	b.evalInto(vbe, vce, &st)
+	return st.Ib, st.Ic, st.J
+}
+
+// BJTState is a transistor's state at one pair of port voltages (Vbe,
+// Vce): the port currents and Jacobian of Eval2 and the charges and
+// capacitance matrix of Charges2, in their layouts.
+type BJTState struct {
+	Ib, Ic float64
+	J      [4]float64 // dIb/dVbe, dIb/dVce, dIc/dVbe, dIc/dVce
+	Qb, Qc float64
+	C      [4]float64 // dqb/dVbe, dqb/dVce, dqc/dVbe, dqc/dVce
+}
+
+// EvalCharges writes Eval2 and Charges2 at (vbe, vce) into st, the same
+// numbers bit for bit, with the base–emitter exponential computed once
+// for the transport current and the diffusion charge.
+func (b *BJT) EvalCharges(vbe, vce float64, st *BJTState) {
+	ef, def := b.evalInto(vbe, vce, st)
+	b.chargesInto(vbe, vce, ef, def, st)
+}
+
+// evalInto is Eval2 into st's currents and Jacobian; it returns
+// exp(Vbe/Vt) and its derivative with respect to Vbe (limexp, for the
+// polarity-corrected Vbe).
+func (b *BJT) evalInto(vbe, vce float64, st *BJTState) (ef, def float64) {
 	if b.pnp {
 		vbe, vce = -vbe, -vce
 	}
 	vbc := vbe - vce
-	ivt := 1 / b.vt
-	ef, def := limexp(vbe * ivt)
+	ivt := b.ivt
+	ef, def = limexp(vbe * ivt)
 	er, der := limexp(vbc * ivt)
 	def *= ivt
 	der *= ivt
-	is := b.is
-	isr := is / b.br
-	isf := is / b.bf
-	ic = is*(ef-er) - isr*(er-1)
-	ib = isf*(ef-1) + isr*(er-1)
+	is, isr, isf := b.is, b.isr, b.isf
+	it := is * (ef - er) // transport current
+	ic := it - isr*(er-1)
+	ib := isf*(ef-1) + isr*(er-1)
 	// Derivatives with respect to vbe and vbc.
 	dicBE := is * def
 	dicBC := -(is + isr) * der
 	if b.ivaf != 0 {
 		// Transport current times (1 − Vbc/VA).
-		it := is * (ef - er)
 		k := 1 - vbc*b.ivaf
 		ic = it*k - isr*(er-1)
 		dicBE *= k
@@ -175,15 +202,18 @@ func (b *BJT) Eval2(vbe, vce float64) (ib, ic float64, jac [4]float64) {
 		dibBC -= dil
 	}
 	// Chain rule to (vbe, vce): vbc = vbe − vce.
-	jac[0] = dibBE + dibBC // dIb/dVbe
-	jac[1] = -dibBC        // dIb/dVce
-	jac[2] = dicBE + dicBC // dIc/dVbe
-	jac[3] = -dicBC        // dIc/dVce
+	st.J = [4]float64{
+		dibBE + dibBC, // dIb/dVbe
+		-dibBC,        // dIb/dVce
+		dicBE + dicBC, // dIc/dVbe
+		-dicBC,        // dIc/dVce
+	}
 	if b.pnp {
 		// i(v) = −f(−v): the Jacobian is f'(−v), unchanged.
 		ib, ic = -ib, -ic
 	}
-	return ib, ic, jac
+	st.Ib, st.Ic = ib, ic
+	return ef, def
 }
 
 // Limit2 is Limit without slices: it returns the limited (Vbe, Vce) for a
@@ -234,6 +264,24 @@ func (b *BJT) HasCharges() bool { return b.charged }
 // [dqb/dVbe, dqb/dVce, dqc/dVbe, dqc/dVce], farads, for port voltages Vbe,
 // Vce (the layout of Eval2's Jacobian).
 func (b *BJT) Charges2(vbe, vce float64) (qb, qc float64, c [4]float64) {
+	var ef, def float64
+	if b.tf != 0 {
+		u := vbe
+		if b.pnp {
+			u = -u
+		}
+		ef, def = limexp(u * b.ivt)
+		def *= b.ivt
+	}
+	var st BJTState
+	b.chargesInto(vbe, vce, ef, def, &st)
+	return st.Qb, st.Qc, st.C
+}
+
+// chargesInto is Charges2 into st's charges and capacitance matrix, with
+// exp(Vbe/Vt) and its derivative with respect to Vbe given for the
+// polarity-corrected Vbe (used only with a transit time).
+func (b *BJT) chargesInto(vbe, vce, ef, def float64, st *BJTState) {
 	s := 1.0
 	if b.pnp {
 		s, vbe, vce = -1, -vbe, -vce
@@ -242,14 +290,12 @@ func (b *BJT) Charges2(vbe, vce float64) (qb, qc float64, c [4]float64) {
 	qbe, cbe := b.be.charge(vbe)
 	qbc, cbc := b.bc.charge(vbc)
 	if b.tf != 0 {
-		ivt := 1 / b.vt
-		ef, def := limexp(vbe * ivt)
 		qbe += b.tf * b.is * (ef - 1)
-		cbe += b.tf * b.is * def * ivt
+		cbe += b.tf * b.is * def
 	}
 	// q(v) = −f(−v) for a PNP: the capacitance matrix is unchanged.
-	c = [4]float64{cbe + cbc, -cbc, -cbc, cbc}
-	return s * (qbe + qbc), -s * qbc, c
+	st.C = [4]float64{cbe + cbc, -cbc, -cbc, cbc}
+	st.Qb, st.Qc = s*(qbe+qbc), -s*qbc
 }
 
 // Charges implements Charged.

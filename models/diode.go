@@ -97,14 +97,31 @@ func (d *Diode) Ports() int { return 1 }
 
 // Current returns I(V) and dI/dV.
 func (d *Diode) Current(v float64) (i, g float64) {
-	e, de := limexp(v / d.NVt)
+	i, g, _, _ = d.current(v)
+	return i, g
+}
+
+// current is Current, also returning exp(V/(n·Vt)) and its derivative
+// with respect to V/(n·Vt) (limexp).
+func (d *Diode) current(v float64) (i, g, e, de float64) {
+	e, de = limexp(v / d.NVt)
 	i, g = d.Is*(e-1), d.Is*de/d.NVt
 	if d.bv != 0 {
 		eb, deb := limexp(-(v + d.bv) / d.nvtb)
 		i -= d.ibv * (eb - d.ibv0)
 		g += d.ibv * deb / d.nvtb
 	}
-	return i, g
+	return i, g, e, de
+}
+
+// EvalCharge returns Current and Charge at v, the same numbers bit for
+// bit, with the junction's exponential computed once for the current and
+// the diffusion charge.
+func (d *Diode) EvalCharge(v float64) (i, g, q, c float64) {
+	var e, de float64
+	i, g, e, de = d.current(v)
+	q, c = d.charge(v, e, de)
+	return i, g, q, c
 }
 
 // Eval implements Nonlinear.
@@ -154,9 +171,18 @@ func (d *Diode) HasCharges() bool { return d.charged }
 // Charge returns the charge Q(V) that has flowed into the anode, coulombs,
 // and the capacitance dQ/dV, farads: depletion plus diffusion charge.
 func (d *Diode) Charge(v float64) (q, c float64) {
+	var e, de float64
+	if d.tt != 0 {
+		e, de = limexp(v / d.NVt)
+	}
+	return d.charge(v, e, de)
+}
+
+// charge is Charge with exp(V/(n·Vt)) and its derivative given (used only
+// with a transit time).
+func (d *Diode) charge(v, e, de float64) (q, c float64) {
 	q, c = d.dep.charge(v)
 	if d.tt != 0 {
-		e, de := limexp(v / d.NVt)
 		q += d.tt * d.Is * (e - 1)
 		c += d.tt * d.Is * de / d.NVt
 	}

@@ -44,7 +44,14 @@
 // allocation-free, plus junction limiting for Newton's method. Devices
 // that store charge also implement Charged: port charges and the
 // capacitance matrix, as pure functions of the port voltages (the solvers
-// own the time discretisation and its state).
+// own the time discretisation and its state). Diodes and transistors also
+// give both in one call (Diode.EvalCharge, BJT.EvalCharges: the same
+// numbers, the junction exponential computed once), for the solvers' hot
+// loops. The exponentials are a table-driven exp with a derived error
+// bound of 3.4 ulps, and the depletion law's power x^(−m) a table-driven
+// log into it, within 13 ulps where |m·ln x| ≤ 3 (Tang's argument
+// reductions; both checked against 250-bit references and the math
+// package).
 //
 //   - Diode: Shockley's law I = Is·(e^(V/(n·Vt)) − 1) with the emission
 //     coefficient n; optional reverse breakdown (an exponential anchored at
@@ -135,6 +142,9 @@
 //     Wiley, 2007, sec. 2.3 (depletion capacitance).
 //   - A. S. Sedra and K. C. Smith, "Microelectronic Circuits" (the device
 //     models and their small-signal forms; cited from memory).
+//   - P. T. P. Tang, "Table-driven implementation of the exponential
+//     function in IEEE floating-point arithmetic", ACM TOMS 15(2), 1989,
+//     and "… of the logarithm function …", ACM TOMS 16(4), 1990.
 //
 // # Non-goals
 //

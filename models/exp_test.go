@@ -12,8 +12,13 @@ import (
 // 40 of them for |x| ≤ 80, squared ten times (each squaring doubles the
 // relative error, 2¹⁰·2⁻²⁵⁶ in all).
 func bigExp(x float64) float64 {
+	return bigExpOf(new(big.Float).SetPrec(256).SetFloat64(x))
+}
+
+// bigExpOf is bigExp of a 256-bit argument (|x| ≤ 80).
+func bigExpOf(x *big.Float) float64 {
 	const prec = 256
-	y := new(big.Float).SetPrec(prec).SetFloat64(x)
+	y := new(big.Float).SetPrec(prec).Set(x)
 	y.SetMantExp(y, -10)
 	sum := new(big.Float).SetPrec(prec).SetInt64(1)
 	term := new(big.Float).SetPrec(prec).SetInt64(1)

@@ -123,10 +123,10 @@ func benchRig(b *testing.B, r *rig, factor int) {
 
 // BenchmarkChainDemo is chains/demo.toml (pickup, two-transistor fuzz at
 // its chain setting, blend tone, volume, amplifier input; 4 root ports) at
-// the oversampling factors 2, 4, 8 and 16.
+// the oversampling factors 2, 4, 8, 12 and 16.
 func BenchmarkChainDemo(b *testing.B) {
 	ch := loadChain(b, "../../chains/demo.toml", nil)
-	for _, f := range []int{2, 4, 8, 16} {
+	for _, f := range []int{2, 4, 8, 12, 16} {
 		b.Run(fmt.Sprintf("x%d", f), func(b *testing.B) {
 			benchRig(b, newRig(b, ch, f), f)
 		})

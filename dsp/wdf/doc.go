@@ -19,10 +19,13 @@
 // Nonlinear root. With a = v + R·i and b = v − R·i at the root's ports the
 // scattering relation becomes the Kirchhoff-domain relation v = p + K·i (the
 // K-method form of the joint solve), p linear in the leaves' waves and the
-// inputs, K constant. Newton solves v = p + K·f(v) from a predictor (the
-// last solution moved along the linearised solution map by the change in
-// p, with the last Newton matrix's factors, plus the last sample's error
-// of that linear step), with classical junction limiting and a step /
+// inputs, K constant. K's entries below 1e-13 of their row or column, the
+// rounding residue where an ideal source decouples two ports, are set to
+// zero, and the elimination passes over the zeros. Newton solves
+// v = p + K·f(v) from a predictor (the last solution moved along the
+// linearised solution map by the change in p and in the device charges'
+// history, with the last Newton matrix's factors, plus the last sample's
+// error of that linear step), with classical junction limiting and a step /
 // error-estimate convergence test; a failed sample is retried from the
 // last solution, then by continuation in p over 4 and 16 sub-steps; what
 // still fails keeps the best finite iterate and is counted
@@ -48,15 +51,23 @@
 // Device charges. A device that stores charge (models.Charged: junction
 // depletion and diffusion charge) adds its capacitive currents to the
 // Newton residual with the trapezoidal rule, the bilinear discretisation of
-// every linear reactive leaf, and (2/T)·C(v) to the Jacobian; the charge
-// and current of each accepted solution are the state of the next sample,
-// starting from the operating point's charge at Reset. Devices without
-// charges cost nothing for it (charge.go).
+// every linear reactive leaf, and (2/T)·C(v) to the Jacobian; one history
+// term per port, (2/T)·q + i_q of the accepted solution, is the state of
+// the next sample, starting from the operating point's charge at Reset.
+// The accepted charges are those of the last device evaluation moved to
+// the accepted voltages to first order, as the currents are. Devices
+// without charges cost nothing for it (charge.go).
 //
 // Kernels. Roots of up to four ports whose devices have one or two ports
-// each run in a fixed-size kernel (arrays, written-out elimination); others
-// in the general one. Both do the same arithmetic in the same order (a test
-// checks them bit for bit on the same circuits).
+// each run in a fixed-size kernel (arrays, written-out elimination), roots
+// of five to sixteen such ports in a mid-size kernel (arrays with masked
+// indices, rows exchanged by permutation); others in the general one. All
+// do the same arithmetic in the same order (tests check them bit for bit
+// on the same circuits). At 1× a circuit whose linearisation has a pole
+// far above the sample rate rings at the Nyquist frequency after each
+// abrupt change of its devices, the bilinear transform's image of that
+// pole near z = −1 (ringing_test.go): the decimation filter of any
+// oversampling removes it, nothing does at 1×.
 //
 // Non-goals: time-varying knobs within a render (recompile per setting),
 // noise analysis. Device physics (which charges, the Early effect) belongs

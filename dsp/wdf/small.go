@@ -43,41 +43,57 @@ func newSmallRoot(sh *shared) *smallRoot {
 	if sh.k == 0 || sh.k > smallK {
 		return nil
 	}
-	sr := &smallRoot{}
-	for c := range sr.partner {
+	var partner [midK]int
+	devs, ok := pairDevices(sh, &partner)
+	if !ok {
+		return nil
+	}
+	sr := &smallRoot{devs: devs}
+	for r := 0; r < sh.k; r++ {
+		sr.partner[r] = partner[r]
+		for c := 0; c < sh.k; c++ {
+			sr.kk[r][c] = sh.kk[r*sh.k+c]
+			sr.kp[r][c] = sh.kk[r*sh.k+partner[c]]
+		}
+	}
+	for c := sh.k; c < smallK; c++ {
 		sr.partner[c] = c
+	}
+	return sr
+}
+
+// pairDevices lists the root's devices for the array kernels and writes
+// each port's device partner (the port itself for a one-port device); it
+// reports false when a device has more than two ports.
+func pairDevices(sh *shared, partner *[midK]int) ([]smallDev, bool) {
+	var devs []smallDev
+	for c := range partner {
+		partner[c] = c
 	}
 	for _, d := range sh.devs {
 		switch d.n {
 		case 1:
 		case 2:
-			sr.partner[d.off], sr.partner[d.off+1] = d.off+1, d.off
+			partner[d.off&portMask], partner[(d.off+1)&portMask] = d.off+1, d.off
 		default:
-			return nil
+			return nil, false
 		}
-		sr.devs = append(sr.devs, smallDev{d.bjt, d.dio, d.model, d.chg, d.off, d.n})
+		devs = append(devs, smallDev{d.bjt, d.dio, d.model, d.chg, d.off, d.n})
 	}
-	for r := 0; r < sh.k; r++ {
-		for c := 0; c < sh.k; c++ {
-			sr.kk[r][c] = sh.kk[r*sh.k+c]
-		}
-	}
-	for r := range sr.kp {
-		for c := range sr.kp[r] {
-			sr.kp[r][c] = sr.kk[r][sr.partner[c]]
-		}
-	}
-	return sr
+	return devs, true
 }
 
-// evalSmall evaluates the devices at v: the port currents into i, and Jf
-// by columns: jd[c] = ∂i_c/∂v_c, jo[c] = ∂i_partner(c)/∂v_c.
-func (s *Solver) evalSmall(v, i, jd, jo *[smallK]float64) {
-	for n := range s.small.devs {
-		d := &s.small.devs[n]
-		c := d.c & (smallK - 1)
-		if d.bjt != nil {
-			c1 := (c + 1) & (smallK - 1)
+// evalPorts evaluates the devices devs (of the fixed-size or the
+// mid-size kernel) at v: the port currents into i, and Jf by columns:
+// jd[c] = ∂i_c/∂v_c, jo[c] = ∂i_partner(c)/∂v_c.
+func (s *Solver) evalPorts(devs []smallDev, v, i, jd, jo *portVec) {
+	for n := range devs {
+		d := &devs[n]
+		c := d.c & portMask
+		if d.chg != nil {
+			s.evalChargedPorts(d, v, i, jd, jo)
+		} else if d.bjt != nil {
+			c1 := (c + 1) & portMask
 			var j [4]float64
 			i[c], i[c1], j = d.bjt.Eval2(v[c], v[c1])
 			jd[c], jo[c], jd[c1], jo[c1] = j[0], j[2], j[3], j[1]
@@ -86,17 +102,14 @@ func (s *Solver) evalSmall(v, i, jd, jo *[smallK]float64) {
 		} else {
 			s.evalOther(d, v, i, jd, jo)
 		}
-		if d.chg != nil {
-			s.addChargesSmall(d, v, i, jd, jo)
-		}
 	}
 }
 
 // evalOther evaluates a device other than a diode or transistor through
 // models.Nonlinear, with the solver's scratch buffers (a slice of a stack
 // array handed to an interface method would escape and allocate).
-func (s *Solver) evalOther(d *smallDev, v, i, jd, jo *[smallK]float64) {
-	c := d.c & (smallK - 1)
+func (s *Solver) evalOther(d *smallDev, v, i, jd, jo *portVec) {
+	c := d.c & portMask
 	gv, gi, gj := s.gv[:d.n], s.gi[:d.n], s.gj[:d.n*d.n]
 	if d.n == 1 {
 		gv[0] = v[c]
@@ -104,7 +117,7 @@ func (s *Solver) evalOther(d *smallDev, v, i, jd, jo *[smallK]float64) {
 		i[c], jd[c] = gi[0], gj[0]
 		return
 	}
-	c1 := (c + 1) & (smallK - 1)
+	c1 := (c + 1) & portMask
 	gv[0], gv[1] = v[c], v[c1]
 	d.model.Eval(gv, gi, gj)
 	i[c], i[c1] = gi[0], gi[1]
@@ -112,9 +125,9 @@ func (s *Solver) evalOther(d *smallDev, v, i, jd, jo *[smallK]float64) {
 }
 
 // limitOther is Limit for a device evaluated by evalOther.
-func (s *Solver) limitOther(d *smallDev, v, vold *[smallK]float64) {
-	c := d.c & (smallK - 1)
-	c1 := (c + d.n - 1) & (smallK - 1)
+func (s *Solver) limitOther(d *smallDev, v, vold *portVec) {
+	c := d.c & portMask
+	c1 := (c + d.n - 1) & portMask
 	gv, go0 := s.gv[:d.n], s.gi[:d.n]
 	gv[0], go0[0] = v[c], vold[c]
 	gv[d.n-1], go0[d.n-1] = v[c1], vold[c1]
@@ -122,14 +135,14 @@ func (s *Solver) limitOther(d *smallDev, v, vold *[smallK]float64) {
 	v[c], v[c1] = gv[0], gv[d.n-1]
 }
 
-// limitSmall is limit on the fixed-size vectors.
-func (s *Solver) limitSmall(v, vold *[smallK]float64) {
-	for n := range s.small.devs {
-		d := &s.small.devs[n]
-		c := d.c & (smallK - 1)
+// limitPorts is limit on the fixed-size vectors.
+func (s *Solver) limitPorts(devs []smallDev, v, vold *portVec) {
+	for n := range devs {
+		d := &devs[n]
+		c := d.c & portMask
 		switch {
 		case d.bjt != nil:
-			c1 := (c + 1) & (smallK - 1)
+			c1 := (c + 1) & portMask
 			v[c], v[c1] = d.bjt.Limit2(v[c], v[c1], vold[c], vold[c1])
 		case d.dio != nil:
 			v[c] = d.dio.Limit1(v[c], vold[c])
@@ -139,14 +152,14 @@ func (s *Solver) limitSmall(v, vold *[smallK]float64) {
 	}
 }
 
-// physicalSmall is physical on the fixed-size vector.
-func (s *Solver) physicalSmall(v *[smallK]float64) bool {
-	for n := range s.small.devs {
-		d := &s.small.devs[n]
-		c := d.c & (smallK - 1)
+// physicalPorts is physical on the fixed-size vector.
+func physicalPorts(devs []smallDev, v *portVec) bool {
+	for n := range devs {
+		d := &devs[n]
+		c := d.c & portMask
 		switch {
 		case d.bjt != nil:
-			if !d.bjt.Physical(v[c], v[(c+1)&(smallK-1)]) {
+			if !d.bjt.Physical(v[c], v[(c+1)&portMask]) {
 				return false
 			}
 		case d.dio != nil:
@@ -165,13 +178,17 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 	s.haveLU = false
 	sr := s.small
 	K := &sr.kk
-	var i, f, vOld, jd, jo [smallK]float64
+	var f [smallK]float64
+	// The first smallK entries in use; in the solver, so that they need
+	// not be cleared at each call (entries beyond k are never written).
+	v, i, vOld, jd, jo := &s.kv, &s.kcur, &s.kvOld, &s.kjd, &s.kjo
 	// The solver's vectors have room for smallK entries, zero beyond k.
-	v := [smallK]float64(s.v[:smallK])
+	sv := (*[smallK]float64)(s.v[:smallK])
+	v[0], v[1], v[2], v[3] = sv[0], sv[1], sv[2], sv[3]
 	p := [smallK]float64(pIn[:smallK])
 	best := inf
 	for it := 1; it <= maxIter; it++ {
-		s.evalSmall(&v, &i, &jd, &jo)
+		s.evalPorts(sr.devs, v, i, jd, jo)
 		// Residual F = v − p − K·i (negated into f), summed in the order of
 		// dot, and the Newton matrix J = I − K·Jf.
 		f[0] = -(v[0] - p[0] - ((K[0][0]*i[0] + K[0][1]*i[1]) + (K[0][2]*i[2] + K[0][3]*i[3])))
@@ -186,7 +203,7 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 		}
 		if res < best {
 			best = res
-			*(*[smallK]float64)(s.vBest[:smallK]) = v
+			setSmall(s.vBest, v)
 		}
 		// J is built and factored in the solver's lu4, so that after
 		// convergence its factors remain for the next sample's predictor.
@@ -202,17 +219,17 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 			a[r][r]++
 		}
 		if !solve4(a, &f, &s.piv4) {
-			*(*[smallK]float64)(s.v[:smallK]) = v
+			setSmall(s.v, v)
 			return it, false
 		}
-		vOld = v
+		vOld[0], vOld[1], vOld[2], vOld[3] = v[0], v[1], v[2], v[3]
 		big := false
 		for r := 0; r < smallK; r++ {
 			v[r] += f[r]
 			big = big || f[r] > s.freeStep || f[r] < -s.freeStep
 		}
 		if big {
-			s.limitSmall(&v, &vOld)
+			s.limitPorts(sr.devs, v, vOld)
 		}
 		step := 0.0
 		var dv [smallK]float64
@@ -227,24 +244,74 @@ func (s *Solver) newtonSmall(pIn []float64, maxIter int) (int, bool) {
 			}
 		}
 		if !(step < inf) { // NaN or Inf
-			*(*[smallK]float64)(s.v[:smallK]) = v
+			setSmall(s.v, v)
 			return it, false
 		}
-		if (step < s.tol || step*step*s.curv < s.tol*0.1) && s.physicalSmall(&v) {
+		if (step < s.tol || step*step*s.curv < s.tol*0.1) && physicalPorts(sr.devs, v) {
 			// First-order update of the currents to the accepted v: row c
 			// of Jf holds jd[c] and jo[partner(c)].
 			for c := 0; c < smallK; c++ {
 				q := sr.partner[c] & (smallK - 1)
 				i[c] += jd[c]*dv[c] + jo[q]*dv[q]
 			}
-			*(*[smallK]float64)(s.v[:smallK]) = v
-			*(*[smallK]float64)(s.i[:smallK]) = i
+			if s.charged {
+				// The charges likewise (see commitCharges).
+				qe := &s.qEval16
+				for c := 0; c < smallK; c++ {
+					q := sr.partner[c] & (smallK - 1)
+					qe[c] += s.cd16[c]*dv[c] + s.co16[q]*dv[q]
+				}
+			}
+			setSmall(s.v, v)
+			setSmall(s.i, i)
 			s.haveLU = true
 			return it, true
 		}
 	}
-	*(*[smallK]float64)(s.v[:smallK]) = v
+	setSmall(s.v, v)
 	return maxIter, false
+}
+
+// predictSmall is predict (with factors) on the fixed-size vectors: the
+// same sums in the same order (K·dh in the order of dot).
+func (s *Solver) predictSmall() {
+	vp := (*[smallK]float64)(s.vPrev[:smallK])
+	p := (*[smallK]float64)(s.p[:smallK])
+	pp := (*[smallK]float64)(s.pPrev[:smallK])
+	var d [smallK]float64
+	for r := range d {
+		d[r] = p[r] - pp[r]
+	}
+	if s.charged {
+		K, dh := &s.small.kk, (*[smallK]float64)(s.dh[:smallK])
+		for r := range d {
+			kr := &K[r]
+			d[r] -= (kr[0]*dh[0] + kr[1]*dh[1]) + (kr[2]*dh[2] + kr[3]*dh[3])
+		}
+	}
+	applyLU4(&s.lu4, &s.piv4, &d)
+	lin := (*[smallK]float64)(s.lin[:smallK])
+	le := (*[smallK]float64)(s.linErr[:smallK])
+	v, vold := &s.kv, &s.kvOld
+	big := false
+	for r := range d {
+		lin[r] = vp[r] + d[r]
+		v[r] = lin[r] + le[r]
+		vold[r] = vp[r]
+		x := v[r] - vp[r]
+		big = big || x > s.freeStep || x < -s.freeStep
+	}
+	if big {
+		s.limitPorts(s.small.devs, v, vold)
+	}
+	setSmall(s.v, v)
+}
+
+// setSmall copies the first smallK entries of x into dst (which has room
+// for them), element by element: cheaper than copy's memmove.
+func setSmall(dst []float64, x *portVec) {
+	d := (*[smallK]float64)(dst[:smallK])
+	d[0], d[1], d[2], d[3] = x[0], x[1], x[2], x[3]
 }
 
 // solve4 is solveInPlace written out for four ports; piv receives the
