@@ -261,6 +261,10 @@ func transistorWarnings(t Transistor, c *models.Circuit, vplus int, supply float
 		w = append(w, fmt.Sprintf("%s is cut off at idle (%s): it passes no signal until driven on", t.Ref, ic))
 	case Reverse:
 		w = append(w, fmt.Sprintf("%s works in reverse (collector and emitter swapped in effect): check its pins", t.Ref))
+	case Active:
+		if m := leakageWarning(t, c); m != "" {
+			w = append(w, m)
+		}
 	}
 	nc := c.Lookup(t.Collector)
 	if nc != models.Ground && nc != vplus {
@@ -272,6 +276,27 @@ func transistorWarnings(t Transistor, c *models.Circuit, vplus int, supply float
 		}
 	}
 	return w
+}
+
+// leakageWarning words an active transistor whose base current runs
+// against its collector current: the collector–base leakage (Icbo at the
+// circuit's temperature) is more than the base current the collector
+// current needs, so the bias network takes current out of the base lead
+// of an NPN (into that of a PNP). A germanium part does this at a few
+// hundred µA; then Ic/Ib is no reading of hFE, and how far the collector
+// current follows the leakage (doubling every ten kelvin or so) depends
+// on the bias network. "" otherwise.
+func leakageWarning(t Transistor, c *models.Circuit) string {
+	if t.Ic == 0 || t.Ib == 0 || (t.Ic > 0) == (t.Ib > 0) {
+		return ""
+	}
+	e := c.Element(t.Ref)
+	if e == nil || e.Kind != models.BJTKind || e.BJT.Icbo <= 0 {
+		return ""
+	}
+	icbo := models.LeakageAt(e.BJT.Icbo, e.BJT.LeakDoubling, c.Temperature, models.NominalTemperature)
+	return fmt.Sprintf("%s's leakage (Icbo %s at %.0f °C) is more than the base current its Ic needs: the base lead carries %s the other way, so Ic/Ib is no reading of hFE (βF %g); a temperature table shows how far Ic follows the leakage",
+		t.Ref, models.FormatValue(icbo, "A"), c.Temperature-models.ZeroCelsius, models.FormatValue(math.Abs(t.Ib), "A"), e.BJT.BetaF)
 }
 
 // distance words how far a node sits from a rail: "at" below the display

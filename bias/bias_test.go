@@ -297,3 +297,45 @@ parts = [
 		t.Errorf("JSON: junction in nodes %v, internal %v", r.Nodes, r.InternalNodes)
 	}
 }
+
+// A leaky transistor whose base current runs backwards: with the
+// collector junction reverse-biased, the leakage model must give the
+// textbook relation Ic = βF·Ib + (βF + 1)·Icbo (Sedra & Smith, the
+// section on the collector–base leakage current; common practice), to
+// 1e-6 relative (the terms it leaves out, Is/βR and exp(Vbc/Vt), are
+// below 1e-14 A here). When Icbo passes Ic/βF the external base current
+// changes sign and bias warns that Ic/Ib is no reading of hFE; with a
+// small leakage it stays quiet.
+func TestLeakyBaseCurrentWarns(t *testing.T) {
+	for _, tc := range []struct {
+		icbo string
+		warn bool
+	}{{"2u", true}, {"20n", false}} {
+		ce := testchains.CE{Vcc: "-9V", R1: "82k", R2: "10k", RC: "8k2", RE: "3k9", Kind: "pnp", Beta: 95}
+		src := strings.Replace(ce.TOML(), "br = 4,", "br = 4, icbo = \""+tc.icbo+"\",", 1)
+		ch, err := chains.Parse("leaky.toml", src)
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := Solve(ch)
+		if err != nil {
+			t.Fatal(err)
+		}
+		q := b.Transistor("ce.Q1")
+		icbo, _ := models.ParseValue(tc.icbo, models.Current)
+		// PNP: every terminal current negated, Icbo too.
+		want := -(95*(-q.Ib) + 96*icbo)
+		if rel := math.Abs(q.Ic/want - 1); q.Region != Active || rel > 1e-6 {
+			t.Errorf("Icbo %s: region %s, Ic %.6g A, βF·Ib + (βF+1)·Icbo = %.6g A (rel. %.2g)", tc.icbo, q.Region, q.Ic, want, rel)
+		}
+		reversed := (q.Ic > 0) != (q.Ib > 0)
+		found := false
+		for _, w := range b.Warnings {
+			found = found || strings.Contains(w, "no reading of hFE")
+		}
+		if reversed != tc.warn || found != tc.warn {
+			t.Errorf("Icbo %s: Ib %.4g A against Ic %.4g A (reversed %v), warnings %q, want warning %v", tc.icbo, q.Ib, q.Ic, reversed, b.Warnings, tc.warn)
+		}
+		t.Logf("Icbo %s: Ic %.6g A, Ib %.6g A, relation %.6g A", tc.icbo, q.Ic, q.Ib, want)
+	}
+}
