@@ -75,6 +75,9 @@ type Part struct {
 	// (0-based; Text holds its name).
 	Positions []Position
 	Position  int
+	// Polarized marks a capacitor written with pins = { plus, minus }
+	// (an electrolytic): Pins["1"] is its + lead, Pins["2"] its − lead.
+	Polarized bool
 }
 
 var commonKeys = map[string]bool{"ref": true, "kind": true, "value": true, "pins": true, "tolerance": true,
@@ -514,6 +517,12 @@ func parsePart(rp map[string]any) (*Part, error) {
 			p.Pins[fmt.Sprint(i+1)] = s
 		}
 	case map[string]any:
+		if kind == Capacitor {
+			if err := p.parsePolarPins(pins); err != nil {
+				return fail("%v", err)
+			}
+			break
+		}
 		if kind == Transformer || kind == Switch {
 			return fail("a %s's pins sit in its %s", kind, map[PartKind]string{Transformer: "windings", Switch: "positions"}[kind])
 		}
@@ -704,5 +713,30 @@ func (p *Part) complete() error {
 			return fail("%v", err)
 		}
 	}
+	return nil
+}
+
+// parsePolarPins reads a polarized capacitor's pins, a table with the two
+// leads plus and minus, into Pins["1"] (+) and Pins["2"] (−).
+func (p *Part) parsePolarPins(pins map[string]any) error {
+	for role, v := range pins {
+		if role != "plus" && role != "minus" {
+			return fmt.Errorf("unknown pin %q (a polarized capacitor has plus, minus; an unpolarized one a two-name list)", role)
+		}
+		s, isStr := v.(string)
+		if !isStr || s == "" {
+			return fmt.Errorf("pin %s is not a node name", role)
+		}
+		if err := checkNodeName(s); err != nil {
+			return fmt.Errorf("pin %s: %v", role, err)
+		}
+	}
+	for _, role := range []string{"plus", "minus"} {
+		if _, ok := pins[role]; !ok {
+			return fmt.Errorf("pin %s is not connected", role)
+		}
+	}
+	p.Pins["1"], p.Pins["2"] = pins["plus"].(string), pins["minus"].(string)
+	p.Polarized = true
 	return nil
 }

@@ -54,6 +54,9 @@ var (
 
 // deviceParams are the parameters each kind takes besides the common keys.
 var deviceParams = map[PartKind]map[string]param{
+	Capacitor: {
+		"rating": {models.Voltage, models.Range{Lo: 0, LoOpen: true, Hi: 1000, Unit: "V"}, "working voltage; the operating-point check warns when more sits across the capacitor at idle"},
+	},
 	Diode: {
 		"is": pIs, "n": pN, "rs": {models.Resistance, closedRange(0, 1e6, "Ω"), "series resistance"},
 		"eg": pEg, "xti": pXTI,

@@ -20,6 +20,14 @@ const (
 	// transistor counts as cut off for the polarity check: the same
 	// 1 µA as the bias package's region rule.
 	ConductionCurrent = 1e-6
+	// ReverseBias is the reverse voltage, V, across a polarized
+	// capacitor at idle above which the lint says it sits the wrong way
+	// round. Aluminium electrolytics are commonly specified for no more
+	// than about 1 V of reverse voltage, and that only for short times
+	// (from memory of typical datasheets); a correctly fitted coupling or
+	// bypass capacitor idles with its + lead at or above its − lead, so
+	// half a volt the wrong way is a part in backwards, not a rounding.
+	ReverseBias = 0.5
 )
 
 // Typical power ratings, W, of the parts a pedal is built from, for the
@@ -167,7 +175,35 @@ func (f *Flat) CheckOperatingPoint(op *mna.OperatingPoint) Findings {
 				models.FormatValue(l.watts, "W"), models.FormatValue(rating, "W"), what))
 		}
 	}
+	out = append(out, f.capacitorFindings(op)...)
 	f.Findings = append(f.Findings, out...)
+	return out
+}
+
+// capacitorFindings warns about a polarized capacitor reversed at idle
+// (more than ReverseBias across it the wrong way) and about any capacitor
+// with a rating that has more than that across it at idle.
+func (f *Flat) capacitorFindings(op *mna.OperatingPoint) Findings {
+	ch, c := f.Chain, f.Circuit
+	var out Findings
+	for i, e := range c.Elements {
+		if e.Kind != models.CapacitorKind {
+			continue
+		}
+		st, p := ch.partOf(e.Ref)
+		if p == nil || p.Kind != Capacitor {
+			continue // a cable's capacitance, or one inside a part
+		}
+		v := op.ElementVoltage(i) // V(Pins["1"]) − V(Pins["2"]): + minus − when polarized
+		if p.Polarized && v < -ReverseBias {
+			out = append(out, ch.partFinding(Warning, st, p, "polarized, but its + lead (%s) idles %s below its − lead (%s): it is in backwards and an electrolytic fitted so leaks, heats and can vent; swap plus and minus (in a positive-ground build every electrolytic turns round)",
+				p.Pins["1"], models.FormatValue(-v, "V"), p.Pins["2"]))
+		}
+		if r, ok := p.Params["rating"]; ok && math.Abs(v) > r {
+			out = append(out, ch.partFinding(Warning, st, p, "%s across it at idle, above its %s rating: use a part rated for the supply",
+				models.FormatValue(math.Abs(v), "V"), models.FormatValue(r, "V")))
+		}
+	}
 	return out
 }
 

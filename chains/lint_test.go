@@ -375,3 +375,92 @@ parts = [{ ref = "R1", kind = "resistor", value = "1m", pins = ["v+", "gnd"] }]
 		}
 	})
 }
+
+// electrolyticStage is a divider-biased common-emitter stage on supply
+// with an emitter bypass electrolytic and an output coupling one, their
+// pins as given (TOML tables), and the coupling one's rating ("" for
+// none).
+func electrolyticStage(supply, kind, bypass, coupling, rating string) string {
+	r := ""
+	if rating != "" {
+		r = fmt.Sprintf("rating = %q, ", rating)
+	}
+	rc, rb := `"v+", "c"`, `"v+", "b"`
+	return fmt.Sprintf(`name = "electrolytics"
+supply = %q
+[[stage]]
+id = "a"
+parts = [
+  { ref = "CIN", kind = "capacitor", value = "100n", pins = ["in", "b"] },
+  { ref = "RB1", kind = "resistor", value = "100k", pins = [%s] },
+  { ref = "RB2", kind = "resistor", value = "22k", pins = ["b", "gnd"] },
+  { ref = "RE",  kind = "resistor", value = "1k",  pins = ["e", "gnd"] },
+  { ref = "CE",  kind = "capacitor", value = "47u", pins = %s },
+  { ref = "RC",  kind = "resistor", value = "2k2", pins = [%s] },
+  { ref = "Q1",  kind = %q, model = "si-%s", pins = { c = "c", b = "b", e = "e" } },
+  { ref = "COUT", kind = "capacitor", value = "10u", %spins = %s },
+  { ref = "RL",  kind = "resistor", value = "100k", pins = ["out", "gnd"] },
+]
+`, supply, rb, bypass, rc, kind, kind, r, coupling)
+}
+
+// Electrolytics against the rule of the trade (common practice): the +
+// lead goes to the node that idles more positive, so on a negative-ground
+// NPN stage the bypass has + on the emitter and the coupling capacitor +
+// on the collector, and on the positive-ground mirror image (a PNP on
+// −9 V) both turn round. Each reversed one is named with the voltage
+// across it, on its own line of the file; a rating under the idle voltage
+// is named too; an unpolarized capacitor and a correctly fitted one are
+// left alone.
+func TestElectrolyticPolarityAndRating(t *testing.T) {
+	const (
+		eUp   = `{ plus = "e", minus = "gnd" }`
+		eDown = `{ plus = "gnd", minus = "e" }`
+		cUp   = `{ plus = "c", minus = "out" }`
+		cDown = `{ plus = "out", minus = "c" }`
+		plain = `["c", "out"]`
+	)
+	cases := []struct {
+		name, supply, kind, bypass, coupling, rating string
+		want                                         []string // part refs warned about, with a word of the message
+	}{
+		{"npn as drawn", "9V", "npn", eUp, cUp, "", nil},
+		{"npn, unpolarized coupling", "9V", "npn", eUp, plain, "", nil},
+		{"npn, bypass in backwards", "9V", "npn", eDown, cUp, "", []string{"CE: polarized"}},
+		{"npn, coupling in backwards", "9V", "npn", eUp, cDown, "", []string{"COUT: polarized"}},
+		{"pnp on -9 V with the npn's orientation", "-9V", "pnp", eUp, cUp, "", []string{"CE: polarized", "COUT: polarized"}},
+		{"pnp on -9 V turned round", "-9V", "pnp", eDown, cDown, "", nil},
+		{"npn, coupling rated 6V3", "9V", "npn", eUp, cUp, "6V3", []string{"COUT: ", "above its 6.3 V rating"}},
+		{"npn, coupling rated 16V", "9V", "npn", eUp, cUp, "16V", nil},
+	}
+	for _, c := range cases {
+		got := opFindings(t, electrolyticStage(c.supply, c.kind, c.bypass, c.coupling, c.rating))
+		var msgs []string
+		for _, f := range got {
+			msgs = append(msgs, f.String())
+		}
+		all := strings.Join(msgs, "\n")
+		switch {
+		case c.want == nil && len(got) != 0:
+			t.Errorf("%s: %q, want no findings", c.name, msgs)
+		case c.want != nil && c.name == "npn, coupling rated 6V3":
+			if len(got) != 1 || !strings.Contains(all, c.want[0]) || !strings.Contains(all, c.want[1]) {
+				t.Errorf("%s: %q, want one finding with %q", c.name, msgs, c.want)
+			}
+		case c.want != nil:
+			if len(got) != len(c.want) {
+				t.Errorf("%s: %q, want %d findings", c.name, msgs, len(c.want))
+			}
+			for _, w := range c.want {
+				if !strings.Contains(all, "part "+w) {
+					t.Errorf("%s: %q, want one about %q", c.name, msgs, w)
+				}
+			}
+		}
+		for _, f := range got {
+			if f.Line == 0 {
+				t.Errorf("%s: %q has no line", c.name, f.String())
+			}
+		}
+	}
+}

@@ -138,6 +138,7 @@ func cutRunes(s string, n int) string {
 //
 //	22000  22e3  22k  22kΩ  22 kohm   SI prefix, optional unit
 //	4k7  2n2  2M2  4R7  100R          IEC 60062 letter-as-decimal-point codes
+//	6V3  4V7                          a voltage's unit as the decimal mark (markings)
 //	-9V  300mV  25C  25°C  298.15K    signed values and units
 //
 // Plain numbers are SI units. A unit that belongs to another quantity, a
@@ -188,6 +189,12 @@ func ParseValue(text string, q Quantity) (float64, error) {
 		if r == 'R' && q == Resistance {
 			p, isPrefix = 1, true
 		}
+		// "6V3", "4V7": a voltage's unit letter as the decimal mark, as
+		// capacitor and zener markings write it (common practice); a V
+		// that no digit follows stays the unit ("9V").
+		if r == 'V' && q == Voltage && len(rest) > 1 && rest[1] >= '0' && rest[1] <= '9' {
+			p, isPrefix = 1, true
+		}
 		// "m" alone after a length is the metre, not milli.
 		if q == Length && r == 'm' && len(rest) == 1 {
 			isPrefix = false
@@ -209,10 +216,10 @@ func ParseValue(text string, q Quantity) (float64, error) {
 			}
 			scale = p
 			rest = strings.TrimLeftFunc(after[k:], unicode.IsSpace)
-			if r == 'R' {
-				rest = "" // R is both the decimal mark and the unit
+			if r == 'R' || r == 'V' && q == Voltage {
+				rest = "" // R (V) is both the decimal mark and the unit
 				if after[k:] != "" {
-					return bad("unexpected text after R")
+					return bad("unexpected text after " + string(r))
 				}
 			}
 		}

@@ -73,6 +73,9 @@ func TestParseValueAccepts(t *testing.T) {
 		{"1F", models.Capacitance, 1, "unit F"},
 		{"100mH", models.Inductance, 0.1, "unit H"},
 		{"9V", models.Voltage, 9, "unit V"},
+		{"6V3", models.Voltage, 6.3, "V as the decimal mark, as capacitor markings write it (common practice)"},
+		{"4V7", models.Voltage, 4.7, "V as the decimal mark, as zener markings write it (common practice)"},
+		{"-6V3", models.Voltage, -6.3, "signed, V as the decimal mark"},
 		{"300mV", models.Voltage, 0.3, "unit V with milli"},
 		{"2mA", models.Current, 2e-3, "unit A"},
 		{"1kHz", models.Frequency, 1e3, "unit Hz"},
@@ -116,6 +119,8 @@ func TestParseValueRejects(t *testing.T) {
 		reason string // a word the reason must hold
 	}{
 		{"22kk", models.Resistance, "prefix"},
+		{"6V3V", models.Voltage, "after V"},
+		{"6V3", models.Resistance, "unit"},
 		{"4k7k", models.Resistance, "prefix"},
 		{"abc", models.Resistance, "no number"},
 		{"", models.Resistance, "empty"},

@@ -146,7 +146,13 @@ func PartsListContext(ctx context.Context, ch *chains.Chain, allStages bool) (*B
 					need := math.Max(vmin, CapacitorMargin*math.Abs(v))
 					l.MinVoltage = report.Number(pick(capacitorRatings, need))
 					l.Rating = sprintf("≥ %s", models.FormatValue(float64(l.MinVoltage), "V"))
-					if p.Value >= ElectrolyticFrom {
+					if r, ok := p.Params["rating"]; ok {
+						l.Rating = sprintf("%s as written", models.FormatValue(r, "V"))
+						if r < need {
+							l.Rating += sprintf("; needs ≥ %s", models.FormatValue(float64(l.MinVoltage), "V"))
+						}
+					}
+					if p.Value >= ElectrolyticFrom || p.Polarized {
 						l.Note = polarity(ch, st, p, v)
 					}
 				case chains.Cable:
@@ -252,8 +258,17 @@ func ratingW(w float64) string {
 }
 
 // polarity says which way round an electrolytic goes, from the DC voltage
-// v across it (pin 1 minus pin 2).
+// v across it (pin 1 minus pin 2); for a capacitor written polarized, the
+// written way round, or where it should go when that idles reversed (the
+// threshold of the chain lint's warning).
 func polarity(ch *chains.Chain, st *chains.Stage, p *chains.Part, v float64) string {
+	node := func(pin string) string { return ch.Wiring().Node(st.ID, p.Pins[pin]) }
+	if p.Polarized {
+		if v < -chains.ReverseBias {
+			return sprintf("electrolytic written + to %s, but that lead idles %s below the other: fit + to %s", node("1"), models.FormatValue(-v, "V"), node("2"))
+		}
+		return sprintf("electrolytic: + to %s as written (%s across at idle)", node("1"), models.FormatValue(v, "V"))
+	}
 	if math.Abs(v) < 0.05 {
 		return sprintf("electrolytic: %s across at idle, non-polarised or either way round", models.FormatValue(v, "V"))
 	}

@@ -147,3 +147,37 @@ func TestPartsEnvironment(t *testing.T) {
 		}
 	}
 }
+
+// A capacitor written polarized keeps the written way round in the parts
+// list, and one written in backwards (+ on the emitter of a PNP stage on
+// −9 V, which idles below ground) says where + should go; a written
+// rating is shown, with the common-practice minimum (1.5 × the supply,
+// 16 V on 9 V) when it falls short.
+func TestPartsWrittenElectrolytic(t *testing.T) {
+	base := testchains.CE{Vcc: "-9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "pnp", Beta: 100}.TOML()
+	for _, c := range []struct {
+		pins, rating, note, ratingText string
+	}{
+		{`{ plus = "gnd", minus = "e" }`, "", "+ to gnd as written", "≥ 16 V"},
+		{`{ plus = "e", minus = "gnd" }`, `rating = "6V3", `, "written + to ce.e, but that lead idles", "6.3 V as written; needs ≥ 16 V"},
+		{`{ plus = "gnd", minus = "e" }`, `rating = "25V", `, "+ to gnd as written", "25 V as written"},
+	} {
+		src := strings.Replace(base, `{ ref = "CE", kind = "capacitor", value = "100u", pins = ["e", "gnd"] }`,
+			`{ ref = "CE", kind = "capacitor", value = "100u", `+c.rating+`pins = `+c.pins+` }`, 1)
+		if src == base {
+			t.Fatal("the test stage's emitter bypass was not found")
+		}
+		ch, err := chains.Parse("ce.toml", src)
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := PartsList(ch, false)
+		if err != nil {
+			t.Fatal(err)
+		}
+		l := bomLine(t, b, "ce.CE")
+		if !strings.Contains(l.Note, c.note) || l.Rating != c.ratingText {
+			t.Errorf("%s %s: note %q, rating %q; want %q, %q", c.pins, c.rating, l.Note, l.Rating, c.note, c.ratingText)
+		}
+	}
+}
