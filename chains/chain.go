@@ -20,6 +20,9 @@ type Chain struct {
 	Name        string
 	File        string  // the file name used in messages
 	Supply      float64 // volts on v+ relative to gnd (negative: positive ground)
+	// SupplyAssumed tells that the file gave no supply and Supply is the
+	// default, 9 V (negative ground).
+	SupplyAssumed bool
 	Temperature float64 // kelvin
 	Oversample  int     // 0: the caller's default
 	InputPeak   float64 // source volts at digital full scale
@@ -175,6 +178,7 @@ func Parse(name, src string) (*Chain, error) {
 	if ch.Supply, err = top("", "supply", raw.Supply, models.Voltage, models.SupplyRange, "9V"); err != nil {
 		return nil, err
 	}
+	ch.SupplyAssumed = raw.Supply == nil
 	if ch.Temperature, err = top("", "temperature", raw.Temperature, models.Temperature, models.TemperatureRange, "25C"); err != nil {
 		return nil, err
 	}

@@ -49,6 +49,10 @@ func (ch *Chain) Flatten() (*Flat, error) {
 	uses := ch.pinUses(w)
 	f := &Flat{Chain: ch, Wiring: w}
 	f.Findings = ch.lintWiring(w, uses)
+	if ch.SupplyAssumed && ch.hasDevices() {
+		f.Findings = append(f.Findings, Finding{File: ch.File, Where: "supply", Severity: Note,
+			Msg: "the file gives no supply: 9 V, negative ground, assumed; write supply = \"9V\" (or \"-9V\" for a positive-ground build) to say so"})
+	}
 	if err := f.Findings.Err(); err != nil {
 		return nil, err
 	}
@@ -226,4 +230,17 @@ func (ch *Chain) partOf(ref string) (*Stage, *Part) {
 		return st, p
 	}
 	return nil, nil
+}
+
+// hasDevices tells whether any stage (or the power network) holds a
+// semiconductor or an op-amp: a part the supply matters to.
+func (ch *Chain) hasDevices() bool {
+	for _, st := range ch.allStages() {
+		for _, p := range st.Parts {
+			if p.Kind.Device() {
+				return true
+			}
+		}
+	}
+	return false
 }

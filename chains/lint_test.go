@@ -464,3 +464,36 @@ func TestElectrolyticPolarityAndRating(t *testing.T) {
 		}
 	}
 }
+
+// A chain with a transistor and no supply runs on the documented default
+// and says so in a note; written out, or on a chain of passive parts
+// only, it says nothing.
+func TestAssumedSupplyNote(t *testing.T) {
+	withSupply := stageAt("9V", "npn", false)
+	without := strings.Replace(withSupply, "supply = \"9V\"\n", "", 1)
+	if without == withSupply {
+		t.Fatal("the supply line was not removed")
+	}
+	passive := `name = "passive"
+[[stage]]
+id = "a"
+parts = [ { ref = "R1", kind = "resistor", value = "1k", pins = ["in", "out"] } ]
+`
+	for _, c := range []struct {
+		name, src string
+		want      bool
+	}{{"transistor, no supply", without, true}, {"transistor, supply written", withSupply, false}, {"passive, no supply", passive, false}} {
+		ch, err := Parse("s.toml", c.src)
+		if err != nil {
+			t.Fatal(err)
+		}
+		f, err := ch.Flatten()
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := strings.Contains(strings.Join(f.Findings.Notes(), "\n"), "no supply")
+		if got != c.want || ch.Supply != 9 {
+			t.Errorf("%s: notes %q, supply %g V; want a note %v and 9 V", c.name, f.Findings.Notes(), ch.Supply, c.want)
+		}
+	}
+}
