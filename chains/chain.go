@@ -17,19 +17,19 @@ import (
 // Chain is a parsed, checked chain file: what drives the chain, the stages
 // in order and what loads the output. Values are in SI units.
 type Chain struct {
-	Name        string
-	File        string  // the file name used in messages
-	Supply      float64 // volts on v+ relative to gnd (negative: positive ground)
+	Name   string
+	File   string  // the file name used in messages
+	Supply float64 // volts on v+ relative to gnd (negative: positive ground)
 	// SupplyAssumed tells that the file gave no supply and Supply is the
 	// default, 9 V (negative ground).
 	SupplyAssumed bool
-	Temperature float64 // kelvin
-	Oversample  int     // 0: the caller's default
-	InputPeak   float64 // source volts at digital full scale
-	Source      string  // "ideal" or "pickup"
-	Load        float64 // Ω from out to gnd; 0 for none
-	FullScale   float64 // output volts written as 0 dBFS
-	Stages      []*Stage
+	Temperature   float64 // kelvin
+	Oversample    int     // 0: the caller's default
+	InputPeak     float64 // source volts at digital full scale
+	Source        string  // "ideal" or "pickup"
+	Load          float64 // Ω from out to gnd; 0 for none
+	FullScale     float64 // output volts written as 0 dBFS
+	Stages        []*Stage
 	// Nets are the node names shared by every stage besides gnd, v+, in
 	// and out, declared once by the top-level nets list (see nets.go).
 	Nets []string
