@@ -744,3 +744,13 @@ func (p *Part) parsePolarPins(pins map[string]any) error {
 	p.Polarized = true
 	return nil
 }
+
+// Polarity is the supply whose sign supplies given outside the file keep
+// (models.ParseSupply): the file's supply, or 0, any sign, when the file
+// gave none.
+func (ch *Chain) Polarity() float64 {
+	if ch.SupplyAssumed {
+		return 0
+	}
+	return ch.Supply
+}

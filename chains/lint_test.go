@@ -496,4 +496,16 @@ parts = [ { ref = "R1", kind = "resistor", value = "1k", pins = ["in", "out"] } 
 			t.Errorf("%s: notes %q, supply %g V; want a note %v and 9 V", c.name, f.Findings.Notes(), ch.Supply, c.want)
 		}
 	}
+	// A file that gave no supply has no polarity to keep: a supply set
+	// later takes either sign, and the note goes.
+	ch, err := Parse("s.toml", without)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := ch.Set("supply=-9V"); err != nil || ch.Supply != -9 || ch.SupplyAssumed {
+		t.Errorf("supply=-9V on a file without supply: %v, %g V, assumed %v", err, ch.Supply, ch.SupplyAssumed)
+	}
+	if err := ch.Set("supply=8V"); err != nil || ch.Supply != -8 {
+		t.Errorf("supply=8V after -9V: %v, %g V; want −8 V (the polarity now set)", err, ch.Supply)
+	}
 }

@@ -70,7 +70,10 @@ func (ch *Chain) Set(kv string) error {
 	}
 	switch key {
 	case "supply":
-		v, err := models.ParseSupply(val, ch.Supply)
+		v, err := models.ParseSupply(val, ch.Polarity())
+		if err == nil {
+			ch.SupplyAssumed = false
+		}
 		return scalar(&ch.Supply, v, err)
 	case "temperature":
 		v, err := models.ParseTemperature(val)

@@ -146,7 +146,7 @@ func biasAction(c *cli.Context) error {
 // repeatable): supplies by models.ParseSupplies with the chain file's
 // polarity (the supply rule), temperatures by models.ParseTemperatures.
 func biasConditions(c *cli.Context, ch *chains.Chain) (supplies, temps []float64, err error) {
-	if supplies, err = parseListFlag(c, "supply", func(s string) ([]float64, error) { return models.ParseSupplies(s, ch.Supply) }); err != nil {
+	if supplies, err = parseListFlag(c, "supply", func(s string) ([]float64, error) { return models.ParseSupplies(s, ch.Polarity()) }); err != nil {
 		return nil, nil, err
 	}
 	if temps, err = parseListFlag(c, "temp", models.ParseTemperatures); err != nil {

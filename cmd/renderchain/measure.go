@@ -243,7 +243,7 @@ func runMeasure(c *cli.Context) error {
 // polarity (the supply rule), each temperature by models.ParseTemperatures.
 func conditionSets(c *cli.Context, ch *chains.Chain, sets []string) ([]string, error) {
 	if c.IsSet("supply") {
-		v, err := parseListFlag(c, "supply", func(s string) ([]float64, error) { return models.ParseSupplies(s, ch.Supply) })
+		v, err := parseListFlag(c, "supply", func(s string) ([]float64, error) { return models.ParseSupplies(s, ch.Polarity()) })
 		if err != nil {
 			return nil, err
 		}
