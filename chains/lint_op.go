@@ -176,6 +176,9 @@ func (f *Flat) CheckOperatingPoint(op *mna.OperatingPoint) Findings {
 		}
 	}
 	out = append(out, f.capacitorFindings(op)...)
+	if fd, ok := f.railFinding(op); ok {
+		out = append(out, fd)
+	}
 	f.Findings = append(f.Findings, out...)
 	return out
 }
@@ -235,4 +238,60 @@ func (f *Flat) polarity(st *Stage, p *Part, d mna.DeviceState) (Finding, bool) {
 	}
 	return ch.partFinding(Warning, st, p, "this build has a %s supply (%s) but %s is %s and %s: for a build of %ss write supply = \"%gV\", or make %s %s",
 		ground, models.FormatValue(ch.Supply, "V"), p.Ref, kind, state, kind, -ch.Supply, p.Ref, other), true
+}
+
+// RailFraction is the share of the supply below which v+ counts as not
+// reached through a [power] network at idle. A battery's internal
+// resistance, a series filter resistor and a protection diode together
+// drop a volt or two from 9 V at a pedal's few milliamperes (common
+// practice); half the supply gone is a part that blocks it.
+const RailFraction = 0.5
+
+// railFinding is the warning for a [power] network that passes less than
+// RailFraction of the supply to v+ at idle, naming the part of the
+// network with the most voltage across it (not counting parts to ground)
+// and, when that is a reverse-biased diode, that it is written the wrong
+// way round for the supply's polarity.
+func (f *Flat) railFinding(op *mna.OperatingPoint) (Finding, bool) {
+	ch, c, w := f.Chain, f.Circuit, f.Wiring
+	if ch.Power == nil || ch.Supply == 0 {
+		return Finding{}, false
+	}
+	volts := func(pin string) float64 {
+		if pin == "gnd" {
+			return 0
+		}
+		if n := c.Lookup(w.Node(PowerID, pin)); n > 0 {
+			return op.Node[n]
+		}
+		return 0
+	}
+	rail := volts("v+")
+	if rail*ch.Supply > 0 && math.Abs(rail) >= RailFraction*math.Abs(ch.Supply) {
+		return Finding{}, false
+	}
+	var worst *Part
+	drop := 0.0
+	for _, p := range ch.Power.Parts {
+		a, b := p.Pins["1"], p.Pins["2"]
+		if p.Kind == Diode {
+			a, b = p.Pins["anode"], p.Pins["cathode"]
+		}
+		if a == "" || b == "" || a == "gnd" || b == "gnd" {
+			continue
+		}
+		if d := volts(a) - volts(b); math.Abs(d) > math.Abs(drop) {
+			worst, drop = p, d
+		}
+	}
+	msg := fmt.Sprintf("v+ idles at %s of the %s supply: the supply network passes almost none of it",
+		models.FormatValue(rail, "V"), models.FormatValue(ch.Supply, "V"))
+	if worst == nil {
+		return ch.stageFinding(Warning, ch.Power, "%s", msg), true
+	}
+	msg += fmt.Sprintf("; %s has %s across it", worst.Ref, models.FormatValue(math.Abs(drop), "V"))
+	if worst.Kind == Diode && drop < 0 {
+		msg += ", reverse-biased: a series protection diode written the wrong way round for this supply's polarity; swap its anode and cathode"
+	}
+	return ch.partFinding(Warning, ch.Power, worst, "%s", msg), true
 }

@@ -509,3 +509,66 @@ parts = [ { ref = "R1", kind = "resistor", value = "1k", pins = ["in", "out"] } 
 		t.Errorf("supply=8V after -9V: %v, %g V; want −8 V (the polarity now set)", err, ch.Supply)
 	}
 }
+
+// A supply network that passes less than half the supply to v+ is named
+// with its part that drops the most (by Kirchhoff, the series part with
+// the largest voltage across it): the series protection diode turned the
+// wrong way round for the polarity (it blocks: v+ at ground), and a cell
+// resistance of 10 kΩ into a 1 kΩ load (the divider leaves about a tenth
+// of the supply). The template as written says nothing.
+func TestRailNotReached(t *testing.T) {
+	for _, c := range []struct {
+		name, supply string
+		edit         func(*Chain)
+		want         []string // "" for no warning
+	}{
+		{"as written", "9V", nil, nil},
+		{"as written, negative", "-9V", nil, nil},
+		{"diode reversed", "9V", func(ch *Chain) {
+			d := ch.Power.part("D1")
+			d.Pins["anode"], d.Pins["cathode"] = d.Pins["cathode"], d.Pins["anode"]
+		}, []string{"part D1:", "reverse-biased", "swap its anode and cathode"}},
+		{"diode reversed, negative", "-9V", func(ch *Chain) {
+			d := ch.Power.part("D1")
+			d.Pins["anode"], d.Pins["cathode"] = d.Pins["cathode"], d.Pins["anode"]
+		}, []string{"part D1:", "swap its anode and cathode"}},
+		{"cell of 10 kΩ", "9V", func(ch *Chain) { ch.Power.part("RBAT").Value = 10e3 }, []string{"part RBAT:", "passes almost none"}},
+	} {
+		ch, err := Parse("p.toml", strings.Replace(powerChain, "%s", c.supply, 1))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if c.edit != nil {
+			c.edit(ch)
+		}
+		f, err := ch.Flatten()
+		if err != nil {
+			t.Fatal(err)
+		}
+		op, err := mna.SolveDC(f.Circuit, mna.DCOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var rail []string
+		for _, fd := range f.CheckOperatingPoint(op) {
+			if strings.Contains(fd.Msg, "v+ idles at") {
+				rail = append(rail, fd.String())
+			}
+		}
+		if c.want == nil {
+			if len(rail) != 0 {
+				t.Errorf("%s: %q, want no rail warning", c.name, rail)
+			}
+			continue
+		}
+		if len(rail) != 1 {
+			t.Errorf("%s: %q, want one rail warning", c.name, rail)
+			continue
+		}
+		for _, w := range c.want {
+			if !strings.Contains(rail[0], w) {
+				t.Errorf("%s: %q, want %q in it", c.name, rail[0], w)
+			}
+		}
+	}
+}
