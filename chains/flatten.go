@@ -49,6 +49,7 @@ func (ch *Chain) Flatten() (*Flat, error) {
 	uses := ch.pinUses(w)
 	f := &Flat{Chain: ch, Wiring: w}
 	f.Findings = ch.lintWiring(w, uses)
+	f.Findings = append(f.Findings, ch.valueFindings()...)
 	if ch.SupplyAssumed && ch.hasDevices() {
 		f.Findings = append(f.Findings, Finding{File: ch.File, Where: "supply", Severity: Note,
 			Msg: "the file gives no supply: 9 V, negative ground, assumed; write supply = \"9V\" (or \"-9V\" for a positive-ground build) to say so"})

@@ -5,6 +5,7 @@ import (
 	"math"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 
 	"renderchain/models"
@@ -538,4 +539,44 @@ func (l *wiringLint) nets() {
 		}
 		l.add(Finding{File: ch.File, Line: line, Where: "nets", Msg: fmt.Sprintf("net %s is declared but no part names it", quote(n)), Severity: Warning})
 	}
+}
+
+// Bounds above which a value is legal but unlikely in a pedal, so that a
+// unit left off ("10" for a capacitor is 10 F) is named rather than
+// simulated (common practice: a pedal's largest capacitors are supply
+// filters of a few thousand µF, its largest inductances pickup coils and
+// the inductors of swept filters, a few henries to tens of henries).
+const (
+	LargeCapacitance = 0.1 // F
+	LargeInductance  = 100 // H
+)
+
+// valueFindings warns about a capacitor or inductor whose value is past
+// the bounds above, with the value as written and, when it was a plain
+// number, what it would be with the usual prefixes.
+func (ch *Chain) valueFindings() Findings {
+	var out Findings
+	for _, st := range ch.allStages() {
+		for _, p := range st.Parts {
+			var what, unit, hint string
+			switch {
+			case p.Kind == Capacitor && p.Value >= LargeCapacitance:
+				what, unit, hint = "farads", "F", "u"
+			case p.Kind == Inductor && p.Value >= LargeInductance:
+				what, unit, hint = "henries", "H", "m"
+			default:
+				continue
+			}
+			msg := fmt.Sprintf("value %q is %s, far beyond the parts of a pedal (plain numbers are %s)", p.Text, models.FormatValue(p.Value, unit), what)
+			if _, err := strconv.ParseFloat(strings.TrimSpace(p.Text), 64); err == nil {
+				msg += fmt.Sprintf(": did you mean %q", strings.TrimSpace(p.Text)+hint)
+				if p.Kind == Capacitor {
+					msg += fmt.Sprintf(" or %q", strings.TrimSpace(p.Text)+"n")
+				}
+				msg += "?"
+			}
+			out = append(out, ch.partFinding(Warning, st, p, "%s", msg))
+		}
+	}
+	return out
 }

@@ -572,3 +572,42 @@ func TestRailNotReached(t *testing.T) {
 		}
 	}
 }
+
+// A capacitor or inductor far beyond a pedal's parts is named, with the
+// prefixed reading when it was written as a plain number (plain numbers
+// are SI units: "10" is 10 F); the largest parts of real builds (a
+// 4700 µF supply filter, a 10 H pickup coil; common practice) are not.
+func TestImplausibleValues(t *testing.T) {
+	for _, c := range []struct {
+		kind, value, want string
+	}{
+		{"capacitor", "10", `value "10" is 10 F, far beyond the parts of a pedal (plain numbers are farads): did you mean "10u" or "10n"?`},
+		{"capacitor", "0.22", `did you mean "0.22u" or "0.22n"?`},
+		{"capacitor", "220mF", `value "220mF" is 220 mF, far beyond the parts of a pedal (plain numbers are farads)`},
+		{"capacitor", "4700u", ""},
+		{"capacitor", "10u", ""},
+		{"inductor", "500", `did you mean "500m"?`},
+		{"inductor", "10", ""},
+	} {
+		src := fmt.Sprintf(`name = "values"
+[[stage]]
+id = "a"
+parts = [
+  { ref = "X1", kind = %q, value = %q, pins = ["in", "out"] },
+  { ref = "R1", kind = "resistor", value = "10k", pins = ["out", "gnd"] },
+]
+`, c.kind, c.value)
+		ch, err := Parse("v.toml", src)
+		if err != nil {
+			t.Fatal(err)
+		}
+		f, err := ch.Flatten()
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := strings.Join(f.Findings.Warnings(), "\n")
+		if c.want == "" && got != "" || c.want != "" && (!strings.Contains(got, c.want) || !strings.HasPrefix(got, "v.toml:5: stage a: part X1: ")) {
+			t.Errorf("%s %s: %q, want %q", c.kind, c.value, got, c.want)
+		}
+	}
+}
