@@ -3,6 +3,7 @@ package models
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // Taper maps a knob's rotation x (0 fully counter-clockwise, 1 fully
@@ -33,6 +34,14 @@ func ParseTaper(s string) (Taper, error) {
 		return Audio, nil
 	case "reverse-audio", "reverse-log":
 		return ReverseAudio, nil
+	}
+	switch strings.ToUpper(strings.TrimSpace(s)) {
+	case "A", "B", "C":
+		// The letter codes on pot bodies differ by maker and era (common
+		// practice: A audio, B linear, C reverse-audio on most pots made
+		// today; A linear on many older European ones): a letter alone
+		// cannot say which.
+		return 0, fmt.Errorf("taper %q is a marking that means different curves on different makers' pots (on most pots sold today A is audio, B linear, C reverse-audio; on older European ones A is linear): write linear, audio or reverse-audio", s)
 	}
 	return 0, fmt.Errorf("taper %q is not one of linear, audio, reverse-audio", s)
 }

@@ -2,6 +2,7 @@ package models_test
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"renderchain/models"
@@ -105,6 +106,13 @@ func TestParseTaper(t *testing.T) {
 			t.Errorf("ParseTaper(%q) accepted", bad)
 		} else {
 			oneLine(t, err)
+		}
+	}
+	// A letter code alone is refused with what the letters mean where
+	// (common practice), since the same letter marks different curves.
+	for _, code := range []string{"A", "B", "c"} {
+		if _, err := models.ParseTaper(code); err == nil || !strings.Contains(err.Error(), "different curves") {
+			t.Errorf("ParseTaper(%q): %v, want the letter-code explanation", code, err)
 		}
 	}
 }
