@@ -551,11 +551,20 @@ const (
 	LargeInductance  = 100 // H
 )
 
-// valueFindings warns about a capacitor or inductor whose value is past
-// the bounds above, with the value as written and, when it was a plain
+// valueFindings warns about an input peak above models.LargeSignal and
+// about a capacitor or inductor whose value is past the bounds above, with the value as written and, when it was a plain
 // number, what it would be with the usual prefixes.
 func (ch *Chain) valueFindings() Findings {
 	var out Findings
+	if ch.InputPeak > models.LargeSignal {
+		line := 0
+		if ch.loc != nil {
+			line = ch.loc.findKey("input", "peak")
+		}
+		out = append(out, Finding{File: ch.File, Line: line, Where: "input.peak", Severity: Warning,
+			Msg: fmt.Sprintf("%s at full scale is beyond any guitar (a pickup gives up to about 1 V peak, an active one a few volts): did you mean %s?",
+				models.FormatValue(ch.InputPeak, "V"), models.FormatValue(ch.InputPeak/1000, "V"))})
+	}
 	for _, st := range ch.allStages() {
 		for _, p := range st.Parts {
 			var what, unit, hint string

@@ -611,3 +611,31 @@ parts = [
 		}
 	}
 }
+
+// An input peak beyond models.LargeSignal (5 V, past any pickup: common
+// practice) is named on its line with the millivolt reading; 2 V (an
+// active pickup's hard strum) is not.
+func TestLargeInputPeak(t *testing.T) {
+	for _, c := range []struct{ peak, want string }{{"2V", ""}, {"30", "v.toml:4: input.peak: 30 V at full scale is beyond any guitar"}} {
+		src := fmt.Sprintf(`name = "peak"
+
+[input]
+peak = %q
+[[stage]]
+id = "a"
+parts = [ { ref = "R1", kind = "resistor", value = "1k", pins = ["in", "out"] } ]
+`, c.peak)
+		ch, err := Parse("v.toml", src)
+		if err != nil {
+			t.Fatal(err)
+		}
+		f, err := ch.Flatten()
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := strings.Join(f.Findings.Warnings(), "\n")
+		if c.want == "" && got != "" || c.want != "" && !strings.HasPrefix(got, c.want) {
+			t.Errorf("peak %s: %q, want %q", c.peak, got, c.want)
+		}
+	}
+}

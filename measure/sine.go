@@ -427,6 +427,10 @@ func warnings(r *Result, opt Options, passband float64) report.Warnings {
 				first, models.FormatValue(passband, "Hz"))
 		}
 	}
+	if r.AmplitudeV > models.LargeSignal {
+		w.Add("the source sine, %s peak, is beyond any guitar (a pickup gives up to about 1 V peak, an active one a few volts): did you mean %s?",
+			models.FormatValue(r.AmplitudeV, "V"), models.FormatValue(r.AmplitudeV/1000, "V"))
+	}
 	if r.Solver.NonConverged > 0 {
 		w.Add("%d samples did not converge in the circuit solver", r.Solver.NonConverged)
 	}

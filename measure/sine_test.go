@@ -275,3 +275,23 @@ func TestSineConstantMemory(t *testing.T) {
 }
 
 func db(ratio float64) float64 { return report.DB(ratio) }
+
+// A source sine beyond models.LargeSignal (5 V peak, past any pickup:
+// common practice) is measured but warned about with the millivolt
+// reading; the RC low-pass at 5 V and below is not.
+func TestSineLargeSourceWarns(t *testing.T) {
+	ch := loadChain(t, "rc-lowpass")
+	for _, c := range []struct {
+		amp  float64
+		want bool
+	}{{5, false}, {20, true}} {
+		r, err := Sine(context.Background(), ch, 1000, c.amp, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := strings.Contains(strings.Join(r.Warnings, "\n"), "beyond any guitar")
+		if got != c.want || c.want && !strings.Contains(strings.Join(r.Warnings, "\n"), "did you mean 20 mV?") {
+			t.Errorf("%g V: warnings %q, want the large-signal one %v", c.amp, r.Warnings, c.want)
+		}
+	}
+}

@@ -48,6 +48,12 @@ var (
 	// SignalRange bounds a source amplitude, an input peak and an output
 	// full scale: above 0 V, at most 100 V.
 	SignalRange = Range{Lo: 0, LoOpen: true, Hi: 100, Unit: "V"}
+	// LargeSignal is the source amplitude, V peak, above which a test
+	// sine or a chain's input peak is legal but beyond any guitar: a
+	// passive pickup gives tens of millivolts to about a volt peak on a
+	// hard strum, an active one a few volts (common practice, from
+	// memory); more is most often millivolts written as volts.
+	LargeSignal = 5.0
 	// LoadRange bounds an output load: 0 (none) up to 1 TΩ.
 	LoadRange = Range{Lo: 0, Hi: 1e12, Unit: "Ω"}
 	// FrequencyRange bounds a frequency before a command checks it against
