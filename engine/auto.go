@@ -29,6 +29,11 @@ const (
 	// automatic factor: 0.1 dB, the flatness usually asked of an audio
 	// path (common practice).
 	WarpTolerance = 0.1
+	// WarpMinGain is the small-signal gain (source to output) under which
+	// the warping check has nothing to measure: at −120 dB the response is
+	// the AC solve's rounding (a rectifier or a gate whose devices are off
+	// at idle), and its changes with the factor say nothing.
+	WarpMinGain = 1e-6
 	// MaxTrials bounds the factors the search renders its probe at.
 	MaxTrials = 6
 )
@@ -161,10 +166,24 @@ func (p *Prepared) ChooseOversample(ctx context.Context, fs, budget float64) (*F
 	c := &FactorChoice{From: FactorAuto, WarpFloor: floor, AliasDB: math.NaN()}
 	finish := func(f int) (*FactorChoice, error) {
 		c.Factor = f
-		if c.WarpDB, err = p.warpAt(fs, f); err != nil {
-			return nil, err
+		if floor > 0 {
+			if c.WarpDB, _, err = p.warpAt(fs, f); err != nil {
+				return nil, err
+			}
 		}
 		return c, nil
+	}
+	// No small-signal path at idle (a rectifier or gate whose devices
+	// rest): warping has nothing to measure, so the floor is the fixed
+	// factor the analyses use, whose accuracy the tests establish.
+	silent := floor == 0
+	if silent {
+		floor = DefaultOversample
+	}
+	if len(p.Circuit.Devices()) == 0 && silent {
+		c.Reason = fmt.Sprintf("automatic: a circuit without nonlinear devices makes no aliases, and its small-signal response is under %.0f dB, so frequency warping cannot set the floor: the analyses' %d×",
+			20*math.Log10(WarpMinGain), floor)
+		return finish(floor)
 	}
 	if len(p.Circuit.Devices()) == 0 {
 		c.Reason = fmt.Sprintf("automatic: a circuit without nonlinear devices makes no aliases; %d× is the lowest factor whose frequency warping "+
@@ -250,7 +269,10 @@ func (p *Prepared) ChooseOversample(ctx context.Context, fs, budget float64) (*F
 	}
 	c.Reason = fmt.Sprintf("automatic: the lowest factor tried at which %d probe tones near 1.3 kHz at %.1f of full scale keep their aliases %g dB down (%s)",
 		probeTones, AliasProbeLevel, AliasTarget, strings.Join(tried, ", "))
-	if best == floor && floor > 1 {
+	switch {
+	case silent:
+		c.Reason += fmt.Sprintf("; the small-signal response at idle is under %.0f dB (no linear path while the devices rest), so frequency warping cannot set the floor and the search starts at the analyses' %d×", 20*math.Log10(WarpMinGain), DefaultOversample)
+	case best == floor && floor > 1:
 		c.Reason += fmt.Sprintf("; %d× is also the floor the small-signal frequency warping sets", floor)
 	}
 	if !bestTrial.Settled {
@@ -280,12 +302,16 @@ func warpGrid(fs float64) []float64 {
 
 // warpFloor returns the lowest factor (1…16) at which the bilinear
 // transform's warping changes the small-signal response at the output by
-// at most WarpTolerance of its peak over warpGrid; 16 when none does.
+// at most WarpTolerance of its peak over warpGrid; 16 when none does; 0
+// when the response's peak is under WarpMinGain (nothing to measure).
 func (p *Prepared) warpFloor(fs float64) (int, error) {
 	for f := 1; f < resample.MaxFactor; f++ {
-		d, err := p.warpAt(fs, f)
+		d, peak, err := p.warpAt(fs, f)
 		if err != nil {
 			return 0, err
+		}
+		if peak < WarpMinGain {
+			return 0, nil
 		}
 		if d <= WarpTolerance {
 			return f, nil
@@ -297,8 +323,9 @@ func (p *Prepared) warpFloor(fs float64) (int, error) {
 // warpAt returns the largest change, in dB of the peak level, that the
 // bilinear transform at factor·fs makes to the small-signal response at
 // the output over warpGrid: max | |H(jω')| − |H(jω)| | / max |H(jω)| as
-// 20·log10(1 + ·), ω' = 2·factor·fs·tan(ω/(2·factor·fs)).
-func (p *Prepared) warpAt(fs float64, factor int) (float64, error) {
+// 20·log10(1 + ·), ω' = 2·factor·fs·tan(ω/(2·factor·fs)); and the peak
+// gain max |H(jω)|.
+func (p *Prepared) warpAt(fs float64, factor int) (float64, float64, error) {
 	grid := warpGrid(fs)
 	t := 1 / (fs * float64(factor))
 	warped := make([]float64, len(grid))
@@ -307,7 +334,7 @@ func (p *Prepared) warpAt(fs float64, factor int) (float64, error) {
 	}
 	h, err := mna.AC(p.Circuit, p.DC, append(append([]float64(nil), grid...), warped...), []int{p.Circuit.Output})
 	if err != nil {
-		return 0, err
+		return 0, 0, err
 	}
 	n := len(grid)
 	peak, worst := 0.0, 0.0
@@ -317,9 +344,9 @@ func (p *Prepared) warpAt(fs float64, factor int) (float64, error) {
 		worst = math.Max(worst, math.Abs(abs(h[n+i][0])-a))
 	}
 	if peak == 0 {
-		return 0, nil
+		return 0, 0, nil
 	}
-	return 20 * math.Log10(1+worst/peak), nil
+	return 20 * math.Log10(1+worst/peak), peak, nil
 }
 
 func abs(z complex128) float64 { return math.Hypot(real(z), imag(z)) }

@@ -155,3 +155,32 @@ func TestAutoFactorUnstable(t *testing.T) {
 		t.Errorf("%d× (floor %d), trials %v, warning %q", c.Factor, c.WarpFloor, c.Trials, c.Warning)
 	}
 }
+
+// A balanced centre-tapped full-wave rectifier idles with both diodes off
+// and their small-signal currents equal and opposite at the output, so its
+// small-signal gain is zero by symmetry (any rectifier text: the two
+// half-windings drive the diodes in antiphase); what the AC solve returns
+// is rounding, under WarpMinGain. The warping check then has nothing to
+// measure: the chooser must not read a floor from that rounding (it read
+// 16× before), and starts its search at the analyses' DefaultOversample.
+func TestAutoFactorSilentAtIdle(t *testing.T) {
+	ch, err := chains.Load("../chains/examples/octave-transformer.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Prepare(ch, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, peak, err := p.warpAt(48000, 4); err != nil || peak >= WarpMinGain {
+		t.Fatalf("idle small-signal gain %g (err %v), want under %g", peak, err, WarpMinGain)
+	}
+	c, err := p.ChooseOversample(context.Background(), 48000, math.Inf(1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c.WarpFloor != 0 || c.Trials[0].Factor != DefaultOversample || !c.Trials[len(c.Trials)-1].Pass || c.Factor < DefaultOversample {
+		t.Errorf("factor %d, warp floor %d, trials %+v; want no warp floor and a search from %d×", c.Factor, c.WarpFloor, c.Trials, DefaultOversample)
+	}
+	t.Logf("%s", c.Reason)
+}
