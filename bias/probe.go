@@ -37,30 +37,48 @@ var transistorQuantities = map[string]models.Quantity{
 	"ic": models.Current, "ib": models.Current, "ie": models.Current,
 }
 
-func quantityNames() string {
+// Quantities a FET key may name (JFETs and MOSFETs): STAGE.REF.Q, signed
+// as measured.
+var fetQuantities = map[string]models.Quantity{
+	"vd": models.Voltage, "vg": models.Voltage, "vs": models.Voltage,
+	"vds": models.Voltage, "vgs": models.Voltage,
+	"id": models.Current, "ig": models.Current,
+}
+
+// quantityOf is the quantity a device key names: a transistor's or a
+// FET's.
+func quantityOf(q string) (models.Quantity, bool) {
+	if k, ok := transistorQuantities[q]; ok {
+		return k, true
+	}
+	k, ok := fetQuantities[q]
+	return k, ok
+}
+
+func quantityNames(m map[string]models.Quantity) string {
 	var s []string
-	for k := range transistorQuantities {
+	for k := range m {
 		s = append(s, k)
 	}
 	sort.Strings(s)
 	return strings.Join(s, ", ")
 }
 
-// Probe names one DC quantity of a chain: a transistor's terminal voltage
-// or current (Ref and Quantity set, e.g. fuzz.Q2 and "vc") or a node's
-// voltage (Node set, e.g. "fuzz.c2").
+// Probe names one DC quantity of a chain: a transistor's or a FET's
+// terminal voltage or current (Ref and Quantity set, e.g. fuzz.Q2 and
+// "vc", boost.Q1 and "vd") or a node's voltage (Node set, e.g. "fuzz.c2").
 type Probe struct {
 	Key      string // as written, "fuzz.Q2.vc"
 	Ref      string // "fuzz.Q2"
 	Stage    string // "fuzz"
 	Part     string // "Q2"
-	Quantity string // vc, vb, ve, vce, vbe, vbc, ic, ib, ie; "v" for a node
+	Quantity string // vc, vb, ve, vce, vbe, vbc, ic, ib, ie; vd, vg, vs, vds, vgs, id, ig; "v" for a node
 	Node     string
 }
 
 // Unit returns the SI unit symbol of the probed quantity.
 func (p *Probe) Unit() string {
-	if transistorQuantities[p.Quantity] == models.Current {
+	if q, _ := quantityOf(p.Quantity); q == models.Current {
 		return "A"
 	}
 	return "V"
@@ -71,7 +89,8 @@ func (p *Probe) Kind() models.Quantity {
 	if p.Quantity == "v" {
 		return models.Voltage
 	}
-	return transistorQuantities[p.Quantity]
+	q, _ := quantityOf(p.Quantity)
+	return q
 }
 
 // ParseProbe reads a probe key against a chain: STAGE.REF.Q for a
@@ -90,13 +109,10 @@ func ParseProbe(ch *chains.Chain, key string) (*Probe, error) {
 			return nil, keyErr("key", key, "no stage %q (stages: %s)", parts[0], stageIDs(ch))
 		}
 		q := strings.ToLower(parts[2])
-		if _, ok := transistorQuantities[q]; !ok {
-			return nil, keyErr("key", key, "%q is not a transistor quantity (%s)", parts[2], quantityNames())
-		}
 		var found *chains.Part
 		var refs []string
 		for _, p := range st.Parts {
-			if p.Kind.Transistor() {
+			if p.Kind.Transistor() || p.Kind.FET() {
 				refs = append(refs, p.Ref)
 				if p.Ref == parts[1] {
 					found = p
@@ -104,7 +120,14 @@ func ParseProbe(ch *chains.Chain, key string) (*Probe, error) {
 			}
 		}
 		if found == nil {
-			return nil, keyErr("key", key, "stage %s has no transistor %q (transistors: %s)", st.ID, parts[1], listOrNone(refs))
+			return nil, keyErr("key", key, "stage %s has no transistor or FET %q (they are: %s)", st.ID, parts[1], listOrNone(refs))
+		}
+		if found.Kind.FET() {
+			if _, ok := fetQuantities[q]; !ok {
+				return nil, keyErr("key", key, "%q is not a FET quantity (%s)", parts[2], quantityNames(fetQuantities))
+			}
+		} else if _, ok := transistorQuantities[q]; !ok {
+			return nil, keyErr("key", key, "%q is not a transistor quantity (%s)", parts[2], quantityNames(transistorQuantities))
 		}
 		return &Probe{Key: key, Ref: st.ID + "." + found.Ref, Stage: st.ID, Part: found.Ref, Quantity: q}, nil
 	case len(parts) <= 2:
@@ -165,6 +188,28 @@ func (p *Probe) Read(b *Bias) (float64, error) {
 			return 0, keyErr("key", p.Key, "no node %q in the circuit", p.Node)
 		}
 		return v, nil
+	}
+	if _, ok := fetQuantities[p.Quantity]; ok {
+		f := b.FET(p.Ref)
+		if f == nil {
+			return 0, keyErr("key", p.Key, "no FET %s in the circuit", p.Ref)
+		}
+		switch p.Quantity {
+		case "vd":
+			return f.Vd, nil
+		case "vg":
+			return f.Vg, nil
+		case "vs":
+			return f.Vs, nil
+		case "vds":
+			return f.Vds, nil
+		case "vgs":
+			return f.Vgs, nil
+		case "id":
+			return f.Id, nil
+		case "ig":
+			return f.Ig, nil
+		}
 	}
 	t := b.Transistor(p.Ref)
 	if t == nil {

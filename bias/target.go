@@ -37,8 +37,8 @@ func (a *Adjuster) Sections(x float64) (ccwWiper, wiperCW float64, hasCW bool) {
 // ResolveAdjuster finds the knob to turn. spec names it as STAGE.KNOB
 // ("fuzz.trim2") or as the pot STAGE.REF ("fuzz.TR2"). With spec empty the
 // trimmer is the pot whose template marks it with adjusts = "REF" for the
-// transistor device ("fuzz.Q2"); with device empty too, the marked trimmer
-// of the last transistor in chain order that has one.
+// transistor or FET device ("fuzz.Q2"); with device empty too, the marked
+// trimmer of the last transistor or FET in chain order that has one.
 func ResolveAdjuster(ch *chains.Chain, spec, device string) (*Adjuster, error) {
 	if spec != "" {
 		stage, name, ok := strings.Cut(spec, ".")
@@ -69,7 +69,7 @@ func ResolveAdjuster(ch *chains.Chain, spec, device string) (*Adjuster, error) {
 	var last *Adjuster
 	for _, st := range ch.Stages {
 		for _, q := range st.Parts {
-			if !q.Kind.Transistor() {
+			if !q.Kind.Transistor() && !q.Kind.FET() {
 				continue
 			}
 			for _, p := range st.Parts {
@@ -286,7 +286,7 @@ func (r *TargetResult) Message() string {
 }
 
 // AdjusterFor picks the knob for a target: spec if given, else the trimmer
-// marked for the target's transistor. A node target needs spec.
+// marked for the target's transistor or FET. A node target needs spec.
 func AdjusterFor(ch *chains.Chain, t *Target, spec string) (*Adjuster, error) {
 	if spec == "" && t.Probe.Ref == "" {
 		return nil, keyErr("adjust", t.Probe.Key, "a node target needs the knob to turn (STAGE.KNOB)")

@@ -8,6 +8,7 @@ import (
 	"strings"
 	"testing"
 
+	"renderchain/chains"
 	"renderchain/dsp/mna"
 	"renderchain/dsp/resample"
 	"renderchain/engine"
@@ -238,5 +239,42 @@ func TestSymmetricNoClipping(t *testing.T) {
 	}
 	if res.Reached || !strings.Contains(res.Note, "does not clip") {
 		t.Errorf("reached %v, note %q", res.Reached, res.Note)
+	}
+}
+
+// A FET's drain is a target like a collector: the JFET booster example's
+// marked drain trimmer is found from the FET's ref, the drain reaches
+// 4.5 V within 10 mV (the figure of TestTargetReached), and at the
+// rotation found Ohm's law holds across the drain network, (V+ − Vd)/Id =
+// 1.8 kΩ + R·t(x) of the linear 5 kΩ trimmer, within 1e-6 (the DC solve
+// converges to steps of 1e-10 V on volts). A transistor's quantity on a
+// FET is refused with the FET's list.
+func TestTargetOnAFET(t *testing.T) {
+	ch, err := chains.Load("../chains/examples/jfet-boost.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	tg, err := ParseTarget(ch, "boost.Q1.vd=4.5V")
+	if err != nil {
+		t.Fatal(err)
+	}
+	adj, err := AdjusterFor(ch, tg, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := SolveTarget(ch, tg, adj)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := r.Bias.FET("boost.Q1")
+	if !r.Reached || r.Adjust.Key() != "boost.drain" || f == nil || math.Abs(f.Vd-4.5) > 0.01 {
+		t.Fatalf("reached %v with %s, FET %+v", r.Reached, r.Adjust.Key(), f)
+	}
+	lower, _, _ := r.Adjust.Sections(r.Rotation)
+	if got, want := (9-f.Vd)/f.Id, 1.8e3+lower; math.Abs(got/want-1) > 1e-6 {
+		t.Errorf("drain network %g Ω by Ohm's law, 1.8 kΩ + trimmer section %g Ω", got, want)
+	}
+	if _, err := ParseTarget(ch, "boost.Q1.vc=4.5V"); err == nil || !strings.Contains(err.Error(), "not a FET quantity (id, ig, vd, vds, vg, vgs, vs)") {
+		t.Errorf("boost.Q1.vc: %v", err)
 	}
 }

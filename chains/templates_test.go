@@ -170,8 +170,8 @@ var templateCases = []templateCase{
 			GateIs: j.GateIs, GateN: j.GateN, Vt: vt25})
 		n.R("s.s", "gnd", 1e3)
 		pot(n, "s.sb", "s.sb", "s.s", 10e3, revAudio(0.5))
-		n.R("s.dx", "s.d", 3.3e3)
-		pot(n, "v+", "s.dx", "", 2e3, 0.5)
+		n.R("s.dx", "s.d", 1.8e3)
+		pot(n, "v+", "s.dx", "", 5e3, 0.5)
 		n.R("out", "gnd", 1e6)
 		n.R("out", "gnd", 1e6)
 	}, map[string]float64{"s.d": 4, "s.s": 1}},

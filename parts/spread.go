@@ -137,7 +137,12 @@ type SpreadOptions struct {
 	// LeakSpread draws each leaky device's Icbo log-uniformly within
 	// ×/÷ LeakSpread of its value; 0 means DefaultLeakSpread, 1 none.
 	LeakSpread float64
-	Freq       float64 // small-signal gain and THD frequency, Hz (default 1 kHz)
+	// FETSpread draws each JFET's pinch-off voltage log-uniformly within
+	// ×/÷ FETSpread of its value and sets its Idss with it so that the
+	// square law's β = Idss/Vp² stays as written; 0 means
+	// DefaultFETSpread, 1 none.
+	FETSpread float64
+	Freq      float64 // small-signal gain and THD frequency, Hz (default 1 kHz)
 	Amplitude  float64 // THD test sine, V peak at the source (default 100 mV)
 	NoTHD      bool    // skip the THD render (it dominates the time)
 	Specs      []*Spec
@@ -158,6 +163,15 @@ type SpreadOptions struct {
 // published figure).
 const DefaultLeakSpread = 2.0
 
+// DefaultFETSpread is the default spread of a JFET's pinch-off voltage
+// between parts of one type: a factor of 1.5 either way. Datasheets of
+// small-signal JFETs give Vgs(off) and Idss as ranges of two to four to
+// one within a type (common practice, from memory), the reason a JFET
+// stage is trimmed for the part in hand; Idss follows as β·Vp², the
+// square law with its β held (Shichman & Hodges, IEEE JSSC 3(3), 1968:
+// Idss = β·Vp²), so a part of larger pinch-off also draws more.
+const DefaultFETSpread = 1.5
+
 // MaxTrials bounds SpreadOptions.Trials.
 const MaxTrials = 100000
 
@@ -169,6 +183,9 @@ func (o *SpreadOptions) resolve() error {
 	}
 	if o.LeakSpread == 0 {
 		o.LeakSpread = DefaultLeakSpread
+	}
+	if o.FETSpread == 0 {
+		o.FETSpread = DefaultFETSpread
 	}
 	if o.Freq == 0 {
 		o.Freq = 1000
@@ -185,6 +202,8 @@ func (o *SpreadOptions) resolve() error {
 		return models.Fieldf("hfe_range", sprintf("%g..%g", o.HFELow, o.HFEHigh), "want 0 < LO ≤ HI ≤ %g", models.GainRange.Hi)
 	case !(o.LeakSpread >= 1) || math.IsInf(o.LeakSpread, 0):
 		return models.Fieldf("leak_spread", sprintf("%g", o.LeakSpread), "must be a factor of at least 1 (1: no spread)")
+	case !(o.FETSpread >= 1 && o.FETSpread <= 10):
+		return models.Fieldf("fet_spread", sprintf("%g", o.FETSpread), "must be a factor from 1 (no spread) to 10")
 	case !(o.Freq > 0 && o.Freq < thdRate/2):
 		return models.Fieldf("frequency", models.FormatValue(o.Freq, "Hz"), "is outside (0, %s)", models.FormatValue(thdRate/2, "Hz"))
 	case !models.SignalRange.Contains(o.Amplitude):
@@ -347,6 +366,10 @@ func plan(ch *chains.Chain, opt *SpreadOptions) []varied {
 				if p.BJTParams().Icbo > 0 && opt.LeakSpread > 1 {
 					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "icbo", kind: p.Kind, rule: "leakage spread"})
 				}
+			case chains.NJFET, chains.PJFET:
+				if opt.FETSpread > 1 {
+					out = append(out, varied{stage: st.ID, ref: p.Ref, param: "pinchoff", kind: p.Kind, rule: "pinch-off spread (Idss = β·Vp²)"})
+				}
 			}
 		}
 	}
@@ -390,6 +413,12 @@ func draw(ch *chains.Chain, pl []varied, opt *SpreadOptions, r *rand.Rand) []flo
 			i0 := p.BJTParams().Icbo
 			p.Params["icbo"] = i0 * math.Pow(opt.LeakSpread, 2*r.Float64()-1)
 			vals[i] = p.Params["icbo"]
+		case "pinchoff":
+			j := p.JFETParams()
+			vp := j.Pinchoff * math.Pow(opt.FETSpread, 2*r.Float64()-1)
+			p.Params["pinchoff"] = vp
+			p.Params["idss"] = j.Idss * (vp / j.Pinchoff) * (vp / j.Pinchoff) // β = Idss/Vp² held
+			vals[i] = vp
 		}
 	}
 	return vals
@@ -515,6 +544,8 @@ func (res *SpreadResult) summarise(ch *chains.Chain, pl []varied, nominal *trial
 			nom, unit = p.BJTParams().BetaF, ""
 		case "icbo":
 			nom, unit = p.BJTParams().Icbo, "A"
+		case "pinchoff":
+			nom, unit = p.JFETParams().Pinchoff, "V"
 		}
 		res.Parts = append(res.Parts, PartDraw{Kind: v.kind.String(), Rule: v.rule, Tolerance: 100 * v.tol, Summary: summarise(v.name(), unit, nom, column(res.draws, j))})
 	}

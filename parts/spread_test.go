@@ -6,6 +6,7 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"math"
+	"sort"
 	"strconv"
 	"strings"
 	"testing"
@@ -249,5 +250,57 @@ func TestPercentile(t *testing.T) {
 	}
 	if !math.IsNaN(Percentile(nil, 0.5)) {
 		t.Error("percentile of nothing")
+	}
+}
+
+// A JFET's pinch-off is drawn log-uniformly within ×/÷ FETSpread and its
+// Idss follows with the square law's β = Idss/Vp² held (Shichman & Hodges
+// 1968: Idss = β·Vp²): every draw keeps β to 1e-12 relative and stays in
+// the band, and the quantiles of ln(Vp/Vp0) are those of the uniform
+// distribution on ±ln 1.5 (gonum's distuv.Uniform) within 4 standard
+// errors of a sample quantile (Cramér 1946, sec. 28.5, as above).
+func TestSpreadJFETPinchoff(t *testing.T) {
+	ch, err := chains.Load("../chains/examples/jfet-boost.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	opt := SpreadOptions{Trials: 1}
+	if err := opt.resolve(); err != nil {
+		t.Fatal(err)
+	}
+	pl := plan(ch, &opt)
+	k := -1
+	for i, v := range pl {
+		if v.param == "pinchoff" {
+			k = i
+		}
+	}
+	if k < 0 || opt.FETSpread != DefaultFETSpread {
+		t.Fatalf("no pinch-off draw in the plan %+v (spread %g)", pl, opt.FETSpread)
+	}
+	j0 := findPart(ch, "boost", "Q1").JFETParams()
+	beta := j0.Idss / (j0.Pinchoff * j0.Pinchoff)
+	const n = 4000
+	u := distuv.Uniform{Min: -math.Log(DefaultFETSpread), Max: math.Log(DefaultFETSpread)}
+	x := make([]float64, n)
+	for i := range x {
+		cl := ch.Clone()
+		draw(cl, pl, &opt, trialRand(7, i))
+		j := findPart(cl, "boost", "Q1").JFETParams()
+		if b := j.Idss / (j.Pinchoff * j.Pinchoff); math.Abs(b/beta-1) > 1e-12 {
+			t.Fatalf("draw %d: β %g, written %g", i, b, beta)
+		}
+		x[i] = math.Log(j.Pinchoff / j0.Pinchoff)
+		if math.Abs(x[i]) > u.Max {
+			t.Fatalf("draw %d: Vp %g V outside ×/÷ %g of %g V", i, j.Pinchoff, DefaultFETSpread, j0.Pinchoff)
+		}
+	}
+	sort.Float64s(x)
+	for _, p := range []float64{0.05, 0.5, 0.95} {
+		got, want := x[int(p*n)], u.Quantile(p)
+		se := math.Sqrt(p*(1-p)/n) / u.Prob(want)
+		if math.Abs(got-want) > 4*se {
+			t.Errorf("p%.0f of ln(Vp/Vp0): %.4f, uniform %.4f ± %.4f", 100*p, got, want, 4*se)
+		}
 	}
 }

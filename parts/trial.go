@@ -93,6 +93,11 @@ func measureTrial(ctx context.Context, ch *chains.Chain, opt *SpreadOptions, nam
 		m.add(t.Ref+".ic", "A", t.Ic)
 		m.add(t.Ref+".vc", "V", t.Vc)
 	}
+	for _, f := range b.FETs {
+		m.add(f.Ref+".vds", "V", f.Vds)
+		m.add(f.Ref+".id", "A", f.Id)
+		m.add(f.Ref+".vd", "V", f.Vd)
+	}
 	g, err := GainAt(b.Prepared, opt.Freq)
 	if err != nil {
 		return nil, err

@@ -35,6 +35,7 @@ func spreadCommand() *cli.Command {
 			&cli.StringSliceFlag{Name: "hfe-bin", Usage: "measured hFE values `H,H,…` to draw transistors from (distinct devices per trial)"},
 			&cli.StringFlag{Name: "hfe-range", Usage: "draw each hFE uniformly from `LO..HI`"},
 			&cli.Float64Flag{Name: "leak-spread", Value: parts.DefaultLeakSpread, Usage: "germanium leakage spread: a factor either way, log-uniform (1: none)"},
+			&cli.Float64Flag{Name: "fet-spread", Value: parts.DefaultFETSpread, Usage: "JFET pinch-off spread: a factor either way, log-uniform, Idss following as β·Vp² (1: none)"},
 			&cli.StringSliceFlag{Name: "spec", Usage: "acceptance window `KEY=LO..HI` (fuzz.Q2.vc=4..5V, gain=30..40dB, thd=..60%; repeatable): yield is the share meeting all"},
 			&cli.StringFlag{Name: "retrim", Usage: "re-trim every trial to `KEY=VALUE` first, as on the bench (fuzz.Q2.vc=4.5V)"},
 			&cli.StringFlag{Name: "adjust", Usage: "the knob --retrim turns, `STAGE.KNOB` (default: the trimmer marked for that transistor)"},
@@ -67,7 +68,7 @@ func spreadAction(c *cli.Context) error {
 		return err
 	}
 	opt := parts.SpreadOptions{Trials: c.Int("trials"), Seed: c.Uint64("seed"), Workers: c.Int("workers"),
-		LeakSpread: c.Float64("leak-spread"), NoTHD: c.Bool("no-thd"), AllStages: c.Bool("all-stages")}
+		LeakSpread: c.Float64("leak-spread"), FETSpread: c.Float64("fet-spread"), NoTHD: c.Bool("no-thd"), AllStages: c.Bool("all-stages")}
 	if c.IsSet("workers") && opt.Workers < 1 {
 		return usagef("--workers %d must be at least 1", opt.Workers)
 	}
