@@ -143,9 +143,9 @@ type SpreadOptions struct {
 	// DefaultFETSpread, 1 none.
 	FETSpread float64
 	Freq      float64 // small-signal gain and THD frequency, Hz (default 1 kHz)
-	Amplitude  float64 // THD test sine, V peak at the source (default 100 mV)
-	NoTHD      bool    // skip the THD render (it dominates the time)
-	Specs      []*Spec
+	Amplitude float64 // THD test sine, V peak at the source (default 100 mV)
+	NoTHD     bool    // skip the THD render (it dominates the time)
+	Specs     []*Spec
 	// Retrim, if set, re-trims every trial (and the nominal run) with
 	// RetrimAdjust to this target before measuring, as a builder would on
 	// the bench; a trial that cannot reach it fails the yield.
