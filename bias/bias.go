@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"slices"
 
 	"renderchain/chains"
 	"renderchain/dsp/mna"
@@ -68,6 +69,14 @@ type Transistor struct {
 	// and βR: with the base–emitter junction well on, the collector–emitter
 	// voltage magnitude below which the rule calls it saturated.
 	SatVce float64
+	// NearRail is "gnd" or "v+" when the collector idles within
+	// RailMargin of that rail with little room to swing towards it, ""
+	// otherwise (and for a collector on a rail, on an inductive load at
+	// the supply, or driving another transistor's base directly, where
+	// the closeness is by design).
+	NearRail string
+	// RailRoom is how far the collector idles from that rail, V.
+	RailRoom float64
 }
 
 // Diode is a diode at its operating point: V across its terminals (series
@@ -197,8 +206,10 @@ func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
 		}
 	}
 	b.Warnings = report.Warnings{}
-	for _, t := range b.Transistors {
-		b.Warnings.Merge(transistorWarnings(t, c, vplus, b.Supply))
+	for i := range b.Transistors {
+		t := &b.Transistors[i]
+		t.NearRail, t.RailRoom = nearRail(t, c, vplus, b.Supply)
+		b.Warnings.Merge(transistorWarnings(*t, c))
 	}
 	b.readDevices(c, op)
 	return b
@@ -248,7 +259,23 @@ func classify(p models.BJTParams, temp, vbe, vbc float64) (Region, float64) {
 	return Active, satVce
 }
 
-func transistorWarnings(t Transistor, c *models.Circuit, vplus int, supply float64) []string {
+// nearRail is Transistor.NearRail and RailRoom for t at supply volts on
+// node vplus.
+func nearRail(t *Transistor, c *models.Circuit, vplus int, supply float64) (string, float64) {
+	nc := c.Lookup(t.Collector)
+	if nc == models.Ground || nc == vplus || drivesBase(c, nc, t.Ref) {
+		return "", 0
+	}
+	if d := math.Abs(t.Vc); d < RailMargin {
+		return "gnd", d
+	}
+	if d := math.Abs(t.Vc - supply); d < RailMargin && !inductiveLoad(c, nc) {
+		return "v+", d
+	}
+	return "", 0
+}
+
+func transistorWarnings(t Transistor, c *models.Circuit) []string {
 	var w []string
 	switch t.Region {
 	case Saturated:
@@ -266,16 +293,33 @@ func transistorWarnings(t Transistor, c *models.Circuit, vplus int, supply float
 			w = append(w, m)
 		}
 	}
-	nc := c.Lookup(t.Collector)
-	if nc != models.Ground && nc != vplus {
-		if d := math.Abs(t.Vc); d < RailMargin {
-			w = append(w, fmt.Sprintf("%s's collector sits %s ground (under %g V of room to swing)", t.Ref, distance(d), RailMargin))
-		}
-		if d := math.Abs(t.Vc - supply); d < RailMargin && !inductiveLoad(c, nc) {
-			w = append(w, fmt.Sprintf("%s's collector sits %s the supply rail (under %g V of room to swing)", t.Ref, distance(d), RailMargin))
-		}
+	switch t.NearRail {
+	case "gnd":
+		w = append(w, fmt.Sprintf("%s's collector sits %s ground (under %g V of room to swing)", t.Ref, distance(t.RailRoom), RailMargin))
+	case "v+":
+		w = append(w, fmt.Sprintf("%s's collector sits %s the supply rail (under %g V of room to swing)", t.Ref, distance(t.RailRoom), RailMargin))
 	}
 	return w
+}
+
+// drivesBase tells whether node n is another transistor's base, directly
+// or through that transistor's base resistance. A collector that drives
+// the next base directly (the direct-coupled pair of a shunt-feedback
+// fuzz) sits one base–emitter drop from that transistor's emitter by
+// design, so the rail-room warning would only mislead there.
+func drivesBase(c *models.Circuit, n int, self string) bool {
+	for _, e := range c.Elements {
+		if e.Kind != models.BJTKind || e.Ref == self {
+			continue
+		}
+		if e.Nodes[1] == n {
+			return true
+		}
+		if rb := c.Element(models.InternalNode(e.Ref, "rb")); rb != nil && slices.Contains(rb.Nodes, n) && slices.Contains(rb.Nodes, e.Nodes[1]) {
+			return true
+		}
+	}
+	return false
 }
 
 // leakageWarning words an active transistor whose base current runs

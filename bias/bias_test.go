@@ -339,3 +339,34 @@ func TestLeakyBaseCurrentWarns(t *testing.T) {
 		t.Logf("Icbo %s: Ic %.6g A, Ib %.6g A, relation %.6g A", tc.icbo, q.Ic, q.Ib, want)
 	}
 }
+
+// A collector that drives the next transistor's base directly sits one
+// base–emitter drop from that transistor's emitter by design (the
+// direct-coupled pair of a shunt-feedback fuzz: common practice), so the
+// germanium example's Q1 at 0.47 V from ground gets no rail-room warning
+// and no "near" mark, while a common-emitter stage whose collector sits
+// that close to ground with nothing behind it still does.
+func TestDirectCoupledCollectorNotNearRail(t *testing.T) {
+	ch, err := chains.Load("../chains/germanium.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := Solve(ch)
+	if err != nil {
+		t.Fatal(err)
+	}
+	q := b.Transistor("fuzz.Q1")
+	if q == nil || math.Abs(q.Vc) >= RailMargin {
+		t.Fatalf("fuzz.Q1 %+v: want a collector under %g V from ground to test with", q, RailMargin)
+	}
+	if q.NearRail != "" || strings.Contains(strings.Join(b.Warnings, "\n"), "fuzz.Q1's collector") {
+		t.Errorf("fuzz.Q1 at %.3f V: near %q, warnings %q", q.Vc, q.NearRail, b.Warnings)
+	}
+	ce, err := Solve(testchains.CE{Vcc: "9V", R1: "33k", R2: "10k", RC: "12k", RE: "1k", Kind: "npn", Beta: 200}.Parse(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if q := ce.Transistor("ce.Q1"); q.NearRail != "gnd" || q.RailRoom != math.Abs(q.Vc) {
+		t.Errorf("common-emitter stage: collector %.3f V, near %q (room %g V)", q.Vc, q.NearRail, q.RailRoom)
+	}
+}

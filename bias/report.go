@@ -59,6 +59,9 @@ type DeviceReport struct {
 	PowerW    float64         `json:"power_w"`
 	Beta      report.Number   `json:"beta_dc"`
 	Region    Region          `json:"region"`
+	// NearRail is "gnd" or "v+" when the collector idles with under
+	// RailMargin of room to that rail (Transistor.NearRail).
+	NearRail string `json:"near_rail,omitempty"`
 }
 
 // DiodeReport is one diode in a BiasReport.
@@ -179,7 +182,7 @@ func deviceReports(b *Bias) ([]DeviceReport, []DiodeReport) {
 		}
 		devs = append(devs, DeviceReport{Ref: t.Ref, Kind: t.Kind(), Collector: t.Collector, Base: t.Base, Emitter: t.Emitter,
 			VcV: t.Vc, VbV: t.Vb, VeV: t.Ve, VbeV: t.Vbe, VceV: t.Vce, VbcV: t.Vbc, IcA: t.Ic, IbA: t.Ib, IeA: t.Ie,
-			PowerW: t.Power, Beta: beta, Region: t.Region})
+			PowerW: t.Power, Beta: beta, Region: t.Region, NearRail: t.NearRail})
 	}
 	ds := []DiodeReport{}
 	for _, d := range b.Diodes {

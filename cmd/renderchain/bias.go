@@ -289,13 +289,8 @@ func biasPrintConditions(w io.Writer, rows []*bias.Bias) {
 		line := fmt.Sprintf("  %s\t%.0f °C\t", models.FormatValue(b.Supply, "V"), b.Temperature-models.ZeroCelsius)
 		for _, t := range b.Transistors {
 			region := string(t.Region)
-			if t.Collector != "gnd" && t.Collector != "v+" {
-				if math.Abs(t.Vc) < bias.RailMargin {
-					region += " (near gnd)"
-				}
-				if math.Abs(t.Vc-b.Supply) < bias.RailMargin {
-					region += " (near v+)"
-				}
+			if t.NearRail != "" {
+				region += " (near " + t.NearRail + ")"
 			}
 			line += fmt.Sprintf("%s\t%s\t%s\t%s\t", biasVolts(t.Vc), biasVolts(t.Vce), amps(t.Ic), region)
 		}
