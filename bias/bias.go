@@ -209,7 +209,7 @@ func Analyse(c *models.Circuit, op *mna.OperatingPoint) *Bias {
 	for i := range b.Transistors {
 		t := &b.Transistors[i]
 		t.NearRail, t.RailRoom = nearRail(t, c, vplus, b.Supply)
-		b.Warnings.Merge(transistorWarnings(*t, c))
+		b.Warnings.Merge(transistorWarnings(*t, c, b.Supply))
 	}
 	b.readDevices(c, op)
 	return b
@@ -275,9 +275,13 @@ func nearRail(t *Transistor, c *models.Circuit, vplus int, supply float64) (stri
 	return "", 0
 }
 
-func transistorWarnings(t Transistor, c *models.Circuit) []string {
+func transistorWarnings(t Transistor, c *models.Circuit, supply float64) []string {
 	var w []string
-	switch t.Region {
+	region := t.Region
+	if (region == CutOff || region == Reverse) && chains.PolarityFault(!t.PNP, supply, t.Vce, t.Ic) {
+		region = "" // the operating-point check names this fault, with its fix
+	}
+	switch region {
 	case Saturated:
 		w = append(w, fmt.Sprintf("%s is saturated at idle (Vce %s): its collector cannot swing further towards the emitter", t.Ref, models.FormatValue(t.Vce, "V")))
 	case CutOff:

@@ -370,3 +370,27 @@ func TestDirectCoupledCollectorNotNearRail(t *testing.T) {
 		t.Errorf("common-emitter stage: collector %.3f V, near %q (room %g V)", q.Vc, q.NearRail, q.RailRoom)
 	}
 }
+
+// One fault reads once: a PNP stage on a positive supply works in
+// reverse, which the operating-point check names with its fix ("this
+// build has a negative-ground supply …"); bias does not add its own
+// "works in reverse" line for it. A swapped NPN on the same supply (its
+// polarity agrees, so the check says nothing) keeps bias's line.
+func TestPolarityFaultReadsOnce(t *testing.T) {
+	for _, c := range []struct {
+		ce   testchains.CE
+		want string
+	}{
+		{testchains.CE{Vcc: "9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "pnp", Beta: 100}, "this build has a negative-ground supply"},
+		{testchains.CE{Vcc: "9V", R1: "47k", R2: "10k", RC: "4k7", RE: "1k", Kind: "npn", Beta: 100, Swap: true}, "works in reverse (collector and emitter swapped in effect): check its pins"},
+	} {
+		b, err := Solve(c.ce.Parse(t))
+		if err != nil {
+			t.Fatal(err)
+		}
+		all := strings.Join(b.Warnings, "\n")
+		if n := strings.Count(all, "works in reverse"); n != 1 || !strings.Contains(all, c.want) {
+			t.Errorf("%s on %s: %q; want %q, and \"works in reverse\" once (%d)", c.ce.Kind, c.ce.Vcc, b.Warnings, c.want, n)
+		}
+	}
+}

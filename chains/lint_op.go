@@ -210,27 +210,35 @@ func (f *Flat) capacitorFindings(op *mna.OperatingPoint) Findings {
 	return out
 }
 
-// polarity is the warning for a transistor whose polarity disagrees with
-// the supply's sign and that does not work at idle.
-func (f *Flat) polarity(st *Stage, p *Part, d mna.DeviceState) (Finding, bool) {
-	ch := f.Chain
-	npn := p.Kind == NPN
-	if npn == (ch.Supply > 0) || ch.Supply == 0 {
-		return Finding{}, false
+// PolarityFault tells whether a transistor (npn, else pnp) with Vce and Ic
+// at idle (signed as measured) disagrees with the supply's sign and does
+// not work: cut off (|Ic| under ConductionCurrent) or in reverse. The
+// operating-point check words it (with the two ways to fix it); package
+// bias leaves its own cut-off and reverse lines out for such a transistor
+// so that one fault reads once.
+func PolarityFault(npn bool, supply, vce, ic float64) bool {
+	if npn == (supply > 0) || supply == 0 {
+		return false
 	}
 	s := 1.0
 	if !npn {
 		s = -1
 	}
+	return math.Abs(ic) < ConductionCurrent || s*vce < 0 || s*ic < 0
+}
+
+// polarity is the warning for a transistor whose polarity disagrees with
+// the supply's sign and that does not work at idle.
+func (f *Flat) polarity(st *Stage, p *Part, d mna.DeviceState) (Finding, bool) {
+	ch := f.Chain
+	npn := p.Kind == NPN
 	vce, ic := d.V[1], d.I[1]
-	state := ""
-	switch {
-	case math.Abs(ic) < ConductionCurrent:
-		state = "is cut off at idle (Ic " + models.FormatValue(ic, "A") + ")"
-	case s*vce < 0 || s*ic < 0:
-		state = "works in reverse at idle (Vce " + models.FormatValue(vce, "V") + ": collector and emitter swapped in effect)"
-	default:
+	if !PolarityFault(npn, ch.Supply, vce, ic) {
 		return Finding{}, false
+	}
+	state := "works in reverse at idle (Vce " + models.FormatValue(vce, "V") + ": collector and emitter swapped in effect)"
+	if math.Abs(ic) < ConductionCurrent {
+		state = "is cut off at idle (Ic " + models.FormatValue(ic, "A") + ")"
 	}
 	ground, kind, other := "positive-ground", "NPN", "a pnp"
 	if !npn {
