@@ -166,6 +166,22 @@ func (ch *Chain) stageOrPower(id string) *Stage {
 	return ch.Stage(id)
 }
 
+// PartStages is the supply network (if any) and the stages: everything
+// a builder fits parts in. StageOf finds one of them by id ("power" for
+// the supply network).
+func (ch *Chain) PartStages() []*Stage { return ch.allStages() }
+
+// StageOf returns the stage of the given id, the supply network for
+// "power" when there is one, or nil.
+func (ch *Chain) StageOf(id string) *Stage { return ch.stageOrPower(id) }
+
+// CellResistance tells whether part p of stage st is the cell's own
+// resistance: a resistor of the supply network on its emf end. It models
+// the battery, not a part to fit, rate or order.
+func (ch *Chain) CellResistance(st *Stage, p *Part) bool {
+	return st == ch.Power && p.Kind == Resistor && (p.Pins["1"] == EMF || p.Pins["2"] == EMF)
+}
+
 // where names a stage for a message: "stage amp", or "power".
 func (st *Stage) where() string {
 	if st.index == powerBlock {

@@ -159,7 +159,7 @@ func (f *Flat) CheckOperatingPoint(op *mna.OperatingPoint) Findings {
 		rating, what := 0.0, ""
 		switch {
 		case l.p.Kind == Resistor:
-			if l.st == ch.Power && (l.p.Pins["1"] == EMF || l.p.Pins["2"] == EMF) {
+			if ch.CellResistance(l.st, l.p) {
 				continue // the source's own resistance, not a part
 			}
 			rating, what = ResistorRating, "a common ¼ W resistor"

@@ -110,11 +110,14 @@ func PartsListContext(ctx context.Context, ch *chains.Chain, allStages bool) (*B
 	supply := math.Abs(ch.Supply)
 	vmin := CapacitorMargin * supply
 	bom := &BOM{Chain: ch.Name, File: ch.File, Supply: ch.Supply}
-	for _, st := range ch.Stages {
+	for _, st := range ch.PartStages() {
 		if st.Environment && !allStages {
 			continue
 		}
 		for _, p := range st.Parts {
+			if ch.CellResistance(st, p) {
+				continue // the battery's own resistance: nothing to order
+			}
 			ref := st.ID + "." + p.Ref
 			l := BOMLine{Ref: ref, Kind: p.Kind, Written: p.Text, ValueSI: report.Number(p.Value),
 				IdleVolts: report.Number(math.NaN()), IdlePower: report.Number(math.NaN()), Tolerance: report.Number(math.NaN())}

@@ -181,3 +181,59 @@ func TestPartsWrittenElectrolytic(t *testing.T) {
 		}
 	}
 }
+
+// The supply network is built like any stage, so its filter resistor,
+// filter capacitor and protection diode are on the parts list and vary in
+// a spread; the cell's own resistance (a resistor on emf) models the
+// battery and is neither ordered nor given a tolerance. The filter
+// resistor's idle power is Joule's law from its idle voltage.
+func TestPartsAndSpreadCoverTheSupplyNetwork(t *testing.T) {
+	ch, err := chains.Parse("p.toml", `name = "powered"
+supply = "9V"
+[power]
+template = "supply-rc-diode"
+[[stage]]
+id = "a"
+parts = [
+  { ref = "R1", kind = "resistor", value = "1k", pins = ["in", "out"] },
+  { ref = "RL", kind = "resistor", value = "1k", pins = ["v+", "gnd"] },
+]
+`)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := PartsList(ch, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	refs := map[string]bool{}
+	for _, l := range b.Lines {
+		refs[l.Ref] = true
+	}
+	for ref, want := range map[string]bool{"power.RF": true, "power.CF": true, "power.D1": true, "power.RBAT": false, "a.RL": true} {
+		if refs[ref] != want {
+			t.Errorf("%s on the parts list: %v, want %v", ref, refs[ref], want)
+		}
+	}
+	op, err := bias.Solve(ch)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vp, _ := op.Voltage("v+")
+	vprot, _ := op.Voltage("power.prot")
+	rf := bomLine(t, b, "power.RF")
+	if want := (vprot - vp) * (vprot - vp) / 100; math.Abs(float64(rf.IdlePower)/want-1) > 1e-9 {
+		t.Errorf("power.RF idle %g W, V²/R %g W", float64(rf.IdlePower), want)
+	}
+	opt := SpreadOptions{}
+	if err := opt.resolve(); err != nil {
+		t.Fatal(err)
+	}
+	var drawn []string
+	for _, v := range plan(ch, &opt) {
+		drawn = append(drawn, v.name())
+	}
+	if got := strings.Join(drawn, " "); !strings.Contains(got, "power.RF") || !strings.Contains(got, "power.CF") || strings.Contains(got, "RBAT") {
+		t.Errorf("spread draws %s; want power.RF and power.CF, not the cell's resistance", got)
+	}
+}

@@ -347,11 +347,14 @@ func (v varied) name() string {
 // plan lists, in a fixed order, what each trial draws.
 func plan(ch *chains.Chain, opt *SpreadOptions) []varied {
 	var out []varied
-	for _, st := range ch.Stages {
+	for _, st := range ch.PartStages() {
 		if st.Environment && !opt.AllStages {
 			continue
 		}
 		for _, p := range st.Parts {
+			if ch.CellResistance(st, p) {
+				continue // the battery's resistance: a condition, not a tolerance
+			}
 			switch p.Kind {
 			case chains.Resistor, chains.Capacitor, chains.Pot:
 				if tol, rule := Tolerance(p); tol > 0 {
@@ -425,7 +428,7 @@ func draw(ch *chains.Chain, pl []varied, opt *SpreadOptions, r *rand.Rand) []flo
 }
 
 func findPart(ch *chains.Chain, stage, ref string) *chains.Part {
-	for _, p := range ch.Stage(stage).Parts {
+	for _, p := range ch.StageOf(stage).Parts {
 		if p.Ref == ref {
 			return p
 		}
