@@ -200,7 +200,7 @@ func PartsListContext(ctx context.Context, ch *chains.Chain, allStages bool) (*B
 					l.MinPower = report.Number(PowerMargin * t.Power)
 					l.MinVoltage = report.Number(vmin)
 					l.Rating = sprintf("Pd ≥ %s, Vceo ≥ %s", models.FormatValue(float64(l.MinPower), "W"), models.FormatValue(vmin, "V"))
-					l.Note = sprintf("idle Ic %s, %s", models.FormatValue(t.Ic, "A"), t.Region)
+					l.Note = sprintf("idle Ic %s, %s", report.Quantity(t.Ic, report.CurrentFloor, "A"), t.Region)
 				}
 				if bp.Icbo > 0 {
 					l.Note += sprintf("; leakage Icbo %s at 25 °C, about doubling per %g °C", models.FormatValue(bp.Icbo, "A"), bp.LeakDoubling)
@@ -221,7 +221,7 @@ func PartsListContext(ctx context.Context, ch *chains.Chain, allStages bool) (*B
 				for _, d := range b.Diodes {
 					if d.Ref == ref {
 						l.IdleVolts, l.IdlePower = report.Number(d.V), report.Number(d.Power)
-						l.Note = sprintf("idle %s", models.FormatValue(d.I, "A"))
+						l.Note = sprintf("idle %s", report.Quantity(d.I, report.CurrentFloor, "A"))
 					}
 				}
 			default:

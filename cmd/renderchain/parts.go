@@ -63,7 +63,7 @@ func partsPrint(w io.Writer, b *parts.BOM) {
 		}
 		p := ""
 		if v := float64(l.IdlePower); !math.IsNaN(v) && v > 0 {
-			p = models.FormatValue(v, "W")
+			p = watts(v) // 0 under the display floor, as in bias
 		}
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n", l.Ref, l.Kind, l.Value, l.E12, l.E24, tol, p, l.Rating, l.Note)
 	}
