@@ -4,7 +4,9 @@ import (
 	"context"
 	"io"
 	"math"
+	"os"
 	"runtime"
+	"strings"
 	"testing"
 
 	"renderchain/chains"
@@ -232,5 +234,61 @@ func TestSegmentMemoryIsBounded(t *testing.T) {
 	}
 	if alloc > bound {
 		t.Errorf("allocated %d B, bound %d B", alloc, bound)
+	}
+}
+
+// A chain with a switch segments like any other: the unselected
+// position's capacitor, held by its 1 TΩ leak, is a mode the input cannot
+// reach, so it asks for no warm-up (wdf.Solver.SlowestDecay leaves it
+// out) where it used to make the render serial. The demo with a
+// tone-cap toggle in front, four seconds in two segments with the planned
+// warm-up, stays within 1e-7 of full scale of the serial render (the
+// bound of TestSegmentsMatchSerial) at every sample.
+func TestSegmentsWithASwitch(t *testing.T) {
+	demo, err := os.ReadFile("../chains/demo.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	src := string(demo)
+	i := strings.Index(src, "[[stage]]")
+	src = src[:i] + `[[stage]]
+id = "voice"
+parts = [
+  { ref = "R1",  kind = "resistor",  value = "1k", pins = ["in", "out"] },
+  { ref = "C1",  kind = "capacitor", value = "2n2", pins = ["d1", "gnd"] },
+  { ref = "C2",  kind = "capacitor", value = "6n8", pins = ["d2", "gnd"] },
+  { ref = "SW1", kind = "switch", value = "dark", positions = [
+      { name = "flat", connect = [] },
+      { name = "dark", connect = [["out", "d1"]] },
+      { name = "darker", connect = [["out", "d2"]] },
+    ] },
+]
+
+` + src[i:]
+	ch, err := chains.Parse("demo-switch.toml", src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := Prepare(ch, 4)
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := phraseSeconds(t, 4)
+	full, err := p.PlanSegments(48000, 4, 1<<30, 2)
+	if err != nil || full.Warmup == 0 {
+		t.Fatalf("plan %+v, %v: want a finite warm-up", full, err)
+	}
+	serial, _ := renderStream(t, p, x, 4, 1, nil)
+	plan := SegmentPlan{Segments: 2, First: len(x) / 2, Length: len(x) / 2, Warmup: full.Warmup}
+	seg, st := renderStream(t, p, x, 4, 2, &plan)
+	worst := 0.0
+	for i := range serial {
+		if d := math.Abs(seg[i] - serial[i]); d > worst || math.IsNaN(d) {
+			worst = d
+		}
+	}
+	t.Logf("warm-up %.3f s; worst difference %.2e FS; join error %.2e FS", full.WarmupSeconds, worst, st.JoinError)
+	if !(worst <= 1e-7) || !(st.JoinError <= JoinTolerance) {
+		t.Errorf("segmented render %.3g FS from the serial one, join error %.3g FS", worst, st.JoinError)
 	}
 }

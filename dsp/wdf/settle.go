@@ -54,10 +54,12 @@ func (s *Solver) SlowestDecay() (float64, error) {
 	}
 	a := mat.NewDense(ns, ns, nil)
 	w := ns + 2 + k
+	in := make([]float64, ns) // how the input moves the next states
 	for r := 0; r < ns; r++ {
 		for c := 0; c < ns; c++ {
 			a.Set(r, c, s.nz[r*w+c])
 		}
+		in[r] = s.nz[r*w+ns+1]
 	}
 	if k > 0 {
 		// Jf at the operating point, from a fresh channel (Reset evaluates
@@ -80,11 +82,12 @@ func (s *Solver) SlowestDecay() (float64, error) {
 		for r := 0; r < k; r++ {
 			j.Set(r, r, j.At(r, r)+1)
 		}
-		px := mat.NewDense(k, ns, nil)
+		px := mat.NewDense(k, ns+1, nil) // Pₓ, and the input's column last
 		for r := 0; r < k; r++ {
 			for c := 0; c < ns; c++ {
 				px.Set(r, c, s.pz[r*(ns+2)+c])
 			}
+			px.Set(r, ns, s.pz[r*(ns+2)+ns+1])
 		}
 		var dv mat.Dense // (I − K·Jf)⁻¹·Pₓ
 		if err := dv.Solve(j, px); err != nil {
@@ -110,7 +113,16 @@ func (s *Solver) SlowestDecay() (float64, error) {
 		}
 		var add mat.Dense
 		add.Mul(nb, &db)
-		a.Add(a, &add)
+		for r := 0; r < ns; r++ {
+			for c := 0; c < ns; c++ {
+				a.Set(r, c, a.At(r, c)+add.At(r, c))
+			}
+			in[r] += add.At(r, ns)
+		}
+	}
+	a = reachable(a, in)
+	if a == nil {
+		return 0, nil
 	}
 	var eig mat.Eigen
 	if !eig.Factorize(a, mat.EigenNone) {
@@ -149,4 +161,65 @@ func (s *Solver) WarmupSamples(ratio float64) (int, error) {
 		return 0, ErrNoDecay
 	}
 	return int(n), nil
+}
+
+// couplingFloor is the size under which an entry of the linearised state
+// update counts as no coupling: the matrices are sums of products of
+// adaptor entries of order one, so two states with no electrical path
+// between them are coupled by rounding alone, far below this.
+const couplingFloor = 1e-12
+
+// reachable returns the block of the state update a (ns×ns) between the
+// states the input reaches, through in (its column) and a's couplings, or
+// nil when it reaches none. A state it cannot reach (a capacitor that
+// only the open contact of a switch would join to the circuit, held by
+// its leak resistor) keeps its operating-point value in every render, so
+// its mode, however slow, is nothing a segment has to forget.
+func reachable(a *mat.Dense, in []float64) *mat.Dense {
+	ns := len(in)
+	scale := 0.0
+	for r := 0; r < ns; r++ {
+		for c := 0; c < ns; c++ {
+			scale = math.Max(scale, math.Abs(a.At(r, c)))
+		}
+		scale = math.Max(scale, math.Abs(in[r]))
+	}
+	floor := couplingFloor * scale
+	seen := make([]bool, ns)
+	var queue []int
+	for r, x := range in {
+		if math.Abs(x) > floor {
+			seen[r] = true
+			queue = append(queue, r)
+		}
+	}
+	for len(queue) > 0 {
+		c := queue[0]
+		queue = queue[1:]
+		for r := 0; r < ns; r++ {
+			if !seen[r] && math.Abs(a.At(r, c)) > floor {
+				seen[r] = true
+				queue = append(queue, r)
+			}
+		}
+	}
+	var keep []int
+	for r, ok := range seen {
+		if ok {
+			keep = append(keep, r)
+		}
+	}
+	if len(keep) == 0 {
+		return nil
+	}
+	if len(keep) == ns {
+		return a
+	}
+	sub := mat.NewDense(len(keep), len(keep), nil)
+	for i, r := range keep {
+		for j, c := range keep {
+			sub.Set(i, j, a.At(r, c))
+		}
+	}
+	return sub
 }

@@ -74,8 +74,9 @@ func TestSlowestDecayClosedForm(t *testing.T) {
 }
 
 // The two-transistor stage decays (every pole inside the unit circle), its
-// warm-up is finite, and a lossless LC tank gets no warm-up (ErrNoDecay):
-// its bilinear poles lie on the unit circle, |z| = 1 exactly for s = ±jω.
+// warm-up is finite, and a lossless LC tank the input reaches gets no
+// warm-up (ErrNoDecay): its bilinear poles lie on the unit circle, |z| = 1
+// exactly for s = ±jω.
 func TestSlowestDecayCircuits(t *testing.T) {
 	s, _ := twoTransistor().compile(t, 96000)
 	rho, err := s.SlowestDecay()
@@ -89,7 +90,7 @@ func TestSlowestDecayCircuits(t *testing.T) {
 	}
 	b := newBench()
 	b.src("V1", "in", 0, true)
-	b.cap("C0", "in", "gnd", 1e-9) // the source drives nothing but this
+	b.cap("C0", "in", "t", 1e-9) // the source reaches the tank through C0 only
 	b.ind("L1", "t", "gnd", 0.1)
 	b.cap("C1", "t", "gnd", 1e-6)
 	b.out("t")
@@ -147,5 +148,32 @@ func TestWarmupForgetsTheStart(t *testing.T) {
 	t.Logf("small-signal warm-up %d samples (%.3f s): %.3g V from the serial render; four times it: %.3g V", w, float64(w)/fs, d1, d4)
 	if d4 > 9e-7 {
 		t.Errorf("after four times the warm-up the clone is %.3g V from the serial render > 9e-7 V", d4)
+	}
+}
+
+// States the input cannot reach keep their operating-point values in any
+// render, so their modes are no part of a warm-up: the RC low-pass of
+// TestSlowestDecayClosedForm with an island beside it (a capacitor on a
+// node held only by a 1 TΩ leak, as an open switch contact leaves one,
+// and a lossless LC tank joined to nothing) has the RC's ρ = (1 − a)/(1 +
+// a), a = T/(2RC), to 1e-9 (the closed form's tolerance above), where the
+// island's modes (|z| = 1 − 5e-10 and |z| = 1) would otherwise make it
+// ErrNoDecay.
+func TestSlowestDecayLeavesIslandsOut(t *testing.T) {
+	const fs, R, C = 48000.0, 10e3, 100e-9
+	b := newBench()
+	b.src("V1", "in", 0, true)
+	b.r("R1", "in", "out", R)
+	b.cap("C1", "out", "gnd", C)
+	b.r("RLEAK", "island", "gnd", 1e12)
+	b.cap("CI", "island", "gnd", 10e-9)
+	b.ind("L1", "t", "gnd", 0.1)
+	b.cap("CT", "t", "gnd", 1e-6)
+	b.out("out")
+	s, _ := b.compile(t, fs)
+	a := 1 / fs / (2 * R * C)
+	want := (1 - a) / (1 + a)
+	if got, err := s.SlowestDecay(); err != nil || math.Abs(got-want) > 1e-9*want {
+		t.Errorf("RC beside islands: ρ = %.15g (%v), closed form %.15g", got, err, want)
 	}
 }
