@@ -328,9 +328,19 @@ func TestPolarityLeavesWorkingStagesAlone(t *testing.T) {
 // returns the operating-point findings.
 func opFindings(t *testing.T, src string) Findings {
 	t.Helper()
+	return opFindingsEdited(t, src, nil)
+}
+
+// opFindingsEdited is opFindings with edit (nil for none) applied to the
+// parsed chain before it is flattened.
+func opFindingsEdited(t *testing.T, src string, edit func(*Chain)) Findings {
+	t.Helper()
 	ch, err := Parse("p.toml", src)
 	if err != nil {
 		t.Fatal(err)
+	}
+	if edit != nil {
+		edit(ch)
 	}
 	f, err := ch.Flatten()
 	if err != nil {
@@ -534,23 +544,8 @@ func TestRailNotReached(t *testing.T) {
 		}, []string{"part D1:", "swap its anode and cathode"}},
 		{"cell of 10 kΩ", "9V", func(ch *Chain) { ch.Power.part("RBAT").Value = 10e3 }, []string{"part RBAT:", "passes almost none"}},
 	} {
-		ch, err := Parse("p.toml", strings.Replace(powerChain, "%s", c.supply, 1))
-		if err != nil {
-			t.Fatal(err)
-		}
-		if c.edit != nil {
-			c.edit(ch)
-		}
-		f, err := ch.Flatten()
-		if err != nil {
-			t.Fatal(err)
-		}
-		op, err := mna.SolveDC(f.Circuit, mna.DCOptions{})
-		if err != nil {
-			t.Fatal(err)
-		}
 		var rail []string
-		for _, fd := range f.CheckOperatingPoint(op) {
+		for _, fd := range opFindingsEdited(t, strings.Replace(powerChain, "%s", c.supply, 1), c.edit) {
 			if strings.Contains(fd.Msg, "v+ idles at") {
 				rail = append(rail, fd.String())
 			}
