@@ -20,7 +20,7 @@ import (
 func spreadCommand() *cli.Command {
 	return &cli.Command{
 		Name:  "spread",
-		Usage: "Monte Carlo over part tolerances, transistor gain and leakage: percentiles, gain, THD and yield",
+		Usage: "Monte Carlo over part tolerances, transistor gain and leakage, JFET pinch-off: percentiles, gain, THD and yield",
 		UsageText: "renderchain spread --chain F [--trials N] [--seed S] [--hfe-bin 126,158,182,231,268,304 | --hfe-range 100..400]\n" +
 			"   [--spec fuzz.Q2.vc=4..5V]… [--retrim fuzz.Q2.vc=4.5V] [--set K=V]… [--json] [--trials-csv FILE]",
 		Description: "Each resistor, capacitor and pot takes its tolerance key, or by default its E-series class\n" +
