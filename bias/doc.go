@@ -32,10 +32,15 @@
 // βF" is the usual textbook sense of the edge of saturation. Germanium
 // leakage, which flows whatever the region, is left out of the rule.
 //
-// Warnings flag a transistor saturated, cut off or reversed at idle, and a
-// collector within RailMargin (1 V) of either rail (ground or v+) unless
-// it is wired to that rail (or, for the supply rail, loaded by an inductor
-// or a transformer winding, which idles near the rail by design).
+// Warnings flag a transistor saturated, cut off or reversed at idle (left
+// to the chain's operating-point check when its polarity disagrees with
+// the supply, chains.PolarityFault), a leaky transistor whose base current
+// runs backwards (Ic/Ib then says nothing of hFE), and a collector within
+// RailMargin (1 V) of either rail (ground or v+) unless it is wired to
+// that rail, drives another transistor's base directly, or, for the
+// supply rail, is loaded by an inductor or a transformer winding (near
+// the rail by design in each case). Targets and probes name a
+// transistor's or a FET's terminal quantities or a node.
 //
 // JFETs and MOSFETs are read as FET: Vgs, Vds, Id, the overdrive past
 // pinch-off or threshold, and a region by FETRegionRule (cut-off, ohmic,

@@ -14,10 +14,14 @@
 // Flatten lints the wiring on the way (dangling nodes, slips for shared
 // names, dotted names that reach nothing, stages that take the signal but
 // never name out, shorts across the supply) and refuses what cannot be
-// meant; Flat.CheckOperatingPoint lints the DC operating point (idle
-// supply current, dissipation against typical ratings, transistor
-// polarity against the supply's sign). Findings carry the file, the line
-// and the part; warnings and notes stay on the Flat for every report.
+// meant, and warns about values past any pedal's parts (a capacitor of
+// 0.1 F, an input peak above 5 V: most often a unit left off);
+// Flat.CheckOperatingPoint lints the DC operating point (idle supply
+// current, dissipation against typical ratings, transistor polarity
+// against the supply's sign, a polarized capacitor in backwards or over
+// its rating, a supply network that passes too little to v+). Findings
+// carry the file, the line and the part; warnings and notes stay on the
+// Flat for every report.
 //
 // Part kinds (kind.go) are the passive parts, pots, diodes, bipolar
 // transistors, JFETs and MOSFETs of both polarities, op-amps, transformers

@@ -17,7 +17,10 @@
 // at 3σ, truncated at ±tolerance; uniform within ±tolerance is the other
 // choice. Transistor gains come from a bin of measured values (distinct
 // devices per trial), a uniform range, or stay as written; germanium
-// leakage spreads log-uniformly within ×/÷ 2 (DefaultLeakSpread, a choice).
+// leakage spreads log-uniformly within ×/÷ 2 (DefaultLeakSpread, a choice),
+// and a JFET's pinch-off within ×/÷ 1.5 (DefaultFETSpread) with Idss
+// following as β·Vp² (Shichman & Hodges 1968). The supply network's parts
+// are listed and varied like a stage's; the cell's own resistance is not.
 //
 // Each trial is measured like the nominal build: its operating point
 // (package bias), the small-signal gain at the spread's frequency (mna.AC)
@@ -49,7 +52,7 @@
 //
 // # Non-goals
 //
-// No spread of diode parameters, silicon Is or inductors. No worst-case
+// No spread of diode parameters, silicon Is, inductors, MOSFETs or op-amps. No worst-case
 // (stack-up) analysis, only Monte Carlo. Rating hints are rules of thumb
 // for small-signal builds, not a safety analysis of mains-powered
 // equipment: soldering and power-supply safety are the builder's own, and
