@@ -70,8 +70,11 @@
 // keeps the small-signal response within WarpTolerance (0.1 dB of its
 // peak) up to 20 kHz, and, for a circuit with devices, at which four probe
 // tones near 1.3 kHz at AliasProbeLevel (0.3 of full scale) keep their
-// aliases AliasTarget (50 dB) under the harmonics. AliasTone and
-// AliasRatio measure the aliasing of any test sine.
+// aliases AliasTarget (50 dB) under the harmonics. A chain whose
+// small-signal gain at idle is under WarpMinGain (a rectifier whose
+// devices rest) gives the warping nothing to measure; its search starts
+// at DefaultOversample. AliasTone and AliasRatio measure the aliasing of
+// any test sine.
 //
 // # One channel on several cores
 //

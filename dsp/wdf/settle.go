@@ -22,7 +22,9 @@ var ErrNoDecay = errors.New("wdf: the linearised circuit has a mode that does no
 // τ). Segmented rendering can size its warm-up from it (see
 // WarmupSamples).
 //
-// Modes with Re z < 0 are left out: the bilinear transform sends every
+// Only the modes the input reaches count (see reachable): a state it
+// cannot reach keeps its operating-point value in every render. Modes
+// with Re z < 0 are left out too: the bilinear transform sends every
 // continuous-time mode faster than T/2 there, towards z = −1, where it
 // alternates sign each sample and dies slowly in discrete time. Such modes
 // come from stiff corners (a pot turned to an end, a few ohms against a
