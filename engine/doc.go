@@ -84,7 +84,7 @@
 // after which the slowest mode of the circuit linearised at its operating
 // point has decayed to WarmupRatio (1e-7; wdf.Solver.WarmupSamples), plus
 // the filters' delay twice over, whose output is dropped. Beyond MaxWarmup
-// (5 s), for a mode that does not decay, or for a stream under
+// (60 s), for a mode the input reaches that does not decay, or for a stream under
 // MinSegmentWarmups warm-ups a segment, the render is serial. Where two
 // segments meet, the later one's warm-up and the earlier one's output are
 // compared (StreamInfo.JoinError): how far the later one was from the

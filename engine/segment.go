@@ -24,8 +24,12 @@ const (
 	// render needed four times the estimate; package dsp/wdf).
 	WarmupMargin = 4
 	// MaxWarmup bounds the warm-up, seconds; a circuit that needs longer
-	// renders serially.
-	MaxWarmup = 5.0
+	// renders serially. MinSegmentWarmups already keeps the warm-ups'
+	// share of the work under an eighth, so this bound is about trust, not
+	// cost: a minute covers the slowest modes of the example chains but
+	// the op-amp stage's (its input network needs 71 s with the margin),
+	// and every join is checked against JoinTolerance.
+	MaxWarmup = 60.0
 	// MinSegmentWarmups is the shortest segment, in warm-ups: a segment
 	// under eight warm-ups long would spend more than an eighth of its
 	// work on a warm-up it throws away, so the render stays serial.
