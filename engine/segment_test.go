@@ -292,3 +292,27 @@ parts = [
 		t.Errorf("segmented render %.3g FS from the serial one, join error %.3g FS", worst, st.JoinError)
 	}
 }
+
+// A slow circuit segments on a long file and stays serial on a short one:
+// the octave rectifier example needs a warm-up of several seconds (its
+// slowest linearised mode, four times over), under MaxWarmup, so a
+// 3-minute file is cut in two (each piece at least MinSegmentWarmups
+// warm-ups long) and a 20 s one is not.
+func TestPlanSegmentsSlowCircuit(t *testing.T) {
+	p := preparedFile(t, "../chains/examples/octave-transformer.toml", 4)
+	long, err := p.PlanSegments(48000, 4, 180*48000, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if long.Segments != 2 || long.WarmupSeconds < 1 || long.WarmupSeconds > MaxWarmup || long.Length < MinSegmentWarmups*long.Warmup {
+		t.Errorf("180 s: %+v; want 2 segments, each at least %d warm-ups", long, MinSegmentWarmups)
+	}
+	short, err := p.PlanSegments(48000, 4, 20*48000, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if short.Segments != 1 || !strings.Contains(short.Reason, "too short to cut") {
+		t.Errorf("20 s: %+v; want serial, too short", short)
+	}
+	t.Logf("warm-up %.2f s; 180 s: %d segments; 20 s: %s", long.WarmupSeconds, long.Segments, short.Reason)
+}
