@@ -232,16 +232,14 @@ func measureSwing(ctx context.Context, ch *chains.Chain, probe string, opt Symme
 		return nan, err
 	}
 	rec, err := p.Sine(ctx, engine.SineOptions{Freq: opt.Freq, Amplitude: opt.Level, SampleRate: opt.SampleRate, Node: n,
-		MinRecord: float64(opt.Cycles) / opt.Freq, MaxSettle: opt.MaxSettle, Tolerance: opt.Tolerance})
+		MinRecord: float64(opt.Cycles) / opt.Freq, MaxSettle: opt.MaxSettle, Tolerance: opt.Tolerance, NodePeaks: true})
 	if err != nil {
 		return nan, err
 	}
 	idle := p.DC.Node[n]
-	hi, lo := math.Inf(-1), math.Inf(1)
-	for _, v := range rec.Samples {
-		hi = math.Max(hi, v)
-		lo = math.Min(lo, v)
-	}
+	// The swing as the solver computes the node, not the band-limited
+	// record's (whose fast edges overshoot: engine.SineRecord).
+	hi, lo := rec.NodeMax, rec.NodeMin
 	// A node of a circuit fed by the supply and a test sine cannot leave
 	// the rails by more than the sine; far beyond is a solver that ran away.
 	limit := 2*(math.Abs(ch.Supply)+opt.Level) + 1

@@ -2,6 +2,7 @@ package engine
 
 import (
 	"fmt"
+	"math"
 
 	"renderchain/dsp/resample"
 	"renderchain/dsp/wdf"
@@ -15,6 +16,7 @@ import (
 // 1/VoltsPerUnit.
 type Channel struct {
 	solver  *wdf.Solver
+	tap     *peakTap
 	align   *resample.Aligner
 	latency int
 	volts   float64
@@ -51,7 +53,8 @@ func (p *Prepared) channelAt(fs float64, node, factor int) (*Channel, error) {
 	}
 	s.InputGain = p.Chain.InputPeak
 	s.OutputGain = 1 / volts
-	os, err := resample.NewOversampler(factor, fs, s, MaxBlock)
+	tap := &peakTap{inner: s}
+	os, err := resample.NewOversampler(factor, fs, tap, MaxBlock)
 	if err != nil {
 		return nil, err
 	}
@@ -59,7 +62,38 @@ func (p *Prepared) channelAt(fs float64, node, factor int) (*Channel, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Channel{solver: s, align: al, latency: os.Latency(), volts: volts, factor: factor}, nil
+	return &Channel{solver: s, tap: tap, align: al, latency: os.Latency(), volts: volts, factor: factor}, nil
+}
+
+// peakTap passes the solver's blocks through at the internal rate and,
+// while on, keeps their extremes: the node as the solver computes it,
+// before the rate converter band-limits it (a fast edge band-limited to
+// the base rate's band overshoots by up to about 9 % of its step,
+// Gibbs's phenomenon, where the circuit does not). Off, it costs one test
+// per block.
+type peakTap struct {
+	inner  resample.Inner
+	on     bool
+	lo, hi float64
+}
+
+func (t *peakTap) Process(dst, src []float64) {
+	t.inner.Process(dst, src)
+	if !t.on {
+		return
+	}
+	for _, v := range dst {
+		t.lo, t.hi = min(t.lo, v), max(t.hi, v)
+	}
+}
+
+// startPeaks clears and starts the extremes at the internal rate.
+func (c *Channel) startPeaks() { c.tap.on, c.tap.lo, c.tap.hi = true, math.Inf(1), math.Inf(-1) }
+
+// stopPeaks stops them and returns them in the channel's units.
+func (c *Channel) stopPeaks() (lo, hi float64) {
+	c.tap.on = false
+	return c.tap.lo, c.tap.hi
 }
 
 // Process renders src into dst and returns how many output samples it

@@ -137,6 +137,10 @@ type SineOptions struct {
 	// MaxSettle bounds the wait in seconds (default 3 s); Tolerance is the
 	// settle rule's relative change (default 1e-5).
 	MinRecord, MaxSettle, Tolerance float64
+	// NodePeaks asks for the node's extremes at the internal rate
+	// (SineRecord.NodeMin, NodeMax), taken over one more record's length
+	// after the record.
+	NodePeaks bool
 }
 
 // SineRecord is the settled output of a sine run, in volts at the node.
@@ -149,6 +153,13 @@ type SineRecord struct {
 	Change   float64 // last window-to-window relative change
 	Volts    float64 // VoltsPerUnit of the channel (FullScale for the output)
 	Stats    wdf.Stats
+	// NodeMin and NodeMax are the node's extremes in volts as the solver
+	// computes it at the internal rate, over one record's length past the
+	// record (SineOptions.NodePeaks; NaN otherwise). The record itself is
+	// band-limited to the base rate's band, and its extremes overshoot a
+	// fast edge's (Gibbs's phenomenon) where a scope on the circuit shows
+	// none: peaks of a node are these.
+	NodeMin, NodeMax float64
 }
 
 // Sine runs the one test sine through the prepared chain until the output
@@ -217,6 +228,21 @@ func (p *Prepared) Sine(ctx context.Context, opt SineOptions) (*SineRecord, erro
 				break
 			}
 		}
+	}
+	rec.NodeMin, rec.NodeMax = math.NaN(), math.NaN()
+	if opt.NodePeaks {
+		ch.startPeaks()
+		for left := n; left > 0; {
+			if err := ctx.Err(); err != nil {
+				return nil, err
+			}
+			k := min(left, MaxBlock)
+			rec.Sine.Fill(src[:k])
+			ch.Process(out, src[:k])
+			left -= k
+		}
+		lo, hi := ch.stopPeaks()
+		rec.NodeMin, rec.NodeMax = lo*rec.Volts, hi*rec.Volts
 	}
 	rec.Stats = ch.Stats()
 	return rec, nil

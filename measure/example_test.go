@@ -71,9 +71,9 @@ func ExampleSine() {
 }
 
 // The scope view of a sine measurement: the first three settled cycles
-// at the source and at the probed node (1 kHz at 48 kHz: 144 samples and
-// one to close the last cycle), with the rail named where it lies off the
-// scale.
+// at the source and at the probed node, at the internal rate (1 kHz at
+// 48 kHz × 4: 576 samples and one to close the last cycle), with the rail
+// named where it lies off the scale.
 func ExampleReport_ScopeFigures() {
 	ch, _ := chains.Parse("lowpass.toml", lowpass)
 	rep, err := measure.Run(context.Background(), ch, measure.Plan{Freq: 1000, Amplitude: 0.5,
@@ -91,6 +91,6 @@ func ExampleReport_ScopeFigures() {
 	fmt.Println(len(figs), len(sc.In), len(sc.Out))
 	fmt.Println(figs[0].Panels[1].Title)
 	// Output:
-	// 1 145 145
+	// 1 577 577
 	// Output: out (v+ 9 V above the scale)
 }

@@ -325,10 +325,14 @@ func (r *Report) ScopeFigures() ([]*plotting.Figure, error) {
 			continue
 		}
 		sc := m.Scope
-		settings := append([]string{fmt.Sprintf("%.3g ms shown from %.3g s, settled", 1000*float64(len(sc.In)-1)/sc.SampleRate, sc.Start)},
+		rate := "at the internal rate"
+		if !sc.Internal {
+			rate = "band-limited to the analysis rate"
+		}
+		settings := append([]string{fmt.Sprintf("%.3g ms shown from %.3g s, settled, %s", 1000*float64(len(sc.In)-1)/sc.SampleRate, sc.Start, rate)},
 			titleSettings(r.Knobs, [][]string{m.Settings}, m.Settings)...)
 		if !m.Settle.Settled {
-			settings[0] = fmt.Sprintf("from %.3g s, NOT settled", sc.Start)
+			settings[0] = fmt.Sprintf("from %.3g s, NOT settled, %s", sc.Start, rate)
 		}
 		f, err := plotting.ScopeFigure(plotting.ScopeSpec{
 			Title: "Scope view: " + stimulus(m), Chain: r.Chain, Settings: settings,

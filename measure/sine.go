@@ -306,7 +306,7 @@ func sineOn(ctx context.Context, p *engine.Prepared, freq, amplitude float64, op
 		return nil, err
 	}
 	rec, err := p.Sine(ctx, engine.SineOptions{Freq: freq, Amplitude: amplitude, SampleRate: opt.SampleRate, Node: node,
-		MinRecord: opt.MinRecord, MaxSettle: opt.MaxSettle, Tolerance: opt.SettleTolerance})
+		MinRecord: opt.MinRecord, MaxSettle: opt.MaxSettle, Tolerance: opt.SettleTolerance, NodePeaks: true})
 	if err != nil {
 		return nil, err
 	}
@@ -326,7 +326,9 @@ func sineOn(ctx context.Context, p *engine.Prepared, freq, amplitude float64, op
 		r.Spectrum = amplitudeSpectrum(rec.Samples, opt.SampleRate, r.Record.Coherent)
 	}
 	if opt.Scope {
-		r.Scope = scopeOf(rec, opt.SampleRate, amplitude)
+		if r.Scope, err = scopeRun(ctx, p, rec, node, freq, amplitude, opt); err != nil {
+			return nil, err
+		}
 	}
 	return r, nil
 }
@@ -371,6 +373,15 @@ func newResult(p *engine.Prepared, node int, freq, amplitude float64, opt Option
 		PeakPositiveV:   an.PeakPositive,
 		PeakNegativeV:   an.PeakNegative,
 		PeakAsymmetry:   report.Number(an.PeakAsymmetry),
+	}
+	// The node's peaks as the solver computes them (engine.SineRecord:
+	// the record's own overshoot a fast edge by the band limit's ringing).
+	if !math.IsNaN(rec.NodeMax) {
+		r.PeakPositiveV, r.PeakNegativeV = rec.NodeMax, rec.NodeMin
+		r.PeakAsymmetry = report.Number(math.NaN())
+		if up, down := rec.NodeMax-an.DC, an.DC-rec.NodeMin; up+down > 0 {
+			r.PeakAsymmetry = report.Number((up - down) / (up + down))
+		}
 	}
 	passband := passbandEdge(fs)
 	phaseIn := rec.Sine.Phase(rec.Start)
