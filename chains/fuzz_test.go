@@ -147,6 +147,8 @@ func FuzzParseDevices(f *testing.F) {
 	f.Add(oneStage("9V", `  { ref = "Q1", kind = "npn", model = "si-npn", early_voltage = 60, base_resistance = 80, pins = { c = "out", b = "in", e = "gnd" } },
   { ref = "R1", kind = "resistor", value = "10k", pins = ["v+", "out"] },
   { ref = "D1", kind = "diode", breakdown = "4.7V", breakdown_current = "5mA", pins = { anode = "gnd", cathode = "out" } },`))
+	f.Add(oneStage("9V", `  { ref = "C1", kind = "capacitor", value = "10u", rating = "6V3", pins = { plus = "in", minus = "out" } },
+  { ref = "R1", kind = "resistor", value = "100k", pins = ["out", "gnd"] },`))
 	f.Fuzz(func(t *testing.T, src string) {
 		ch, err := chains.Parse("f.toml", src)
 		if err != nil {
