@@ -157,7 +157,8 @@ type SineRecord struct {
 	// computes it at the internal rate, over one record's length past the
 	// record (SineOptions.NodePeaks; NaN otherwise). The record itself is
 	// band-limited to the base rate's band, and its extremes overshoot a
-	// fast edge's (Gibbs's phenomenon) where a scope on the circuit shows
+	// fast edge's (the Gibbs phenomenon: J. W. Gibbs, Nature 59, 1899,
+	// from memory) where a scope on the circuit shows
 	// none: peaks of a node are these.
 	NodeMin, NodeMax float64
 }
