@@ -164,21 +164,22 @@ func (p *Prepared) ChooseOversample(ctx context.Context, fs, budget float64) (*F
 		return nil, err
 	}
 	c := &FactorChoice{From: FactorAuto, WarpFloor: floor, AliasDB: math.NaN()}
+	// No small-signal path at idle (a rectifier or gate whose devices
+	// rest): warping has nothing to measure (WarpFloor and WarpDB stay 0),
+	// so the floor is the fixed factor the analyses use, whose accuracy the
+	// tests establish.
+	silent := floor == 0
+	if silent {
+		floor = DefaultOversample
+	}
 	finish := func(f int) (*FactorChoice, error) {
 		c.Factor = f
-		if floor > 0 {
+		if !silent {
 			if c.WarpDB, _, err = p.warpAt(fs, f); err != nil {
 				return nil, err
 			}
 		}
 		return c, nil
-	}
-	// No small-signal path at idle (a rectifier or gate whose devices
-	// rest): warping has nothing to measure, so the floor is the fixed
-	// factor the analyses use, whose accuracy the tests establish.
-	silent := floor == 0
-	if silent {
-		floor = DefaultOversample
 	}
 	if len(p.Circuit.Devices()) == 0 && silent {
 		c.Reason = fmt.Sprintf("automatic: a circuit without nonlinear devices makes no aliases, and its small-signal response is under %.0f dB, so frequency warping cannot set the floor: the analyses' %d×",

@@ -179,8 +179,8 @@ func TestAutoFactorSilentAtIdle(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if c.WarpFloor != 0 || c.Trials[0].Factor != DefaultOversample || !c.Trials[len(c.Trials)-1].Pass || c.Factor < DefaultOversample {
-		t.Errorf("factor %d, warp floor %d, trials %+v; want no warp floor and a search from %d×", c.Factor, c.WarpFloor, c.Trials, DefaultOversample)
+	if c.WarpFloor != 0 || c.WarpDB != 0 || c.Trials[0].Factor != DefaultOversample || !c.Trials[len(c.Trials)-1].Pass || c.Factor < DefaultOversample {
+		t.Errorf("factor %d, warp floor %d (%g dB), trials %+v; want no warp figures and a search from %d×", c.Factor, c.WarpFloor, c.WarpDB, c.Trials, DefaultOversample)
 	}
 	t.Logf("%s", c.Reason)
 }
