@@ -222,7 +222,7 @@ func (ch *Chain) partOf(ref string) (*Stage, *Part) {
 	if !ok {
 		return nil, nil
 	}
-	st := ch.stageOrPower(id)
+	st := ch.StageOf(id)
 	if st == nil {
 		return nil, nil
 	}
@@ -236,7 +236,7 @@ func (ch *Chain) partOf(ref string) (*Stage, *Part) {
 // hasDevices tells whether any stage (or the power network) holds a
 // semiconductor or an op-amp: a part the supply matters to.
 func (ch *Chain) hasDevices() bool {
-	for _, st := range ch.allStages() {
+	for _, st := range ch.PartStages() {
 		for _, p := range st.Parts {
 			if p.Kind.Device() {
 				return true

@@ -243,7 +243,7 @@ func (ch *Chain) CheckSize() error {
 		return &LimitError{File: ch.File, What: "number of stages", Value: int64(len(ch.Stages)), Limit: MaxStages, Unit: "stages"}
 	}
 	parts := 0
-	for _, st := range ch.allStages() { // the [power] network's parts too
+	for _, st := range ch.PartStages() { // the [power] network's parts too
 		parts += len(st.Parts)
 	}
 	if parts > MaxParts { // before counting nodes, which allocates
@@ -267,7 +267,7 @@ func (ch *Chain) sizes() (stages, parts, nodes, branches, ports int) {
 	nodes = 4                           // gnd, v+, in, out
 	branches = 2                        // the signal source and the supply
 	ports = 1                           // the output load
-	for _, st := range ch.allStages() { // the [power] network too (its emf counted as its out)
+	for _, st := range ch.PartStages() { // the [power] network too (its emf counted as its out)
 		local := map[string]bool{}
 		if st.Buffer {
 			nodes++

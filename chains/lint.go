@@ -116,7 +116,7 @@ func (u pinUse) pinLabel() string { return "pin " + u.role }
 // the stages in order; a part's pins in its kind's order.
 func (ch *Chain) pinUses(w *Wiring) []pinUse {
 	var out []pinUse
-	for _, st := range ch.allStages() {
+	for _, st := range ch.PartStages() {
 		for _, p := range st.Parts {
 			for _, role := range pinRoles(p) {
 				name := p.Pins[role]
@@ -149,31 +149,23 @@ func pinRoles(p *Part) []string {
 	return append(out, rest...)
 }
 
-// allStages is the supply network (if any) and the stages.
-func (ch *Chain) allStages() []*Stage {
+// PartStages is the supply network (if any) and the stages: everything a
+// builder fits parts in.
+func (ch *Chain) PartStages() []*Stage {
 	if ch.Power == nil {
 		return ch.Stages
 	}
 	return append([]*Stage{ch.Power}, ch.Stages...)
 }
 
-// stageOrPower returns the stage of the given id, the supply network for
+// StageOf returns the stage of the given id, the supply network for
 // "power" when there is one, or nil.
-func (ch *Chain) stageOrPower(id string) *Stage {
+func (ch *Chain) StageOf(id string) *Stage {
 	if id == PowerID && ch.Power != nil {
 		return ch.Power
 	}
 	return ch.Stage(id)
 }
-
-// PartStages is the supply network (if any) and the stages: everything
-// a builder fits parts in. StageOf finds one of them by id ("power" for
-// the supply network).
-func (ch *Chain) PartStages() []*Stage { return ch.allStages() }
-
-// StageOf returns the stage of the given id, the supply network for
-// "power" when there is one, or nil.
-func (ch *Chain) StageOf(id string) *Stage { return ch.stageOrPower(id) }
 
 // CellResistance tells whether part p of stage st is the cell's own
 // resistance: a resistor of the supply network on its emf end. It models
@@ -258,7 +250,7 @@ func (ch *Chain) lintWiring(w *Wiring, uses []pinUse) Findings {
 	if ch.Power != nil {
 		l.power()
 	}
-	for _, st := range ch.allStages() {
+	for _, st := range ch.PartStages() {
 		l.names(st)
 		if st != ch.Power {
 			l.signalEnds(st)
@@ -369,10 +361,10 @@ func (l *wiringLint) dotted(st *Stage, other, name string) string {
 	if strings.Contains(name, ".") {
 		return "that names a node inside a part; pins reach the nodes of stages, not the inside of parts"
 	}
-	target := ch.stageOrPower(other)
+	target := ch.StageOf(other)
 	if target == nil {
 		var ids []string
-		for _, s := range ch.allStages() {
+		for _, s := range ch.PartStages() {
 			ids = append(ids, s.ID)
 		}
 		msg := fmt.Sprintf("there is no stage %s (stages: %s)", quote(other), strings.Join(ids, ", "))
@@ -581,7 +573,7 @@ func (ch *Chain) valueFindings() Findings {
 			Msg: fmt.Sprintf("%s at full scale is beyond any guitar (a pickup gives up to about 1 V peak, an active one a few volts): did you mean %s?",
 				models.FormatValue(ch.InputPeak, "V"), models.FormatValue(ch.InputPeak/1000, "V"))})
 	}
-	for _, st := range ch.allStages() {
+	for _, st := range ch.PartStages() {
 		for _, p := range st.Parts {
 			var what, unit, hint string
 			switch {

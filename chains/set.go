@@ -103,10 +103,10 @@ func (ch *Chain) Set(kv string) error {
 	if len(parts) < 2 || len(parts) > 3 {
 		return fail("unknown key (want %s, STAGE.KNOB, STAGE.REF or STAGE.REF.PARAM)%s", strings.Join(SetKeys, ", "), didYouMean(key, SetKeys))
 	}
-	st := ch.stageOrPower(parts[0])
+	st := ch.StageOf(parts[0])
 	if st == nil {
 		var ids []string
-		for _, s := range ch.allStages() {
+		for _, s := range ch.PartStages() {
 			ids = append(ids, s.ID)
 		}
 		return fail("no stage %q (stages: %s)%s", parts[0], strings.Join(ids, ", "), didYouMean(parts[0], ids))
