@@ -264,9 +264,9 @@ func (ch *Chain) CheckSize() error {
 // terminal part, two per pot, diode with its series resistance and
 // transistor, one leak resistor per node at most, and the output load).
 func (ch *Chain) sizes() (stages, parts, nodes, branches, ports int) {
-	nodes = 4                           // gnd, v+, in, out
-	branches = 2                        // the signal source and the supply
-	ports = 1                           // the output load
+	nodes = 4                            // gnd, v+, in, out
+	branches = 2                         // the signal source and the supply
+	ports = 1                            // the output load
 	for _, st := range ch.PartStages() { // the [power] network too (its emf counted as its out)
 		local := map[string]bool{}
 		if st.Buffer {
